@@ -1,0 +1,146 @@
+package checks
+
+import (
+	"container/heap"
+	"math"
+	"sort"
+
+	"github.com/apache/arrow-go/v18/arrow"
+
+	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
+)
+
+// Offenders counts the rows that break a rule exactly and keeps the Limit
+// worst of them (highest score; among equal scores the earliest rows), in
+// memory bounded by Limit.
+type Offenders struct {
+	Limit int
+	Count int64
+	kept  rowHeap
+}
+
+// Add counts one offending row. score says how far off it is (higher is
+// worse); row is called only when the row is kept for the listing.
+func (o *Offenders) Add(score float64, rowNum int64, row func() report.Row) {
+	o.Count++
+	if o.Limit <= 0 {
+		return
+	}
+	if math.IsNaN(score) {
+		score = math.Inf(1)
+	}
+	if len(o.kept) < o.Limit {
+		r := row()
+		r.Score = report.Number(score)
+		heap.Push(&o.kept, r)
+		return
+	}
+	least := o.kept[0]
+	if !worse(score, rowNum, float64(least.Score), least.Row) {
+		return
+	}
+	r := row()
+	r.Score = report.Number(score)
+	o.kept[0] = r
+	heap.Fix(&o.kept, 0)
+}
+
+// Merge folds p's counts and kept rows into o.
+func (o *Offenders) Merge(p *Offenders) {
+	count := o.Count + p.Count
+	for _, r := range p.kept {
+		o.Add(float64(r.Score), r.Row, func() report.Row { return r })
+	}
+	o.Count = count
+}
+
+// Report returns the count and the kept rows, worst first; nil when no row
+// offended.
+func (o *Offenders) Report() *report.Offending {
+	if o.Count == 0 {
+		return nil
+	}
+	rows := append([]report.Row(nil), o.kept...)
+	sort.Slice(rows, func(i, j int) bool {
+		return worse(float64(rows[i].Score), rows[i].Row, float64(rows[j].Score), rows[j].Row)
+	})
+	return &report.Offending{Count: o.Count, Rows: rows}
+}
+
+// worse orders offending rows: higher score first, then lower row number.
+func worse(s1 float64, r1 int64, s2 float64, r2 int64) bool {
+	if s1 != s2 {
+		return s1 > s2
+	}
+	return r1 < r2
+}
+
+// rowHeap is a min-heap of kept rows: its root is the least bad row kept.
+type rowHeap []report.Row
+
+func (h rowHeap) Len() int { return len(h) }
+func (h rowHeap) Less(i, j int) bool {
+	return worse(float64(h[j].Score), h[j].Row, float64(h[i].Score), h[i].Row)
+}
+func (h rowHeap) Swap(i, j int) { h[i], h[j] = h[j], h[i] }
+func (h *rowHeap) Push(x any)   { *h = append(*h, x.(report.Row)) }
+func (h *rowHeap) Pop() any {
+	old := *h
+	r := old[len(old)-1]
+	*h = old[:len(old)-1]
+	return r
+}
+
+// RowAt describes row i of batch b for a listing: its numbers and the values
+// of the columns at indices cols (of b.Record).
+func RowAt(env *Env, b *source.Batch, i int, cols []int) report.Row {
+	r := report.Row{
+		Row:    b.FirstRow + int64(i),
+		Line:   b.Line(i),
+		Values: make(map[string]any, len(cols)),
+	}
+	if len(env.Sources) > 1 && b.Source < len(env.Sources) {
+		r.Source = env.Sources[b.Source]
+	}
+	for _, c := range cols {
+		name := b.Record.ColumnName(c)
+		r.Values[name] = cellValue(b, c, i)
+	}
+	return r
+}
+
+// cellValue is the value of one cell as a report shows it: nil for a
+// missing value, the text as read for a value that did not parse.
+func cellValue(b *source.Batch, col, i int) any {
+	for _, bad := range b.Invalid[col] {
+		if bad.Row == i {
+			return bad.Text
+		}
+	}
+	return Value(b.Record.Column(col), i)
+}
+
+// Value returns element i of arr as a plain Go value for reports: nil, bool,
+// int64, float64 (NaN and ±Inf as their names), or string (timestamps and
+// dates in RFC 3339).
+func Value(arr arrow.Array, i int) any {
+	if arr.IsNull(i) {
+		return nil
+	}
+	switch a := arr.(type) {
+	case interface{ Value(int) float64 }:
+		f := a.Value(i)
+		if math.IsNaN(f) || math.IsInf(f, 0) {
+			return a.(arrow.Array).ValueStr(i)
+		}
+		return f
+	case interface{ Value(int) int64 }:
+		return a.Value(i)
+	case interface{ Value(int) bool }:
+		return a.Value(i)
+	case interface{ Value(int) string }:
+		return a.Value(i)
+	}
+	return arr.ValueStr(i)
+}

@@ -1,0 +1,225 @@
+// Package report holds the result of a run (the JSON report contract) and
+// its renderers. It knows nothing of data or checks; checks fill Results and
+// the engine assembles a Report.
+package report
+
+import (
+	"fmt"
+	"math"
+	"time"
+)
+
+// SchemaVersion identifies the JSON report layout. It changes when a field
+// is removed or changes meaning; adding a field keeps it.
+const SchemaVersion = "assay.report/1"
+
+// Verdict is the judgement of a rule or a run. Verdicts are ordered:
+// Pass < Warn < Fail, and combine by taking the worst.
+type Verdict int
+
+// Verdicts in order of severity.
+const (
+	Pass Verdict = iota
+	Warn
+	Fail
+)
+
+var verdictNames = [...]string{"pass", "warn", "fail"}
+
+func (v Verdict) String() string {
+	if v < Pass || v > Fail {
+		return fmt.Sprintf("Verdict(%d)", int(v))
+	}
+	return verdictNames[v]
+}
+
+// Worst returns the more severe of v and w.
+func (v Verdict) Worst(w Verdict) Verdict { return max(v, w) }
+
+// MarshalText writes the verdict's name.
+func (v Verdict) MarshalText() ([]byte, error) {
+	if v < Pass || v > Fail {
+		return nil, fmt.Errorf("invalid verdict %d", int(v))
+	}
+	return []byte(v.String()), nil
+}
+
+// UnmarshalText reads a verdict's name.
+func (v *Verdict) UnmarshalText(b []byte) error {
+	for i, n := range verdictNames {
+		if n == string(b) {
+			*v = Verdict(i)
+			return nil
+		}
+	}
+	return fmt.Errorf("unknown verdict %q", b)
+}
+
+// Status says whether a check could run. It is separate from the verdict: a
+// check that could not run has no verdict of its own and is listed apart.
+type Status int
+
+// Execution statuses.
+const (
+	OK      Status = iota // the check ran; its verdict stands
+	Error                 // the check could not run (see Result.Error)
+	Skipped               // the check did not apply (see Result.Message)
+)
+
+var statusNames = [...]string{"ok", "error", "skipped"}
+
+func (s Status) String() string {
+	if s < OK || s > Skipped {
+		return fmt.Sprintf("Status(%d)", int(s))
+	}
+	return statusNames[s]
+}
+
+// MarshalText writes the status's name.
+func (s Status) MarshalText() ([]byte, error) {
+	if s < OK || s > Skipped {
+		return nil, fmt.Errorf("invalid status %d", int(s))
+	}
+	return []byte(s.String()), nil
+}
+
+// UnmarshalText reads a status's name.
+func (s *Status) UnmarshalText(b []byte) error {
+	for i, n := range statusNames {
+		if n == string(b) {
+			*s = Status(i)
+			return nil
+		}
+	}
+	return fmt.Errorf("unknown status %q", b)
+}
+
+// Report is the outcome of evaluating one policy on one set of sources.
+type Report struct {
+	Schema   string    `json:"schema"`
+	Verdict  Verdict   `json:"verdict"`
+	Policy   Policy    `json:"policy"`
+	Rows     int64     `json:"rows"`
+	Sources  []Source  `json:"sources"`
+	Counts   Counts    `json:"counts"`
+	Results  []Result  `json:"results"`
+	Tool     Tool      `json:"tool"`
+	Started  time.Time `json:"started"`
+	Duration float64   `json:"duration_seconds"`
+}
+
+// Policy identifies the policy a report judged against.
+type Policy struct {
+	Name string `json:"name"`
+	File string `json:"file"`
+	Hash string `json:"hash"`
+}
+
+// Source is one input read.
+type Source struct {
+	Path   string `json:"path"`
+	Format string `json:"format"` // csv, parquet, arrow-file, arrow-stream
+	Rows   int64  `json:"rows"`
+}
+
+// Counts counts results by verdict, and those that could not run.
+type Counts struct {
+	Pass    int `json:"pass"`
+	Warn    int `json:"warn"`
+	Fail    int `json:"fail"`
+	Error   int `json:"error"`
+	Skipped int `json:"skipped"`
+}
+
+// Tool names the program that wrote the report.
+type Tool struct {
+	Name    string `json:"name"`
+	Version string `json:"version"`
+}
+
+// Result is the outcome of one rule.
+type Result struct {
+	ID        string             `json:"id"`
+	Check     string             `json:"check"`
+	Columns   []string           `json:"columns"`
+	Status    Status             `json:"status"`
+	Verdict   Verdict            `json:"verdict"`
+	Measure   Measure            `json:"measure"`
+	Tolerance Tolerance          `json:"tolerance"`
+	Statistic *Statistic         `json:"statistic,omitempty"`
+	PValue    *float64           `json:"p_value,omitempty"`
+	Estimates map[string]float64 `json:"estimates,omitempty"`
+	Message   string             `json:"message,omitempty"`
+	Error     string             `json:"error,omitempty"`
+	Offending *Offending         `json:"offending,omitempty"`
+	Policy    string             `json:"policy_position,omitempty"` // file:line:col of the rule
+}
+
+// Measure is the one number a rule is judged on. Value is NaN when the
+// measure is undefined (e.g. the mean of no values); JSON then writes null.
+type Measure struct {
+	Name  string `json:"name"`
+	Value Number `json:"value"`
+	Unit  string `json:"unit"` // share, count or value
+}
+
+// Tolerance is the thresholds as the report shows them. For the directions
+// "at most" and "at least" Warn and Fail hold one number each; for "within"
+// they hold [lo, hi] intervals.
+type Tolerance struct {
+	Direction string `json:"direction"`
+	Warn      any    `json:"warn"`
+	Fail      any    `json:"fail"`
+}
+
+// Statistic is a test statistic with its name.
+type Statistic struct {
+	Name  string `json:"name"`
+	Value Number `json:"value"`
+	N     int64  `json:"n,omitempty"`
+}
+
+// Offending lists rows that break a rule. Count is exact; Rows holds at most
+// the run's listing cap, worst first.
+type Offending struct {
+	Count int64 `json:"count"`
+	Rows  []Row `json:"rows"`
+}
+
+// Row is one offending row. Row is the 1-based data-row number across all
+// inputs in order, header excluded; Source and Line locate it in its file
+// (Line is the file line where the row starts, for text inputs).
+type Row struct {
+	Row    int64          `json:"row"`
+	Source string         `json:"source,omitempty"`
+	Line   int64          `json:"line,omitempty"`
+	Values map[string]any `json:"values"`
+	Score  Number         `json:"score"`
+}
+
+// Number is a float64 that JSON writes as null when it is NaN or infinite,
+// since JSON has no literal for those.
+type Number float64
+
+// MarshalJSON writes the number, or null.
+func (n Number) MarshalJSON() ([]byte, error) {
+	f := float64(n)
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		return []byte("null"), nil
+	}
+	return fmt.Appendf(nil, "%v", f), nil
+}
+
+// UnmarshalJSON reads a number, or null as NaN.
+func (n *Number) UnmarshalJSON(b []byte) error {
+	if string(b) == "null" {
+		*n = Number(math.NaN())
+		return nil
+	}
+	var f float64
+	if _, err := fmt.Sscan(string(b), &f); err != nil {
+		return fmt.Errorf("report number %q: %w", b, err)
+	}
+	*n = Number(f)
+	return nil
+}

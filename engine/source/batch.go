@@ -1,0 +1,49 @@
+// Package source reads data files (CSV, Parquet, Arrow IPC) as a stream of
+// Arrow record batches that keep each row's data-row number and origin.
+package source
+
+import "github.com/apache/arrow-go/v18/arrow"
+
+// Batch is a slice of rows from one input file.
+//
+// Record holds the columns the plan asked for, in the types the policy
+// declared (or inferred or physical types where it declared none). The batch
+// owns one reference to Record; whoever receives a Batch calls Release when
+// done with it.
+type Batch struct {
+	Record arrow.RecordBatch
+	// Source is the index of the input file in the Set that produced it.
+	Source int
+	// FirstRow is the 1-based data-row number, across all inputs in order
+	// with headers excluded, of the batch's first row.
+	FirstRow int64
+	// Lines holds, for text inputs, the 1-based file line on which each row
+	// starts; nil for binary inputs.
+	Lines []int64
+	// Invalid lists, per column index of Record, the cells whose text did not
+	// parse as the column's type. Such cells are null in Record; Invalid
+	// tells them apart from cells that were missing. Nil when there are none.
+	Invalid map[int][]InvalidCell
+}
+
+// InvalidCell is a cell that did not parse as its column's type.
+type InvalidCell struct {
+	Row  int    // row index within the batch
+	Text string // the text as read
+}
+
+// Release drops the batch's reference to its record.
+func (b *Batch) Release() {
+	if b.Record != nil {
+		b.Record.Release()
+		b.Record = nil
+	}
+}
+
+// Line returns the file line of row i of the batch, or 0 when unknown.
+func (b *Batch) Line(i int) int64 {
+	if b.Lines == nil || i >= len(b.Lines) {
+		return 0
+	}
+	return b.Lines[i]
+}
