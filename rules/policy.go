@@ -71,21 +71,21 @@ type Kind string
 
 // The kinds of check of the foundation.
 const (
-	KindType      Kind = "type"       // share of values that do not parse as the declared type
-	KindNulls     Kind = "nulls"      // share of missing values
-	KindUnique    Kind = "unique"     // share of rows whose value occurs more than once
-	KindMinimum   Kind = "minimum"    // share of values below (or at, if exclusive) a bound
-	KindMaximum   Kind = "maximum"    // share of values above (or at, if exclusive) a bound
-	KindEnum      Kind = "enum"       // share of values outside a set
-	KindPattern   Kind = "pattern"    // share of strings that do not match an RE2 pattern
-	KindMinLength Kind = "minLength"  // share of strings shorter than a length, in characters
-	KindMaxLength Kind = "maxLength"  // share of strings longer than a length, in characters
-	KindSummary   Kind = "summary"    // one summary statistic of a column, bounded
-	KindRow       Kind = "row"        // share of rows for which an expression is false
-	KindRowCount  Kind = "row_count"  // number of data rows, bounded
-	KindKey       Kind = "key"        // share of rows whose key combination occurs more than once
-	KindClosed    Kind = "closed"     // data columns the policy does not declare
-	KindRequired  Kind = "required"   // required columns absent from the data
+	KindType      Kind = "type"      // share of values that do not parse as the declared type
+	KindNulls     Kind = "nulls"     // share of missing values
+	KindUnique    Kind = "unique"    // share of rows whose value occurs more than once
+	KindMinimum   Kind = "minimum"   // share of values below (or at, if exclusive) a bound
+	KindMaximum   Kind = "maximum"   // share of values above (or at, if exclusive) a bound
+	KindEnum      Kind = "enum"      // share of values outside a set
+	KindPattern   Kind = "pattern"   // share of strings that do not match an RE2 pattern
+	KindMinLength Kind = "minLength" // share of strings shorter than a length, in characters
+	KindMaxLength Kind = "maxLength" // share of strings longer than a length, in characters
+	KindSummary   Kind = "summary"   // one summary statistic of a column, bounded
+	KindRow       Kind = "row"       // share of rows for which an expression is false
+	KindRowCount  Kind = "row_count" // number of data rows, bounded
+	KindKey       Kind = "key"       // share of rows whose key combination occurs more than once
+	KindClosed    Kind = "closed"    // data columns the policy does not declare
+	KindRequired  Kind = "required"  // required columns absent from the data
 )
 
 // Kinds lists every declared kind, in the order reports list them.
@@ -114,9 +114,9 @@ type Direction int
 
 // Directions of a measure.
 const (
-	HigherIsWorse Direction = iota // a share of bad rows, a distance
-	LowerIsWorse                   // a p-value, a row count with a minimum
-	OutsideIsWorse                 // a statistic bounded on both sides
+	HigherIsWorse  Direction = iota // a share of bad rows, a distance
+	LowerIsWorse                    // a p-value, a row count with a minimum
+	OutsideIsWorse                  // a statistic bounded on both sides
 )
 
 func (d Direction) String() string {
