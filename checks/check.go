@@ -19,8 +19,11 @@ import (
 
 // Env is what checks are compiled against.
 type Env struct {
-	// Schema is the schema of every batch the checks will observe.
+	// Schema is the schema of every batch the checks will observe: the data's
+	// columns the plan reads, in the order read.
 	Schema *arrow.Schema
+	// DataColumns names every column of the data, read or not, in file order.
+	DataColumns []string
 	// Sources names the input files by their index in Batch.Source.
 	Sources []string
 	// MaxRowsListed caps the offending rows a result lists; counts stay exact.
