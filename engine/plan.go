@@ -1,0 +1,245 @@
+package engine
+
+import (
+	"errors"
+	"fmt"
+	"slices"
+	"sort"
+	"strings"
+
+	"github.com/apache/arrow-go/v18/arrow"
+
+	"github.com/assay-project/assay/checks"
+	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
+	"github.com/assay-project/assay/rules"
+)
+
+// plan is a policy bound to the columns of one data set: the compiled
+// checks, the columns they read, and the rules that cannot apply.
+type plan struct {
+	checks  []checks.Check
+	columns []string        // the data columns read, in data order
+	skipped []report.Result // rules on absent required columns
+	rank    map[string]int  // rule id -> position in the policy
+}
+
+// newPlan binds p to the data's schema. It reports every rule that names a
+// column the data lacks (unless the column is listed as required, which
+// makes it a verdict instead) and every rule that does not compile for the
+// data's types, all at once.
+func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
+	schema := set.Schema()
+	data := make([]string, schema.NumFields())
+	present := make(map[string]bool, len(data))
+	for i, f := range schema.Fields() {
+		data[i] = f.Name
+		present[f.Name] = true
+	}
+	required := map[string]bool{}
+	for _, r := range p.Rules {
+		if r.Kind == rules.KindRequired {
+			for _, c := range r.Columns {
+				required[c] = true
+			}
+		}
+	}
+
+	pl := &plan{rank: make(map[string]int, len(p.Rules))}
+	var problems []string
+	needed := map[string]bool{}
+	var bound []*rules.Rule
+	for i, r := range p.Rules {
+		pl.rank[r.ID] = i
+		if r.Kind == rules.KindRequired || r.Kind == rules.KindClosed {
+			bound = append(bound, r)
+			continue
+		}
+		var absent []string
+		for _, c := range r.Columns {
+			if !present[c] {
+				absent = append(absent, c)
+			}
+		}
+		switch {
+		case len(absent) == 0:
+			for _, c := range r.Columns {
+				needed[c] = true
+			}
+			bound = append(bound, r)
+		case allRequired(absent, required):
+			res := checks.NewResult(r, 0)
+			res.Status = report.Skipped
+			res.Verdict = report.Pass
+			res.Message = fmt.Sprintf("required column %s is absent from the data", quoteList(absent))
+			pl.skipped = append(pl.skipped, res)
+		default:
+			for _, c := range absent {
+				if required[c] {
+					continue
+				}
+				msg := fmt.Sprintf("%s: rule %s: column %q is not in the data", r.Pos, r.ID, c)
+				if s := rules.Suggest(c, data); s != "" {
+					msg += fmt.Sprintf(" (did you mean %q?)", s)
+				}
+				problems = append(problems, msg)
+			}
+		}
+	}
+	for _, c := range p.Columns {
+		if !present[c.Name] && !required[c.Name] {
+			msg := fmt.Sprintf("%s: column %q is declared but not in the data", c.Pos, c.Name)
+			if s := rules.Suggest(c.Name, data); s != "" {
+				msg += fmt.Sprintf(" (did you mean %q?)", s)
+			}
+			problems = append(problems, msg)
+		}
+	}
+
+	var fields []arrow.Field
+	for i, name := range data {
+		if needed[name] {
+			pl.columns = append(pl.columns, name)
+			fields = append(fields, schema.Field(i))
+		}
+	}
+	env := &checks.Env{
+		Schema:        arrow.NewSchema(fields, nil),
+		DataColumns:   data,
+		Sources:       sourceNames(set),
+		MaxRowsListed: maxRowsListed(opts.MaxRowsListed),
+		Policy:        p,
+	}
+	for _, r := range bound {
+		c, err := checks.Compile(r, env)
+		if err != nil {
+			problems = append(problems, err.Error())
+			continue
+		}
+		pl.checks = append(pl.checks, c)
+	}
+	if len(problems) > 0 {
+		problems = slices.Compact(problems)
+		return nil, &MismatchError{Policy: p.File, Problems: problems}
+	}
+	return pl, nil
+}
+
+// MismatchError lists every way a policy does not fit the data it was given.
+type MismatchError struct {
+	Policy   string
+	Problems []string
+}
+
+func (e *MismatchError) Error() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "policy %s does not fit the data (%d problem", e.Policy, len(e.Problems))
+	if len(e.Problems) != 1 {
+		b.WriteString("s")
+	}
+	b.WriteString("):")
+	for _, p := range e.Problems {
+		b.WriteString("\n  ")
+		b.WriteString(p)
+	}
+	return b.String()
+}
+
+// IsMismatch reports whether err says the policy does not fit the data.
+func IsMismatch(err error) bool {
+	var m *MismatchError
+	return errors.As(err, &m)
+}
+
+// order sorts results into the policy's rule order.
+func (pl *plan) order(results []report.Result) {
+	sort.SliceStable(results, func(i, j int) bool { return pl.rank[results[i].ID] < pl.rank[results[j].ID] })
+}
+
+func allRequired(cols []string, required map[string]bool) bool {
+	for _, c := range cols {
+		if !required[c] {
+			return false
+		}
+	}
+	return true
+}
+
+func quoteList(cols []string) string {
+	q := make([]string, len(cols))
+	for i, c := range cols {
+		q[i] = fmt.Sprintf("%q", c)
+	}
+	return strings.Join(q, ", ")
+}
+
+func sourceNames(set *source.Set) []string {
+	files := set.Files()
+	names := make([]string, len(files))
+	for i, f := range files {
+		names[i] = f.Path
+	}
+	return names
+}
+
+func maxRowsListed(n int) int {
+	switch {
+	case n == 0:
+		return DefaultMaxRowsListed
+	case n < 0:
+		return 0
+	}
+	return n
+}
+
+// sourceOptions merges the policy's reader settings over the caller's and
+// adds the declared column types.
+func sourceOptions(p *rules.Policy, o source.Options) source.Options {
+	in := p.Input
+	if in.Delimiter != 0 {
+		o.Delimiter = in.Delimiter
+	}
+	if in.Quote != 0 {
+		o.Quote = in.Quote
+	}
+	if in.NoQuote {
+		o.NoQuote = true
+	}
+	if in.NoHeader {
+		o.NoHeader = true
+	}
+	if in.NullsSet {
+		o.Nulls = append([]string{}, in.Nulls...)
+	}
+	types := make(map[string]arrow.DataType, len(o.Types)+len(p.Columns))
+	for k, v := range o.Types {
+		types[k] = v
+	}
+	for _, c := range p.Columns {
+		if t := ArrowType(c.Type); t != nil {
+			types[c.Name] = t
+		}
+	}
+	o.Types = types
+	return o
+}
+
+// ArrowType is the Arrow type a declared column type is read as; nil for
+// TypeAny.
+func ArrowType(t rules.Type) arrow.DataType {
+	switch t {
+	case rules.TypeInteger:
+		return arrow.PrimitiveTypes.Int64
+	case rules.TypeNumber:
+		return arrow.PrimitiveTypes.Float64
+	case rules.TypeString:
+		return arrow.BinaryTypes.String
+	case rules.TypeBoolean:
+		return arrow.FixedWidthTypes.Boolean
+	case rules.TypeTimestamp:
+		return &arrow.TimestampType{Unit: arrow.Microsecond, TimeZone: "UTC"}
+	case rules.TypeDate:
+		return arrow.FixedWidthTypes.Date32
+	}
+	return nil
+}

@@ -1,0 +1,285 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+)
+
+// TextOptions tune the terminal rendering.
+type TextOptions struct {
+	// Color adds ANSI colours to verdicts. Callers set it only for a
+	// terminal and never when NO_COLOR is set.
+	Color bool
+}
+
+// WriteText writes the report for a person at a terminal: a header, one line
+// per rule with its verdict, measure and thresholds, then the offending rows
+// of every rule that did not pass, and the overall verdict last.
+func WriteText(w io.Writer, r *Report, o TextOptions) error {
+	p := &printer{w: w, color: o.Color}
+	p.printf("assay %s · policy %s (%s)\n", r.Tool.Version, r.Policy.Name, r.Policy.File)
+	p.printf("data: %s rows from %s\n\n", groupDigits(r.Rows), sourceList(r.Sources))
+
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	for _, res := range r.Results {
+		label := p.label(res)
+		measure := res.Measure.Name + " " + formatMeasure(res.Measure.Unit, float64(res.Measure.Value))
+		limits := thresholds(res.Measure.Unit, res.Tolerance)
+		switch res.Status {
+		case Error:
+			measure, limits = "could not run", res.Error
+		case Skipped:
+			measure, limits = "skipped", res.Message
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\n", label, res.ID, measure, limits)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+
+	for _, res := range r.Results {
+		if res.Status != OK || res.Verdict == Pass {
+			continue
+		}
+		p.printf("\n%s %s", p.label(res), res.ID)
+		if res.Message != "" {
+			p.printf(": %s", res.Message)
+		}
+		p.printf("\n")
+		if res.Offending != nil && len(res.Offending.Rows) > 0 {
+			p.rows(res)
+		}
+	}
+	p.printf("\nverdict: %s (%d pass, %d warn, %d fail", p.paint(r.Verdict, strings.ToUpper(r.Verdict.String())),
+		r.Counts.Pass, r.Counts.Warn, r.Counts.Fail)
+	if r.Counts.Error > 0 {
+		p.printf(", %d could not run", r.Counts.Error)
+	}
+	if r.Counts.Skipped > 0 {
+		p.printf(", %d skipped", r.Counts.Skipped)
+	}
+	p.printf(")\n")
+	return p.err
+}
+
+type printer struct {
+	w     io.Writer
+	color bool
+	err   error
+}
+
+func (p *printer) printf(format string, args ...any) {
+	if p.err == nil {
+		_, p.err = fmt.Fprintf(p.w, format, args...)
+	}
+}
+
+// label is the fixed-width verdict word of a result; the word carries the
+// meaning, colour only repeats it.
+func (p *printer) label(res Result) string {
+	switch res.Status {
+	case Error:
+		return p.paintCode("1;35", "ERROR")
+	case Skipped:
+		return "skip "
+	}
+	switch res.Verdict {
+	case Fail:
+		return p.paint(Fail, "FAIL ")
+	case Warn:
+		return p.paint(Warn, "WARN ")
+	}
+	return p.paint(Pass, "pass ")
+}
+
+func (p *printer) paint(v Verdict, s string) string {
+	switch v {
+	case Fail:
+		return p.paintCode("1;31", s)
+	case Warn:
+		return p.paintCode("1;33", s)
+	}
+	return p.paintCode("32", s)
+}
+
+func (p *printer) paintCode(code, s string) string {
+	if !p.color {
+		return s
+	}
+	return "\x1b[" + code + "m" + s + "\x1b[0m"
+}
+
+// rows prints the listed offending rows of res as an indented table.
+func (p *printer) rows(res Result) {
+	off := res.Offending
+	multi := false
+	for _, row := range off.Rows {
+		if row.Source != "" {
+			multi = true
+		}
+	}
+	cols := valueColumns(res)
+	var b strings.Builder
+	tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', tabwriter.AlignRight)
+	head := []string{"row"}
+	if multi {
+		head = append(head, "source")
+	}
+	head = append(head, "line")
+	head = append(head, cols...)
+	head = append(head, "score")
+	fmt.Fprintf(tw, "  %s\t\n", strings.Join(head, "\t"))
+	for _, row := range off.Rows {
+		cells := []string{strconv.FormatInt(row.Row, 10)}
+		if multi {
+			cells = append(cells, row.Source)
+		}
+		line := "-"
+		if row.Line > 0 {
+			line = strconv.FormatInt(row.Line, 10)
+		}
+		cells = append(cells, line)
+		for _, c := range cols {
+			cells = append(cells, formatValue(row.Values[c]))
+		}
+		cells = append(cells, strconv.FormatFloat(float64(row.Score), 'g', 4, 64))
+		fmt.Fprintf(tw, "  %s\t\n", strings.Join(cells, "\t"))
+	}
+	tw.Flush()
+	p.printf("%s", b.String())
+	if rest := off.Count - int64(len(off.Rows)); rest > 0 {
+		p.printf("  ... and %s more\n", groupDigits(rest))
+	}
+}
+
+// valueColumns lists the columns shown for offending rows: the rule's
+// columns first, then any other column the rows carry, by name.
+func valueColumns(res Result) []string {
+	seen := map[string]bool{}
+	var cols []string
+	for _, c := range res.Columns {
+		if !seen[c] {
+			seen[c] = true
+			cols = append(cols, c)
+		}
+	}
+	var extra []string
+	for _, row := range res.Offending.Rows {
+		for k := range row.Values {
+			if !seen[k] {
+				seen[k] = true
+				extra = append(extra, k)
+			}
+		}
+	}
+	slices.Sort(extra)
+	return append(cols, extra...)
+}
+
+func formatValue(v any) string {
+	switch x := v.(type) {
+	case nil:
+		return "(null)"
+	case float64:
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	case string:
+		if x == "" {
+			return `""`
+		}
+		return x
+	}
+	return fmt.Sprint(v)
+}
+
+// formatMeasure writes a measure value in its unit: shares as percentages,
+// counts whole, values with up to six significant digits.
+func formatMeasure(unit string, v float64) string {
+	switch {
+	case math.IsNaN(v):
+		return "undefined"
+	case math.IsInf(v, 1):
+		return "+inf"
+	case math.IsInf(v, -1):
+		return "-inf"
+	}
+	switch unit {
+	case "share":
+		return formatPercent(v)
+	case "count":
+		return groupDigits(int64(v))
+	}
+	return strconv.FormatFloat(v, 'g', 6, 64)
+}
+
+func formatPercent(v float64) string {
+	pct := v * 100
+	if pct != 0 && math.Abs(pct) < 0.01 {
+		return strconv.FormatFloat(pct, 'g', 2, 64) + "%"
+	}
+	s := strconv.FormatFloat(pct, 'f', 2, 64)
+	s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+	return s + "%"
+}
+
+// thresholds writes a tolerance as "warn above 1% · fail above 5%".
+func thresholds(unit string, t Tolerance) string {
+	var parts []string
+	for _, side := range []struct {
+		name  string
+		limit any
+	}{{"warn", t.Warn}, {"fail", t.Fail}} {
+		if side.limit == nil {
+			continue
+		}
+		switch l := side.limit.(type) {
+		case Number:
+			word := "above"
+			if t.Direction == "at least" {
+				word = "below"
+			}
+			parts = append(parts, fmt.Sprintf("%s %s %s", side.name, word, formatMeasure(unit, float64(l))))
+		case [2]Number:
+			parts = append(parts, fmt.Sprintf("%s outside [%s, %s]", side.name,
+				formatMeasure(unit, float64(l[0])), formatMeasure(unit, float64(l[1]))))
+		}
+	}
+	if len(parts) == 0 {
+		return "no threshold"
+	}
+	return strings.Join(parts, " · ")
+}
+
+func sourceList(sources []Source) string {
+	switch len(sources) {
+	case 0:
+		return "no file"
+	case 1:
+		return sources[0].Path
+	}
+	return fmt.Sprintf("%d files", len(sources))
+}
+
+// groupDigits writes n with commas between groups of three digits.
+func groupDigits(n int64) string {
+	s := strconv.FormatInt(n, 10)
+	neg := strings.HasPrefix(s, "-")
+	if neg {
+		s = s[1:]
+	}
+	var b strings.Builder
+	for i, c := range s {
+		if i > 0 && (len(s)-i)%3 == 0 {
+			b.WriteByte(',')
+		}
+		b.WriteRune(c)
+	}
+	if neg {
+		return "-" + b.String()
+	}
+	return b.String()
+}
