@@ -160,7 +160,7 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 		return report.WriteText(w, rep, report.TextOptions{Color: wantColor(f.color, f.output, stdout)})
 	}
 	if f.output != "" {
-		err = writeAtomic(f.output, render)
+		err = writeAtomic(f.output, func(file *os.File) error { return render(file) })
 	} else {
 		err = render(stdout)
 	}

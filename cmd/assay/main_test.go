@@ -1,0 +1,335 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"flag"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/ipc"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+var update = flag.Bool("update", false, "rewrite golden files")
+
+// TestMain lets the test binary stand in for the command: with
+// ASSAY_RUN_MAIN set it runs main, so end-to-end tests exercise the real
+// process (exit codes, standard streams) without a separate build.
+func TestMain(m *testing.M) {
+	if os.Getenv("ASSAY_RUN_MAIN") == "1" {
+		main()
+		return
+	}
+	os.Exit(m.Run())
+}
+
+type outcome struct {
+	code   int
+	stdout string
+	stderr string
+}
+
+// assay runs the command as a child process with args and stdin.
+func assay(t *testing.T, stdin string, args ...string) outcome {
+	t.Helper()
+	cmd := exec.Command(os.Args[0], args...)
+	cmd.Env = append(os.Environ(), "ASSAY_RUN_MAIN=1", "NO_COLOR=1")
+	cmd.Stdin = strings.NewReader(stdin)
+	var out, errb bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errb
+	err := cmd.Run()
+	code := 0
+	if ee, ok := err.(*exec.ExitError); ok {
+		code = ee.ExitCode()
+	} else if err != nil {
+		t.Fatalf("running assay %v: %v", args, err)
+	}
+	return outcome{code: code, stdout: out.String(), stderr: errb.String()}
+}
+
+const pol = "testdata/soil/policy.yaml"
+
+func TestExitCodes(t *testing.T) {
+	good, err := os.ReadFile("testdata/soil/good.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	tests := []struct {
+		name  string
+		stdin string
+		args  []string
+		code  int
+		want  []string // substrings of stdout
+	}{
+		{"pass", "", []string{"check", pol, "testdata/soil/good.csv"}, 0, []string{"verdict: PASS"}},
+		{"fail", "", []string{"check", pol, "testdata/soil/bad.csv"}, 1, []string{"verdict: FAIL", "FAIL   columns.moisture_pct.maximum"}},
+		{"warn passes", "", []string{"check", pol, "testdata/soil/warn.csv"}, 0, []string{"verdict: WARN", "WARN   columns.moisture_pct.nulls"}},
+		{"strict warn fails", "", []string{"check", "--strict", pol, "testdata/soil/warn.csv"}, 1, []string{"verdict: WARN"}},
+		{"flags after args", "", []string{"check", pol, "testdata/soil/warn.csv", "--strict"}, 1, nil},
+		{"standard input", string(good), []string{"check", pol, "-"}, 0, []string{"10 rows"}},
+		{"several files", "", []string{"check", pol, "testdata/soil/good.csv", "testdata/soil/bad.csv"}, 1, []string{"18 rows from 2 files", "testdata/soil/bad.csv"}},
+		{"glob", "", []string{"check", pol, "testdata/soil/batches/*.csv"}, 0, []string{"13 rows from 2 files"}},
+		{"no rows listed", "", []string{"check", "--max-rows-listed", "0", pol, "testdata/soil/bad.csv"}, 1, []string{"verdict: FAIL"}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			got := assay(t, tt.stdin, tt.args...)
+			if got.code != tt.code {
+				t.Fatalf("exit code %d, want %d\nstdout:\n%s\nstderr:\n%s", got.code, tt.code, got.stdout, got.stderr)
+			}
+			for _, w := range tt.want {
+				if !strings.Contains(got.stdout, w) {
+					t.Errorf("stdout lacks %q:\n%s", w, got.stdout)
+				}
+			}
+		})
+	}
+}
+
+// TestTrouble checks that every kind of bad input ends with exit code 2
+// and a message that names the place.
+func TestTrouble(t *testing.T) {
+	dir := t.TempDir()
+	truncated := filepath.Join(dir, "truncated.parquet")
+	writeParquet(t, truncated)
+	data, err := os.ReadFile(truncated)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(truncated, data[:len(data)/2], 0o644); err != nil {
+		t.Fatal(err)
+	}
+	tests := []struct {
+		name string
+		args []string
+		want []string // substrings of stderr
+	}{
+		{"ragged row", []string{"check", pol, "testdata/soil/ragged.csv"}, []string{"ragged.csv:3"}},
+		{"unterminated quote", []string{"check", pol, "testdata/soil/unterminated.csv"}, []string{"unterminated.csv:3"}},
+		{"invalid utf-8", []string{"check", pol, "testdata/soil/badutf8.csv"}, []string{"badutf8.csv:3"}},
+		{"empty file", []string{"check", pol, "testdata/soil/empty.csv"}, []string{"empty.csv"}},
+		{"text named parquet", []string{"check", pol, "testdata/soil/notparquet.parquet"}, []string{"notparquet.parquet"}},
+		{"truncated parquet", []string{"check", pol, truncated}, []string{"truncated.parquet"}},
+		{"missing file", []string{"check", pol, "testdata/soil/nothere.csv"}, []string{"nothere.csv"}},
+		{"glob matching nothing", []string{"check", pol, "testdata/soil/none-*.csv"}, []string{"none-*.csv"}},
+		{"unknown column", []string{"check", "testdata/soil/typo.yaml", "testdata/soil/good.csv"}, []string{"typo.yaml:3:3", `did you mean "moisture_pct"`}},
+		{"bad policy", []string{"check", "testdata/soil/badpolicy.yaml", "testdata/soil/good.csv"}, []string{"badpolicy.yaml:4:11", "badpolicy.yaml:5:5", `"maximum"`, "badpolicy.yaml:6"}},
+		{"missing policy", []string{"check", "testdata/soil/nopolicy.yaml", "testdata/soil/good.csv"}, []string{"nopolicy.yaml"}},
+		{"no data", []string{"check", pol}, []string{"names no data"}},
+		{"unknown format", []string{"check", "--format", "xml", pol, "testdata/soil/good.csv"}, []string{"--format"}},
+		{"unknown flag", []string{"check", "--fast", pol}, []string{"-fast"}},
+		{"unknown command", []string{"chek"}, []string{`unknown command "chek"`}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			got := assay(t, "", tt.args...)
+			if got.code != 2 {
+				t.Fatalf("exit code %d, want 2\nstdout:\n%s\nstderr:\n%s", got.code, got.stdout, got.stderr)
+			}
+			for _, w := range tt.want {
+				if !strings.Contains(got.stderr, w) {
+					t.Errorf("stderr lacks %q:\n%s", w, got.stderr)
+				}
+			}
+			if strings.Contains(got.stderr, "panic") || strings.Contains(got.stderr, "goroutine ") {
+				t.Errorf("stderr shows a panic:\n%s", got.stderr)
+			}
+		})
+	}
+}
+
+// TestOutputFile checks that --output writes the whole report and that a
+// run ending in trouble leaves no file behind.
+func TestOutputFile(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "report.json")
+	got := assay(t, "", "check", pol, "testdata/soil/bad.csv", "--format", "json", "--output", out)
+	if got.code != 1 || got.stdout != "" {
+		t.Fatalf("exit code %d, stdout %q, stderr %s", got.code, got.stdout, got.stderr)
+	}
+	var rep map[string]any
+	data, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(data, &rep); err != nil {
+		t.Fatalf("report is not JSON: %v", err)
+	}
+	if rep["verdict"] != "fail" {
+		t.Errorf("verdict %v, want fail", rep["verdict"])
+	}
+
+	out2 := filepath.Join(dir, "never.json")
+	got = assay(t, "", "check", pol, "testdata/soil/ragged.csv", "--format", "json", "--output", out2)
+	if got.code != 2 {
+		t.Fatalf("exit code %d, want 2", got.code)
+	}
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(entries) != 1 {
+		var names []string
+		for _, e := range entries {
+			names = append(names, e.Name())
+		}
+		t.Errorf("folder holds %v, want only report.json", names)
+	}
+}
+
+// TestBinaryFormats runs the policy on the good rows as Parquet, Arrow IPC
+// file and Arrow IPC stream.
+func TestBinaryFormats(t *testing.T) {
+	dir := t.TempDir()
+	pq := filepath.Join(dir, "good.parquet")
+	writeParquet(t, pq)
+	arrowFile := filepath.Join(dir, "good.arrow")
+	arrowStream := filepath.Join(dir, "good.arrows")
+	writeIPC(t, arrowFile, arrowStream)
+	for _, path := range []string{pq, arrowFile, arrowStream} {
+		got := assay(t, "", "check", pol, path, "--format", "json")
+		if got.code != 0 {
+			t.Fatalf("%s: exit code %d\n%s\n%s", path, got.code, got.stdout, got.stderr)
+		}
+		var rep struct {
+			Rows int64 `json:"rows"`
+		}
+		if err := json.Unmarshal([]byte(got.stdout), &rep); err != nil {
+			t.Fatal(err)
+		}
+		if rep.Rows != 4 {
+			t.Errorf("%s: %d rows, want 4", path, rep.Rows)
+		}
+	}
+}
+
+// TestGolden compares the text and JSON reports of the failing fixture
+// with golden files (run with -update to rewrite them). The start time and
+// duration are blanked, as they change with every run.
+func TestGolden(t *testing.T) {
+	for _, format := range []string{"text", "json"} {
+		t.Run(format, func(t *testing.T) {
+			var out, errb bytes.Buffer
+			code := run(context.Background(), []string{"check", pol, "testdata/soil/bad.csv", "--format", format}, nil, &out, &errb)
+			if code != 1 {
+				t.Fatalf("exit code %d, stderr %s", code, errb.String())
+			}
+			got := out.Bytes()
+			if format == "json" {
+				got = blankTimes(t, got)
+			}
+			golden := filepath.Join("testdata", "soil", "bad."+format+".golden")
+			if *update {
+				if err := os.WriteFile(golden, got, 0o644); err != nil {
+					t.Fatal(err)
+				}
+			}
+			want, err := os.ReadFile(golden)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.Equal(got, want) {
+				t.Errorf("report differs from %s (run go test -update to accept):\ngot:\n%s", golden, got)
+			}
+		})
+	}
+}
+
+func blankTimes(t *testing.T, data []byte) []byte {
+	t.Helper()
+	var rep map[string]json.RawMessage
+	if err := json.Unmarshal(data, &rep); err != nil {
+		t.Fatalf("report is not JSON: %v", err)
+	}
+	for _, k := range []string{"started", "duration_seconds"} {
+		if _, ok := rep[k]; !ok {
+			t.Fatalf("report lacks %q", k)
+		}
+	}
+	lines := strings.Split(string(data), "\n")
+	for i, l := range lines {
+		if strings.HasPrefix(l, `  "started":`) || strings.HasPrefix(l, `  "duration_seconds":`) {
+			key := l[:strings.Index(l, ":")]
+			lines[i] = key + `: "(blanked)",`
+		}
+	}
+	return []byte(strings.Join(lines, "\n"))
+}
+
+// goodRecord builds four rows that pass the soil policy.
+func goodRecord(mem memory.Allocator) arrow.RecordBatch {
+	schema := arrow.NewSchema([]arrow.Field{
+		{Name: "probe", Type: arrow.BinaryTypes.String},
+		{Name: "depth_cm", Type: arrow.PrimitiveTypes.Int64},
+		{Name: "moisture_pct", Type: arrow.PrimitiveTypes.Float64, Nullable: true},
+		{Name: "temp_c", Type: arrow.PrimitiveTypes.Float64},
+	}, nil)
+	b := array.NewRecordBuilder(mem, schema)
+	defer b.Release()
+	b.Field(0).(*array.StringBuilder).AppendValues([]string{"P01", "P01", "P01", "P02"}, nil)
+	b.Field(1).(*array.Int64Builder).AppendValues([]int64{10, 30, 60, 10}, nil)
+	b.Field(2).(*array.Float64Builder).AppendValues([]float64{31.5, 35, 38.2, 28.4}, nil)
+	b.Field(3).(*array.Float64Builder).AppendValues([]float64{14.2, 12.9, 11, 15.1}, nil)
+	return b.NewRecordBatch()
+}
+
+func writeParquet(t *testing.T, path string) {
+	t.Helper()
+	rec := goodRecord(memory.DefaultAllocator)
+	defer rec.Release()
+	f, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w, err := pqarrow.NewFileWriter(rec.Schema(), f, nil, pqarrow.DefaultWriterProps())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Write(rec); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func writeIPC(t *testing.T, filePath, streamPath string) {
+	t.Helper()
+	rec := goodRecord(memory.DefaultAllocator)
+	defer rec.Release()
+	f, err := os.Create(filePath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fw, err := ipc.NewFileWriter(f, ipc.WithSchema(rec.Schema()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := fw.Write(rec); err != nil {
+		t.Fatal(err)
+	}
+	if err := fw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	f.Close()
+	s, err := os.Create(streamPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sw := ipc.NewWriter(s, ipc.WithSchema(rec.Schema()))
+	if err := sw.Write(rec); err != nil {
+		t.Fatal(err)
+	}
+	if err := sw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	s.Close()
+}
