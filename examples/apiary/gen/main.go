@@ -21,7 +21,7 @@
 // flags; a test fails when the two differ.
 package main
 
-//go:generate go run . -o ../hives.csv
+//go:generate go run . -o ../hives.csv -inspections ../inspections
 
 import (
 	"bufio"
@@ -167,25 +167,39 @@ type reading struct {
 }
 
 func main() {
-	out := flag.String("o", "hives.csv", "write the CSV to `path` (- for standard output)")
-	rows := flag.Int("rows", defaultRows, "write `n` data rows (40 hives per hour)")
+	out := flag.String("o", "hives.csv", "write the hourly readings to `path` (- for standard output)")
+	rows := flag.Int("rows", defaultRows, "write `n` rows of readings (40 hives per hour)")
 	seed := flag.Uint64("seed", defaultSeed, "random `seed`; the same flags always give the same bytes")
+	insp := flag.String("inspections", "", "also write the week's inspection records, one CSV per yard, into `folder`")
 	flag.Parse()
 	if flag.NArg() > 0 {
 		fmt.Fprintf(os.Stderr, "gen: unexpected argument %q\n", flag.Arg(0))
 		flag.Usage()
 		os.Exit(2)
 	}
-	if err := writeFile(*out, *rows, *seed); err != nil {
+	if err := run(*out, *rows, *seed, *insp); err != nil {
 		fmt.Fprintf(os.Stderr, "gen: %v\n", err)
 		os.Exit(1)
 	}
 }
 
-// writeFile writes the CSV to path, or to standard output for "-".
-func writeFile(path string, rows int, seed uint64) (err error) {
+// run writes the readings to out and, when dir is not empty, the
+// inspection records into dir.
+func run(out string, rows int, seed uint64, dir string) error {
+	err := writeFile(out, func(w io.Writer) error { return generate(w, rows, seed) })
+	if err != nil || dir == "" {
+		return err
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	return writeInspections(dir, seed)
+}
+
+// writeFile writes what gen writes to path, or to standard output for "-".
+func writeFile(path string, gen func(io.Writer) error) (err error) {
 	if path == "-" {
-		return generate(os.Stdout, rows, seed)
+		return gen(os.Stdout)
 	}
 	f, err := os.Create(path)
 	if err != nil {
@@ -196,22 +210,18 @@ func writeFile(path string, rows int, seed uint64) (err error) {
 			err = cerr
 		}
 	}()
-	if err := generate(f, rows, seed); err != nil {
+	if err := gen(f); err != nil {
 		return fmt.Errorf("write %s: %w", path, err)
 	}
 	return nil
 }
 
-// generate writes the header and rows data rows, hour by hour, the hives of
-// each hour in yard order.
+// generate writes the header and rows rows of readings, hour by hour, the
+// hives of each hour in yard order.
 func generate(w io.Writer, rows int, seed uint64) error {
-	hives := newHives()
+	r, hives := cooperative(seed)
 	if need := (lastPlantHour + 1) * len(hives); rows < need {
 		return fmt.Errorf("-rows %d is too few: the planted problems need at least %d rows", rows, need)
-	}
-	r := rand.New(rand.NewPCG(seed, pcgStream))
-	for _, h := range hives {
-		h.init(r)
 	}
 	hours := (rows + len(hives) - 1) / len(hives)
 	days := newWeather(r, hours/24+2)
@@ -241,16 +251,20 @@ func generate(w io.Writer, rows int, seed uint64) error {
 	return bw.Flush()
 }
 
-// newHives lists the cooperative's hives in yard order.
-func newHives() []*hive {
+// cooperative returns the random source of seed and the cooperative's
+// hives, in yard order, with their traits drawn from it.
+func cooperative(seed uint64) (*rand.Rand, []*hive) {
+	r := rand.New(rand.NewPCG(seed, pcgStream))
 	var hs []*hive
 	for i := range yards {
 		y := &yards[i]
 		for k := range y.hives {
-			hs = append(hs, &hive{id: fmt.Sprintf("H-%03d", y.firstID+k), yard: y, firmware: y.firmware})
+			h := &hive{id: fmt.Sprintf("H-%03d", y.firstID+k), yard: y, firmware: y.firmware}
+			h.init(r)
+			hs = append(hs, h)
 		}
 	}
-	return hs
+	return r, hs
 }
 
 // init draws the hive's fixed traits and starting state.

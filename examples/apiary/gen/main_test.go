@@ -13,14 +13,39 @@ import (
 
 const committed = "../hives.csv"
 
-// TestCommittedFileIsCurrent regenerates the demo data with the default
-// flags and compares it with the committed file byte for byte.
-func TestCommittedFileIsCurrent(t *testing.T) {
-	path := filepath.Join(t.TempDir(), "hives.csv")
-	if err := writeFile(path, defaultRows, defaultSeed); err != nil {
+// TestCommittedFilesAreCurrent regenerates the demo data with the flags of
+// the go:generate line and compares it with the committed files byte for
+// byte.
+func TestCommittedFilesAreCurrent(t *testing.T) {
+	tmp := t.TempDir()
+	if err := run(filepath.Join(tmp, "hives.csv"), defaultRows, defaultSeed, filepath.Join(tmp, "inspections")); err != nil {
 		t.Fatal(err)
 	}
-	got, err := os.ReadFile(path)
+	want, err := filepath.Glob("../inspections/*.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := filepath.Glob(filepath.Join(tmp, "inspections", "*.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) != len(yards) || len(want) != len(yards) {
+		t.Errorf("generated %d inspection files, committed %d, want one per yard (%d)", len(got), len(want), len(yards))
+	}
+	for _, path := range append([]string{committed}, want...) {
+		rel, err := filepath.Rel("..", path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		compareFiles(t, filepath.Join(tmp, rel), path)
+	}
+}
+
+// compareFiles fails the test when the generated file differs from the
+// committed one.
+func compareFiles(t *testing.T, generated, committed string) {
+	t.Helper()
+	got, err := os.ReadFile(generated)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -29,7 +54,7 @@ func TestCommittedFileIsCurrent(t *testing.T) {
 		t.Fatal(err)
 	}
 	if !bytes.Equal(got, want) {
-		t.Fatalf("generated data differs from %s at line %d: run `go generate ./examples/apiary/...` and commit the file",
+		t.Errorf("generated data differs from %s at line %d: run `go generate ./examples/apiary/...` and commit the files",
 			committed, firstDifferentLine(got, want))
 	}
 	if len(want) >= 1<<20 {
@@ -78,20 +103,7 @@ func TestGenerate(t *testing.T) {
 // by hand would, and counts each planted problem. The thresholds quoted are
 // those of ../policy.yaml.
 func TestPlantedProblems(t *testing.T) {
-	f, err := os.Open(committed)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
-	head, rows := recs[0], recs[1:]
-	col := map[string]int{}
-	for i, name := range head {
-		col[name] = i
-	}
+	col, rows := readCSV(t, committed)
 	if len(rows) != defaultRows {
 		t.Fatalf("%d rows, want %d", len(rows), defaultRows)
 	}
@@ -214,4 +226,78 @@ func TestPlantedProblems(t *testing.T) {
 	if mean := voltSum / float64(len(rows)); mean < 3.5 || mean >= 3.7 {
 		t.Errorf("battery mean %.3f V, want in [3.5, 3.7) so that columns.battery_v.summary.mean warns", mean)
 	}
+}
+
+// TestPlantedInspections counts the planted problems of the inspection
+// files, with the thresholds of ../inspections.yaml.
+func TestPlantedInspections(t *testing.T) {
+	files, err := filepath.Glob("../inspections/*.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	date := regexp.MustCompile(`^[0-9]{4}-[0-9]{2}-[0-9]{2}$`)
+	var rows, badDates, mites, queenless int
+	for _, path := range files {
+		col, recs := readCSV(t, path)
+		for _, row := range recs {
+			rows++
+			hive := row[col["hive_id"]]
+			if d := row[col["inspected_on"]]; !date.MatchString(d) {
+				badDates++
+				if hive != dayFirstHive || filepath.Base(path) != "south-orchard.csv" {
+					t.Errorf("%s: unexpected date %q of hive %s", path, d, hive)
+				}
+			}
+			v, err := strconv.ParseFloat(row[col["varroa_per_100"]], 64)
+			if err != nil {
+				t.Errorf("%s: varroa count %q: %v", path, row[col["varroa_per_100"]], err)
+			}
+			if v > 3 {
+				mites++
+				if hive != mitesHiveA && hive != mitesHiveB {
+					t.Errorf("%s: hive %s has %v mites per 100 bees", path, hive, v)
+				}
+			}
+			if row[col["queen_seen"]] == "false" && row[col["brood_frames"]] == "0" {
+				queenless++
+			}
+		}
+	}
+	counts := []struct {
+		what      string
+		got, want int
+	}{
+		{"inspections (table.rows passes at 30 or more)", rows, 40},
+		{"dates not written YYYY-MM-DD (columns.inspected_on.type fails)", badDates, 1},
+		{"colonies above 3 mites per 100 bees (columns.varroa_per_100.maximum warns up to 10%)", mites, 2},
+		{"no queen seen and no brood (rows.queen-or-brood passes)", queenless, 0},
+	}
+	for _, c := range counts {
+		if c.got != c.want {
+			t.Errorf("%s: got %d, want %d", c.what, c.got, c.want)
+		}
+	}
+}
+
+// readCSV reads a committed CSV file and returns the column indices by name
+// and the data rows.
+func readCSV(t *testing.T, path string) (map[string]int, [][]string) {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	recs, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	if len(recs) == 0 {
+		t.Fatalf("%s is empty", path)
+	}
+	col := map[string]int{}
+	for i, name := range recs[0] {
+		col[name] = i
+	}
+	return col, recs[1:]
 }
