@@ -11,7 +11,8 @@ import (
 )
 
 // Pos is a position in a policy file. Line and Col are 1-based; a zero Pos
-// means "no position" (a rule made by default rather than written).
+// means "no position" (a rule made by default rather than written), and a
+// zero Col with a Line means the column is unknown (some YAML syntax errors).
 type Pos struct {
 	File string
 	Line int
@@ -22,6 +23,10 @@ func (p Pos) String() string {
 	switch {
 	case p.Line == 0:
 		return p.File
+	case p.Col == 0 && p.File == "":
+		return fmt.Sprintf("%d", p.Line)
+	case p.Col == 0:
+		return fmt.Sprintf("%s:%d", p.File, p.Line)
 	case p.File == "":
 		return fmt.Sprintf("%d:%d", p.Line, p.Col)
 	}
@@ -244,6 +249,11 @@ type RowSpec struct {
 	Name    string
 	Expr    string
 	ExprPos Pos // position of the expression text, for compile errors
+
+	// at[i] is where rune i of Expr was written in the policy file, and
+	// at[len(Expr in runes)] is just past its end; nil when unknown. Read it
+	// through PosAt.
+	at []Pos
 }
 
 // RowCountSpec: the number of data rows; bounds live in the Tolerance.
@@ -275,10 +285,11 @@ func (RequiredSpec) Kind() Kind { return KindRequired }
 
 // Column is a column as the policy declares it.
 type Column struct {
-	Name string
-	Type Type // TypeAny when not declared
-	Unit string
-	Pos  Pos
+	Name        string
+	Type        Type // TypeAny when not declared
+	Unit        string
+	Description string
+	Pos         Pos
 }
 
 // Input holds how the policy asks for its data to be read. Zero values mean
