@@ -1,0 +1,180 @@
+package gof
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// Reservoir keeps a uniform random sample of at most Size values from a
+// stream of unknown length, in O(Size) memory: after n values, every subset
+// of min(n, Size) of them is equally likely to be the sample. It uses
+// Algorithm L of Li, K.-H. (1994), "Reservoir-sampling algorithms of time
+// complexity O(n(1 + log(N/n)))", ACM TOMS 20(4):481-493, which improves
+// Vitter's (1985) Algorithm R ("Random sampling with a reservoir", ACM TOMS
+// 11(1):37-57) by drawing how many values to skip instead of one random
+// number per value: O(Size (1 + log(n/Size))) random draws in all.
+//
+// Reservoirs filled from disjoint shards merge into a uniform sample of
+// the union (Merge). Everything is driven by the generator seeded in
+// NewReservoir, so the sample repeats for the same seed and input order.
+// Give each shard its own seed: reservoirs with equal seeds pick the same
+// positions, and their samples are then not independent.
+type Reservoir struct {
+	size  int
+	seen  int64
+	items []float64
+	rng   *rand.Rand
+	// Algorithm L state once full: w is the largest of the size smallest
+	// uniform keys of the values seen, next the 1-based position of the
+	// next value to enter.
+	w    float64
+	next int64
+}
+
+// NewReservoir returns an empty reservoir of capacity size (at least 1)
+// whose random choices come from PCG seeded with seed.
+func NewReservoir(size int, seed uint64) (*Reservoir, error) {
+	if size < 1 {
+		return nil, fmt.Errorf("reservoir size must be at least 1, got %d", size)
+	}
+	return &Reservoir{
+		size:  size,
+		items: make([]float64, 0, min(size, 1<<16)),
+		rng:   rand.New(rand.NewPCG(seed, 0x7265736572766f69)),
+	}, nil
+}
+
+// Size is the reservoir's capacity.
+func (r *Reservoir) Size() int { return r.size }
+
+// Seen is the number of values offered so far (merged reservoirs included).
+func (r *Reservoir) Seen() int64 { return r.seen }
+
+// Complete reports whether the reservoir holds every value seen, that is,
+// whether no sampling has happened.
+func (r *Reservoir) Complete() bool { return r.seen <= int64(r.size) }
+
+// Values returns a copy of the sample: min(Seen, Size) values, in no
+// particular order.
+func (r *Reservoir) Values() []float64 { return slices.Clone(r.items) }
+
+// Add offers one value.
+func (r *Reservoir) Add(v float64) {
+	r.AddAll([]float64{v})
+}
+
+// AddAll offers the values in order. Once the reservoir is full, runs of
+// values that Algorithm L skips cost nothing.
+func (r *Reservoir) AddAll(vs []float64) {
+	for len(vs) > 0 {
+		if len(r.items) < r.size {
+			take := min(r.size-len(r.items), len(vs))
+			r.items = append(r.items, vs[:take]...)
+			r.seen += int64(take)
+			vs = vs[take:]
+			if len(r.items) == r.size {
+				r.resume()
+			}
+			continue
+		}
+		// Skip to the value at position next, if it is in this batch.
+		gap := r.next - r.seen - 1
+		if gap >= int64(len(vs)) {
+			r.seen += int64(len(vs))
+			return
+		}
+		r.seen += gap + 1
+		r.items[r.rng.IntN(r.size)] = vs[gap]
+		vs = vs[gap+1:]
+		r.w *= math.Exp(math.Log(r.uniform()) / float64(r.size))
+		r.skip()
+	}
+}
+
+// uniform returns a draw in (0, 1].
+func (r *Reservoir) uniform() float64 { return 1 - r.rng.Float64() }
+
+// skip sets next past a geometric number of values: each value enters
+// with probability w, so the gap is floor(ln U / ln(1 - w)).
+func (r *Reservoir) skip() {
+	g := math.Floor(math.Log(r.uniform()) / math.Log1p(-r.w))
+	if !(g < 1<<62) || r.seen > math.MaxInt64-(1<<62) {
+		r.next = math.MaxInt64
+		return
+	}
+	r.next = r.seen + int64(g) + 1
+}
+
+// resume starts Algorithm L on a full reservoir holding a uniform sample of
+// the seen values. Think of every value as carrying an independent uniform
+// key and of the sample as the values with the size smallest keys; w, the
+// largest of those keys, is then the size-th smallest of Seen uniforms,
+// Beta(size, Seen - size + 1) distributed and independent of which values
+// were kept. For Seen = Size this is Li's initial w = U^(1/size).
+func (r *Reservoir) resume() {
+	k := float64(r.size)
+	if r.seen == int64(r.size) {
+		r.w = math.Exp(math.Log(r.uniform()) / k)
+	} else {
+		r.w = distuv.Beta{Alpha: k, Beta: float64(r.seen) - k + 1, Src: r.rng}.Rand()
+	}
+	r.skip()
+}
+
+// Merge folds other, filled from values disjoint from the receiver's, into
+// the receiver, leaving other unchanged. If both together saw at most Size
+// values the receiver keeps them all. Otherwise the merged sample must be
+// a uniform Size-subset of all nA + nB values; the number j of them that
+// come from the receiver's values is then hypergeometric (Size draws
+// without replacement from nA of one kind and nB of the other), and given
+// j, those j are a uniform subset of the receiver's values, which a uniform
+// j-subset of its uniform sample is (j <= min(nA, Size) always holds); the
+// same for the other's Size - j. So Merge draws j by Size sequential
+// draws weighted by the counts still unseen, takes uniform subsets of the
+// two samples by partial Fisher-Yates shuffles, and restarts Algorithm L
+// for the combined count (see resume). The random draws come from the
+// receiver's generator.
+func (r *Reservoir) Merge(other *Reservoir) error {
+	if other.size != r.size {
+		return fmt.Errorf("cannot merge reservoirs of sizes %d and %d", r.size, other.size)
+	}
+	total := r.seen + other.seen
+	if total <= int64(r.size) {
+		r.items = append(r.items, other.items...)
+		r.seen = total
+		if len(r.items) == r.size {
+			r.resume()
+		}
+		return nil
+	}
+	remA, remB := r.seen, other.seen
+	j := 0
+	for range r.size {
+		if r.rng.Int64N(remA+remB) < remA {
+			j++
+			remA--
+		} else {
+			remB--
+		}
+	}
+	a := r.pick(r.items, j)
+	b := r.pick(other.items, r.size-j)
+	r.items = append(a, b...)
+	r.seen = total
+	r.resume()
+	return nil
+}
+
+// pick returns a uniform random subset of k of the values, as a new slice.
+func (r *Reservoir) pick(values []float64, k int) []float64 {
+	c := slices.Clone(values)
+	for i := range k {
+		j := i + r.rng.IntN(len(c)-i)
+		c[i], c[j] = c[j], c[i]
+	}
+	return c[:k]
+}
