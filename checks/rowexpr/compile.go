@@ -1,0 +1,310 @@
+package rowexpr
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"reflect"
+	"slices"
+	"sort"
+	"strings"
+	"time"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/expr-lang/expr"
+	"github.com/expr-lang/expr/builtin"
+	"github.com/expr-lang/expr/conf"
+	"github.com/expr-lang/expr/file"
+)
+
+// Error is an expression that does not compile. Line and Col locate the
+// problem inside the expression text, both 1-based, Col counting
+// characters (Unicode code points); both are 0 when the problem concerns
+// the whole expression (for example, it does not give a boolean).
+type Error struct {
+	Line, Col int
+	Msg       string
+}
+
+func (e *Error) Error() string {
+	if e.Line == 0 {
+		return e.Msg
+	}
+	return fmt.Sprintf("%d:%d: %s", e.Line, e.Col, e.Msg)
+}
+
+// Path says how a Program evaluates.
+type Path int
+
+// Evaluation paths, from fastest to slowest.
+const (
+	// Vectorized: every node runs over whole column vectors, without
+	// allocating per row.
+	Vectorized Path = iota
+	// Mixed: some subexpressions (Program.Fallbacks) run on expr's virtual
+	// machine row by row; the rest is vectorized.
+	Mixed
+	// Interpreted: the whole expression runs on expr's virtual machine, row
+	// by row, allocating.
+	Interpreted
+)
+
+func (p Path) String() string {
+	switch p {
+	case Vectorized:
+		return "vectorized"
+	case Mixed:
+		return "mixed"
+	case Interpreted:
+		return "interpreted"
+	}
+	return fmt.Sprintf("Path(%d)", int(p))
+}
+
+// Program is an expression compiled against column types. It is immutable
+// and safe for concurrent use; each goroutine evaluates it with its own
+// Evaluator.
+type Program struct {
+	src       string
+	cols      []column // the columns the expression reads, in order of appearance
+	root      *plan
+	path      Path
+	fallbacks []string
+	env       map[string]any // every readable column, with a zero value of its Go type
+	gap       bool           // root is a comparison whose operands measure a distance
+}
+
+// column is a column the expression reads.
+type column struct {
+	name  string
+	kind  kind
+	dtype arrow.DataType
+}
+
+// Columns lists the columns the expression reads, in order of first
+// appearance.
+func (p *Program) Columns() []string {
+	names := make([]string, len(p.cols))
+	for i, c := range p.cols {
+		names[i] = c.name
+	}
+	return names
+}
+
+// Path says whether the expression runs vectorized, in part on expr's
+// virtual machine, or wholly on it.
+func (p *Program) Path() Path { return p.path }
+
+// Fallbacks lists the subexpressions that run on expr's virtual machine,
+// as expr prints them; nil when the Program is Vectorized.
+func (p *Program) Fallbacks() []string { return slices.Clone(p.fallbacks) }
+
+// Measured reports whether the expression is a single comparison between
+// numbers or instants (<, <=, >, >=, ==), whose false rows Evaluator.Eval
+// scores by how far the comparison is from holding.
+func (p *Program) Measured() bool { return p.gap }
+
+func (p *Program) String() string { return p.src }
+
+// Compile parses and type-checks src with expr against the given columns
+// (Arrow types int64, float64, utf8, bool, timestamp of any unit, date32),
+// requiring a boolean result, and prepares its evaluation. Type errors are
+// expr's own, located inside src; an unknown name gets a "did you mean"
+// hint from the column names.
+func Compile(src string, columns map[string]arrow.DataType) (prog *Program, err error) {
+	env := make(map[string]any, len(columns))
+	unreadable := make(map[string]arrow.DataType)
+	for name, dt := range columns {
+		if k := kindOf(dt); k != kindNone {
+			env[name] = zeroOf(k)
+		} else {
+			unreadable[name] = dt
+		}
+	}
+	// expr's parser and checker are not ours: turn a panic in them into an
+	// error rather than stop the run.
+	defer func() {
+		if r := recover(); r != nil {
+			prog, err = nil, &Error{Msg: fmt.Sprintf("expression could not be compiled: %v", r)}
+		}
+	}()
+	// The optimized compile reports what the optimizer finds too (a
+	// constant division by zero); the plain one keeps the checked tree as
+	// written, which is what the vectorizer walks.
+	if _, err := expr.Compile(src, options(env, true)...); err != nil {
+		return nil, compileError(err, env, unreadable)
+	}
+	plain, err := expr.Compile(src, options(env, false)...)
+	if err != nil {
+		return nil, compileError(err, env, unreadable)
+	}
+	cfg := conf.CreateNew()
+	for _, o := range options(env, false) {
+		o(cfg)
+	}
+	cfg.Expect, cfg.ExpectAny = reflect.Invalid, false
+	cfg.Check()
+	pl := &planner{src: plain.Source(), cfg: cfg, types: columns, env: env, index: map[string]int{}}
+	root, err := pl.plan(plain.Node())
+	if err != nil {
+		return nil, err
+	}
+	p := &Program{src: src, cols: pl.cols, root: root, fallbacks: pl.fallbacks, env: env}
+	switch {
+	case root.op == opVM:
+		p.path = Interpreted
+	case len(pl.fallbacks) > 0:
+		p.path = Mixed
+	}
+	p.gap = root.op == opCompare && root.cmp != opNe &&
+		(root.args[0].kind.numeric() || root.args[0].kind == kindTime)
+	return p, nil
+}
+
+// options are the expr options every compile of an expression uses.
+func options(env map[string]any, optimize bool) []expr.Option {
+	opts := []expr.Option{expr.Env(env), expr.AsBool(), expr.Optimize(optimize)}
+	for _, f := range mathFuncs {
+		opts = append(opts, expr.Function(f.name, f.call, new(func(float64) float64)))
+	}
+	return opts
+}
+
+// mathFunc is a function of one number that expressions may call, in
+// addition to expr's builtins.
+type mathFunc struct {
+	name string
+	fn   func(float64) float64
+}
+
+// call runs fn for expr's virtual machine, which passes integers as they are.
+func (f mathFunc) call(args ...any) (any, error) {
+	x, ok := toFloat(args[0])
+	if !ok {
+		return nil, fmt.Errorf("%s: argument is %T, not a number", f.name, args[0])
+	}
+	return f.fn(x), nil
+}
+
+var mathFuncs = []mathFunc{
+	{"sqrt", math.Sqrt}, // NaN below 0
+	{"log", math.Log},   // natural logarithm; -Inf at 0, NaN below
+	{"exp", math.Exp},
+}
+
+func mathFuncNamed(name string) (mathFunc, bool) {
+	for _, f := range mathFuncs {
+		if f.name == name {
+			return f, true
+		}
+	}
+	return mathFunc{}, false
+}
+
+// kindOf is how an expression reads a column of Arrow type dt.
+func kindOf(dt arrow.DataType) kind {
+	switch dt.ID() {
+	case arrow.INT64:
+		return kindInt
+	case arrow.FLOAT64:
+		return kindFloat
+	case arrow.STRING:
+		return kindString
+	case arrow.BOOL:
+		return kindBool
+	case arrow.TIMESTAMP, arrow.DATE32:
+		return kindTime
+	}
+	return kindNone
+}
+
+// zeroOf is a value of the Go type expr sees for a column of kind k.
+func zeroOf(k kind) any {
+	switch k {
+	case kindBool:
+		return false
+	case kindInt:
+		return int64(0)
+	case kindFloat:
+		return 0.0
+	case kindString:
+		return ""
+	}
+	return time.Time{}
+}
+
+// compileError turns an expr error into an Error, 1-based, with a hint for
+// an unknown name.
+func compileError(err error, env map[string]any, unreadable map[string]arrow.DataType) error {
+	var fe *file.Error
+	if !errors.As(err, &fe) {
+		return &Error{Msg: err.Error()}
+	}
+	e := &Error{Msg: fe.Message}
+	if fe.Line > 0 {
+		e.Line, e.Col = fe.Line, fe.Column+1
+	}
+	if name, ok := strings.CutPrefix(fe.Message, "unknown name "); ok {
+		if dt, ok := unreadable[name]; ok {
+			e.Msg = fmt.Sprintf("column %s has type %s, which expressions cannot read", name, dt)
+		} else if s := suggest(name, candidates(env)); s != "" {
+			e.Msg += fmt.Sprintf(" (did you mean %s?)", s)
+		}
+	}
+	return e
+}
+
+// candidates are the names an unknown name may be a misspelling of: the
+// columns and the functions.
+func candidates(env map[string]any) []string {
+	var names []string
+	for name := range env {
+		names = append(names, name)
+	}
+	for _, f := range mathFuncs {
+		names = append(names, f.name)
+	}
+	for _, f := range builtin.Builtins {
+		names = append(names, f.Name)
+	}
+	sort.Strings(names)
+	return names
+}
+
+// suggest returns the candidate closest to name by edit distance, if it is
+// close: at most 2 edits, and fewer than half of name's characters. Ties go
+// to the first in candidates' order. (A local helper: package rules has no
+// shared one yet.)
+func suggest(name string, candidates []string) string {
+	best, bestD := "", 3
+	for _, c := range candidates {
+		d := editDistance(name, c)
+		if d < bestD && 2*d < len([]rune(name)) {
+			best, bestD = c, d
+		}
+	}
+	return best
+}
+
+// editDistance is the Levenshtein distance between a and b in code points
+// (insertions, deletions and substitutions each cost 1).
+func editDistance(a, b string) int {
+	x, y := []rune(a), []rune(b)
+	prev := make([]int, len(y)+1)
+	cur := make([]int, len(y)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(x); i++ {
+		cur[0] = i
+		for j := 1; j <= len(y); j++ {
+			sub := prev[j-1]
+			if x[i-1] != y[j-1] {
+				sub++
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, sub)
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(y)]
+}
