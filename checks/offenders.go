@@ -4,8 +4,12 @@ import (
 	"container/heap"
 	"math"
 	"sort"
+	"strconv"
+	"strings"
+	"time"
 
 	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
 
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -68,6 +72,21 @@ func (o *Offenders) Report() *report.Offending {
 	return &report.Offending{Count: o.Count, Rows: rows}
 }
 
+// offending is the listing of a result whose exact count of offending rows
+// is count: o's kept rows, worst first; nil when count is 0. count may
+// differ from o.Count when the count was filled in from elsewhere (see the
+// package doc) and o kept no rows.
+func offending(count int64, o *Offenders) *report.Offending {
+	if count == 0 {
+		return nil
+	}
+	rows := []report.Row{}
+	if r := o.Report(); r != nil {
+		rows = r.Rows
+	}
+	return &report.Offending{Count: count, Rows: rows}
+}
+
 // worse orders offending rows: higher score first, then lower row number.
 func worse(s1 float64, r1 int64, s2 float64, r2 int64) bool {
 	if s1 != s2 {
@@ -100,14 +119,20 @@ func RowAt(env *Env, b *source.Batch, i int, cols []int) report.Row {
 		Line:   b.Line(i),
 		Values: make(map[string]any, len(cols)),
 	}
-	if len(env.Sources) > 1 && b.Source < len(env.Sources) {
-		r.Source = env.Sources[b.Source]
-	}
+	r.Source = sourceName(env, b.Source)
 	for _, c := range cols {
 		name := b.Record.ColumnName(c)
 		r.Values[name] = cellValue(b, c, i)
 	}
 	return r
+}
+
+// sourceName names input file i for a listing, when there are several.
+func sourceName(env *Env, i int) string {
+	if len(env.Sources) > 1 && i < len(env.Sources) {
+		return env.Sources[i]
+	}
+	return ""
 }
 
 // cellValue is the value of one cell as a report shows it: nil for a
@@ -123,24 +148,70 @@ func cellValue(b *source.Batch, col, i int) any {
 
 // Value returns element i of arr as a plain Go value for reports: nil, bool,
 // int64, float64 (NaN and ±Inf as their names), or string (timestamps and
-// dates in RFC 3339).
+// dates in RFC 3339). Strings are copied: Arrow's point into the batch's
+// buffers, which are released after the batch.
 func Value(arr arrow.Array, i int) any {
 	if arr.IsNull(i) {
 		return nil
 	}
 	switch a := arr.(type) {
-	case interface{ Value(int) float64 }:
-		f := a.Value(i)
-		if math.IsNaN(f) || math.IsInf(f, 0) {
-			return a.(arrow.Array).ValueStr(i)
-		}
-		return f
-	case interface{ Value(int) int64 }:
+	case *array.Float64:
+		return float(a.Value(i))
+	case *array.Float32:
+		return float(float64(a.Value(i)))
+	case *array.Int64:
 		return a.Value(i)
-	case interface{ Value(int) bool }:
+	case *array.Int32:
+		return int64(a.Value(i))
+	case *array.Int16:
+		return int64(a.Value(i))
+	case *array.Int8:
+		return int64(a.Value(i))
+	case *array.Uint32:
+		return int64(a.Value(i))
+	case *array.Uint16:
+		return int64(a.Value(i))
+	case *array.Uint8:
+		return int64(a.Value(i))
+	case *array.Boolean:
 		return a.Value(i)
+	case *array.Timestamp:
+		return timeText(a.DataType(), int64(a.Value(i)))
+	case *array.Date32:
+		return timeText(a.DataType(), int64(a.Value(i)))
+	case *array.Date64:
+		return timeText(a.DataType(), int64(a.Value(i)))
 	case interface{ Value(int) string }:
-		return a.Value(i)
+		return strings.Clone(a.Value(i))
 	}
 	return arr.ValueStr(i)
+}
+
+// float is f for a report: its name when JSON has no literal for it.
+func float(f float64) any {
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		return strconv.FormatFloat(f, 'g', -1, 64)
+	}
+	return f
+}
+
+// timeText writes value v of a timestamp or date type dt: RFC 3339 with the
+// type's time zone (no offset when the type has none), YYYY-MM-DD for dates.
+func timeText(dt arrow.DataType, v int64) string {
+	switch t := dt.(type) {
+	case *arrow.TimestampType:
+		tm := arrow.Timestamp(v).ToTime(t.Unit)
+		if t.TimeZone == "" {
+			return tm.Format("2006-01-02T15:04:05.999999999")
+		}
+		if loc, err := t.GetZone(); err == nil {
+			tm = tm.In(loc)
+		}
+		return tm.Format(time.RFC3339Nano)
+	case *arrow.Date32Type:
+		return arrow.Date32(v).FormattedString()
+	case *arrow.Date64Type:
+		return arrow.Date64(v).FormattedString()
+	}
+	return strconv.FormatInt(v, 10)
 }

@@ -1,0 +1,36 @@
+package checks
+
+import (
+	"fmt"
+	"regexp"
+
+	"github.com/apache/arrow-go/v18/arrow"
+
+	"github.com/assay-project/assay/rules"
+)
+
+// newPatternCheck compiles pattern: the share of non-null strings in which
+// the RE2 pattern finds no match. The pattern is unanchored, as in JSON
+// Schema: "^...$" asks for a whole-string match. Every breaking value
+// scores 1, so the listing keeps the first rows.
+func newPatternCheck(r *rules.Rule, s rules.PatternSpec, env *Env) (Check, error) {
+	c, err := bindColumnOf(r, env, "pattern", classString)
+	if err != nil {
+		return nil, err
+	}
+	re := s.Regexp
+	if re == nil {
+		if re, err = regexp.Compile(s.Pattern); err != nil {
+			return nil, fmt.Errorf("pattern of column %q: %w", c.name, err)
+		}
+	}
+	vc := &valueCheck{rule: r, env: env, col: c, breaks: "do not match " + re.String()}
+	vc.scan = func(a arrow.Array, _ *scratch, hit func(int, float64)) {
+		eachString(a, func(i int, v string) {
+			if !re.MatchString(v) {
+				hit(i, 1)
+			}
+		})
+	}
+	return vc, nil
+}

@@ -1,0 +1,401 @@
+package checks
+
+import (
+	"fmt"
+	"hash/maphash"
+	"math"
+	"math/big"
+	"math/bits"
+	"slices"
+
+	"github.com/apache/arrow-go/v18/arrow/array"
+
+	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
+	"github.com/assay-project/assay/rules"
+)
+
+// summaryCheck bounds one summary statistic of a column; the measure is the
+// statistic itself, judged "within" its limits.
+//
+//   - count: non-null values (any column type).
+//   - distinct: distinct non-null values (numbers, strings, booleans, times).
+//     Numbers, times and booleans are counted exactly by their 8-byte values
+//     (-0 and 0 are one value, all NaNs one value). Strings are counted by a
+//     64-bit hash (hash/maphash, one seed per check): two distinct strings
+//     share a hash with probability 2^-64, so among n distinct strings some
+//     pair collides with probability about n²/2^65 (birthday bound: 2.7e-8
+//     for a million, 2.7e-4 for 100 million), which would count one too few.
+//   - mean, std, min, max: streamed in O(1) memory. Each batch is summed
+//     with Welford's update (Welford 1962, "Note on a method for calculating
+//     corrected sums of squares and products", Technometrics 4(3):419-420):
+//     n += 1; d = x - mean; mean += d/n; M2 += d(x - mean); batches and
+//     accumulators are combined with the pairwise update of Chan, Golub &
+//     LeVeque (1979, "Updating formulae and a pairwise algorithm for
+//     computing sample variances", Stanford STAN-CS-79-773; 1983, "Algorithms
+//     for computing the sample variance: analysis and recommendations", The
+//     American Statistician 37(3):242-247), written with means:
+//     d = mean_b - mean_a; mean = mean_a + d n_b/n; M2 = M2_a + M2_b + d² n_a n_b/n.
+//     std is the sample standard deviation sqrt(M2/(n-1)), undefined below
+//     two values. Neither forms the sum of squares, which loses every digit
+//     on data with a large mean and a small spread (NIST StRD NumAcc4).
+//     Integer and time columns also keep the exact sum in 128 bits, and their
+//     mean is that sum divided by n, rounded once.
+//   - median and quantiles: exact, from every value kept (8 bytes per
+//     non-null value; the only summaries whose memory grows with the rows),
+//     sorted at Finish. Definition 7 of Hyndman & Fan (1996, "Sample
+//     quantiles in statistical packages", The American Statistician
+//     50(4):361-365), R's default: with the values sorted x_1..x_n,
+//     h = 1 + (n-1)p, j = floor(h), Q(p) = (1-g) x_j + g x_{j+1}, g = h - j
+//     (no interpolation when x_j = x_{j+1}, as in R).
+//
+// Integer columns are summarised on their int64 values (min, max, quantile
+// ends and distinct exact; mean from the exact sum). Time columns work in
+// the column's integer unit and report seconds since the Unix epoch (std in
+// seconds). A NaN in a float column is a non-null value: it counts for
+// count and distinct and makes every other statistic undefined (NaN, which
+// fails a bounded rule); ±Inf make mean and std undefined.
+type summaryCheck struct {
+	rule *rules.Rule
+	env  *Env
+	col  column
+	stat rules.Stat
+	q    float64
+	seed maphash.Seed
+}
+
+func newSummaryCheck(r *rules.Rule, s rules.SummarySpec, env *Env) (Check, error) {
+	var (
+		c   column
+		err error
+	)
+	what := "summary " + string(s.Stat)
+	switch s.Stat {
+	case rules.StatCount:
+		if len(r.Columns) != 1 {
+			return nil, fmt.Errorf("%s reads one column, the rule names %d", what, len(r.Columns))
+		}
+		c, err = bindColumn(env, r.Columns[0])
+	case rules.StatDistinct:
+		c, err = bindColumnOf(r, env, what, classInteger, classNumber, classTime, classString, classBoolean)
+	case rules.StatMean, rules.StatStd, rules.StatMin, rules.StatMax, rules.StatMedian, rules.StatQuantile:
+		c, err = bindColumnOf(r, env, what, classInteger, classNumber, classTime)
+	default:
+		return nil, fmt.Errorf("unknown summary statistic %q", s.Stat)
+	}
+	if err != nil {
+		return nil, err
+	}
+	q := s.Q
+	if s.Stat == rules.StatMedian {
+		q = 0.5
+	}
+	if !(q >= 0 && q <= 1) {
+		return nil, fmt.Errorf("quantile %v of column %q is outside [0, 1]", q, c.name)
+	}
+	return &summaryCheck{rule: r, env: env, col: c, stat: s.Stat, q: q, seed: maphash.MakeSeed()}, nil
+}
+
+func (c *summaryCheck) Rule() *rules.Rule { return c.rule }
+
+func (c *summaryCheck) NewAccumulator() Accumulator {
+	a := &SummaryAccumulator{check: c}
+	a.Min, a.Max = math.Inf(1), math.Inf(-1)
+	if c.stat == rules.StatDistinct {
+		a.Distinct = map[uint64]struct{}{}
+	}
+	return a
+}
+
+func (c *summaryCheck) keepsValues() bool {
+	return c.stat == rules.StatMedian || c.stat == rules.StatQuantile
+}
+
+// SummaryState is the sufficient statistic of a summary rule. Values are in
+// the column's own unit (days for date32, microseconds for timestamp[us]).
+// Mean, M2, Min and Max are over the Count-NaN values that are not NaN.
+type SummaryState struct {
+	Count    int64   // non-null values, NaN included
+	NaN      int64   // NaN values (float columns)
+	Mean     float64 // running mean (Welford; Chan et al. when merged)
+	M2       float64 // sum of squared deviations from Mean
+	Min, Max float64 // +Inf and -Inf before the first value
+	Sum      Int128  // exact sum of an integer or time column
+	// Floats (float columns) or Ints (integer and time columns) keep every
+	// value that is not NaN, for median and quantiles only.
+	Floats []float64
+	Ints   []int64
+	// Distinct holds the distinct values (their 8 bytes, or a string's
+	// 64-bit hash), for distinct only.
+	Distinct map[uint64]struct{}
+}
+
+// Int128 is a two's-complement 128-bit integer, Hi·2⁶⁴ + Lo: the exact sum
+// of up to 2⁶⁴ int64 values.
+type Int128 struct {
+	Hi int64
+	Lo uint64
+}
+
+// Add adds v to s.
+func (s *Int128) Add(v int64) {
+	var carry uint64
+	s.Lo, carry = bits.Add64(s.Lo, uint64(v), 0)
+	s.Hi += v>>63 + int64(carry) // v>>63 is the sign extension: 0 or -1
+}
+
+// AddInt128 adds t to s.
+func (s *Int128) AddInt128(t Int128) {
+	var carry uint64
+	s.Lo, carry = bits.Add64(s.Lo, t.Lo, 0)
+	s.Hi += t.Hi + int64(carry)
+}
+
+// Big returns s as a big.Int.
+func (s Int128) Big() *big.Int {
+	x := big.NewInt(s.Hi)
+	x.Lsh(x, 64)
+	return x.Add(x, new(big.Int).SetUint64(s.Lo))
+}
+
+// SummaryAccumulator is one run of a summary rule.
+type SummaryAccumulator struct {
+	SummaryState
+	check   *summaryCheck
+	scratch scratch
+}
+
+// Observe adds the batch's non-null values of the column.
+func (a *SummaryAccumulator) Observe(b *source.Batch) error {
+	arr, err := a.check.col.in(b)
+	if err != nil {
+		return err
+	}
+	switch a.check.col.class {
+	case classNumber:
+		a.observeFloats(float64s(arr, &a.scratch.floats), validOf(arr))
+	case classInteger, classTime:
+		a.observeInts(int64s(arr, &a.scratch.ints), validOf(arr))
+	case classString:
+		a.Count += int64(arr.Len() - arr.NullN())
+		if a.Distinct != nil {
+			eachString(arr, func(_ int, s string) {
+				a.Distinct[maphash.String(a.check.seed, s)] = struct{}{}
+			})
+		}
+	case classBoolean:
+		a.Count += int64(arr.Len() - arr.NullN())
+		if a.Distinct != nil {
+			bs := arr.(*array.Boolean)
+			v := validOf(arr)
+			for i := range bs.Len() {
+				if v.at(i) {
+					a.Distinct[uint64(boolIndex(bs.Value(i)))] = struct{}{}
+				}
+			}
+		}
+	default:
+		a.Count += int64(arr.Len() - arr.NullN())
+	}
+	return nil
+}
+
+func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
+	var (
+		n, nan     int64
+		mean, m2   float64
+		lo, hi     = math.Inf(1), math.Inf(-1)
+		keep       = a.check.keepsValues()
+		collectSet = a.Distinct != nil
+	)
+	for i, x := range xs {
+		if !v.at(i) {
+			continue
+		}
+		if collectSet {
+			a.Distinct[floatKey(x)] = struct{}{}
+		}
+		if math.IsNaN(x) {
+			nan++
+			continue
+		}
+		n++
+		d := x - mean
+		mean += d / float64(n)
+		m2 += d * (x - mean)
+		lo, hi = min(lo, x), max(hi, x)
+		if keep {
+			a.Floats = append(a.Floats, x)
+		}
+	}
+	a.pool(n, mean, m2, lo, hi)
+	a.Count += n + nan
+	a.NaN += nan
+}
+
+func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
+	var (
+		n          int64
+		mean, m2   float64
+		lo, hi     int64 = math.MaxInt64, math.MinInt64
+		sum              = a.Sum
+		keep             = a.check.keepsValues()
+		collectSet       = a.Distinct != nil
+	)
+	for i, x := range xs {
+		if !v.at(i) {
+			continue
+		}
+		n++
+		f := float64(x)
+		d := f - mean
+		mean += d / float64(n)
+		m2 += d * (f - mean)
+		lo, hi = min(lo, x), max(hi, x)
+		sum.Add(x)
+		if keep {
+			a.Ints = append(a.Ints, x)
+		}
+		if collectSet {
+			a.Distinct[uint64(x)] = struct{}{}
+		}
+	}
+	a.Sum = sum
+	if n > 0 {
+		a.pool(n, mean, m2, float64(lo), float64(hi))
+	}
+	a.Count += n
+}
+
+// floatKey is x's bits for counting distinct values: -0 as 0, every NaN
+// as one.
+func floatKey(x float64) uint64 {
+	switch {
+	case x == 0:
+		return 0
+	case math.IsNaN(x):
+		return math.Float64bits(math.NaN())
+	}
+	return math.Float64bits(x)
+}
+
+// pool folds n more non-NaN values, with mean, M2, min and max of their
+// own, into a's moments (Chan, Golub & LeVeque; see summaryCheck). It does
+// not change Count.
+func (a *SummaryAccumulator) pool(n int64, mean, m2, lo, hi float64) {
+	if n == 0 {
+		return
+	}
+	had := a.Count - a.NaN
+	a.Min, a.Max = min(a.Min, lo), max(a.Max, hi)
+	if had == 0 {
+		a.Mean, a.M2 = mean, m2
+		return
+	}
+	total := float64(had + n)
+	d := mean - a.Mean
+	a.Mean += d * float64(n) / total
+	a.M2 += m2 + d*d*float64(had)*float64(n)/total
+}
+
+// Merge folds other's values into a.
+func (a *SummaryAccumulator) Merge(other Accumulator) error {
+	o, ok := other.(*SummaryAccumulator)
+	if !ok || o.check != a.check {
+		return errMerge(a.check.rule, a, other)
+	}
+	a.pool(o.Count-o.NaN, o.Mean, o.M2, o.Min, o.Max)
+	a.Count += o.Count
+	a.NaN += o.NaN
+	a.Sum.AddInt128(o.Sum)
+	a.Floats = append(a.Floats, o.Floats...)
+	a.Ints = append(a.Ints, o.Ints...)
+	for k := range o.Distinct {
+		a.Distinct[k] = struct{}{}
+	}
+	return nil
+}
+
+// Finish computes the statistic from the state and judges it. It sorts
+// the kept values in place.
+func (a *SummaryAccumulator) Finish() report.Result {
+	v, why := a.value()
+	res := NewResult(a.check.rule, v)
+	name := a.check.rule.Measure.Name
+	if name == "" {
+		name = string(a.check.stat)
+	}
+	switch {
+	case why != "":
+		res.Message = fmt.Sprintf("%s is undefined: %s", name, why)
+	case a.check.stat == rules.StatCount || a.check.stat == rules.StatDistinct:
+		res.Message = fmt.Sprintf("%s is %s", name, thousands(int64(v)))
+	case a.check.stat == rules.StatStd && a.check.col.class == classTime:
+		res.Message = fmt.Sprintf("%s is %s s over %s values", name, number(v), thousands(a.Count))
+	default:
+		res.Message = fmt.Sprintf("%s is %s over %s values", name, quantity(a.check.env, a.check.col, v), thousands(a.Count))
+	}
+	return res
+}
+
+// value is the statistic, in seconds for time columns, or NaN and why it
+// is undefined.
+func (a *SummaryAccumulator) value() (float64, string) {
+	switch a.check.stat {
+	case rules.StatCount:
+		return float64(a.Count), ""
+	case rules.StatDistinct:
+		return float64(len(a.Distinct)), ""
+	}
+	n := a.Count - a.NaN
+	switch {
+	case a.NaN > 0:
+		return math.NaN(), fmt.Sprintf("%s of %s values are NaN", thousands(a.NaN), thousands(a.Count))
+	case n == 0:
+		return math.NaN(), "the column has no values"
+	case n == 1 && a.check.stat == rules.StatStd:
+		return math.NaN(), "the standard deviation needs two values, the column has one"
+	}
+	per := a.check.col.perSecond
+	switch a.check.stat {
+	case rules.StatMean:
+		if a.check.col.class == classNumber {
+			return a.Mean, ""
+		}
+		// Both operands are exact; the quotient is rounded once, to float64.
+		m := new(big.Float).SetPrec(53).Quo(new(big.Float).SetInt(a.Sum.Big()), new(big.Float).SetInt64(n))
+		f, _ := m.Float64()
+		return f / per, ""
+	case rules.StatStd:
+		return math.Sqrt(a.M2/float64(n-1)) / per, ""
+	case rules.StatMin:
+		return a.Min / per, ""
+	case rules.StatMax:
+		return a.Max / per, ""
+	}
+	if a.check.col.class == classNumber {
+		slices.Sort(a.Floats)
+		return quantile7(a.Floats, a.check.q), ""
+	}
+	slices.Sort(a.Ints)
+	return quantile7(a.Ints, a.check.q) / per, ""
+}
+
+// quantile7 is the p-quantile of the sorted values x by definition 7 of
+// Hyndman & Fan (1996), R's default type: h = 1 + (n-1)p, j = floor(h),
+// g = h - j, Q = (1-g) x_j + g x_{j+1} (1-based), and x_j alone when g is 0
+// or x_j = x_{j+1}. It is computed as R's quantile.default computes it, so
+// the two agree to the last bit. NaN for no values.
+func quantile7[T int64 | float64](x []T, p float64) float64 {
+	if len(x) == 0 {
+		return math.NaN()
+	}
+	h := 1 + float64(len(x)-1)*p
+	j := math.Floor(h)
+	g := h - j
+	lo := x[int(j)-1]
+	if g == 0 || x[int(j)] == lo {
+		return float64(lo)
+	}
+	return (1-g)*float64(lo) + g*float64(x[int(j)])
+}
