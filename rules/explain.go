@@ -16,7 +16,11 @@ import (
 // +inf, bounds on time columns as times, and anything unset as "-".
 func Explain(w io.Writer, p *Policy) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintf(tw, "policy %s: %d rules\n", p.Name, len(p.Rules))
+	noun := "rules"
+	if len(p.Rules) == 1 {
+		noun = "rule"
+	}
+	fmt.Fprintf(tw, "policy %s: %d %s\n", p.Name, len(p.Rules), noun)
 	fmt.Fprintln(tw, "id\tcheck\tcolumns\tmeasure\tdirection\twarn\tfail\tspec")
 	for _, r := range p.Rules {
 		cols := "-"

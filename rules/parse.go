@@ -231,20 +231,11 @@ var (
 	yamlErrAnchor = regexp.MustCompile(`^yaml: unknown anchor '(.*)' referenced$`)
 )
 
-// yamlParserProblems are the messages of the YAML parser (as opposed to its
-// scanner). go.yaml.in/yaml/v3 writes a parser problem's line 0-based and a
-// scanner problem's 1-based, and leaves the line out when the 0-based line
-// is 0; syntax undoes that.
-var yamlParserProblems = []string{
-	"did not find expected ',' or ']'", "did not find expected ',' or '}'", "did not find expected '-' indicator",
-	"did not find expected <document start>", "did not find expected <stream-start>", "did not find expected key",
-	"did not find expected node content", "found duplicate %TAG directive", "found duplicate %YAML directive",
-	"found incompatible YAML document", "found undefined tag handle",
-}
-
-// syntax records a YAML syntax error at the best line the YAML library
-// gives. Its column is unknown; the line is where the problem or the
-// construct it is in starts.
+// syntax records a YAML syntax error. go.yaml.in/yaml/v3 gives no column,
+// and its line is that of the construct the problem is in, sometimes
+// counted from 0, sometimes left out. So syntax looks for the first
+// prefix of the file, from that line on, that fails with the same problem:
+// its last line is where the problem is. The column stays unknown.
 func (r *resolver) syntax(err error) {
 	msg := err.Error()
 	if m := yamlErrAnchor.FindStringSubmatch(msg); m != nil {
@@ -260,15 +251,33 @@ func (r *resolver) syntax(err error) {
 		msg = m[2]
 		if m[1] != "" {
 			line, _ = strconv.Atoi(m[1])
-			if contains(yamlParserProblems, msg) {
-				line++
-			}
 		}
 	}
-	if n := bytes.Count(r.src, []byte("\n")) + 1; line > n {
-		line = n
+	lines := bytes.SplitAfter(r.src, []byte("\n"))
+	line = max(1, min(line, len(lines)))
+	const scan = 500 // lines tried past the one reported
+	for k := line; k <= len(lines) && k <= line+scan; k++ {
+		err := yamlError(bytes.Join(lines[:k], nil))
+		if m := yamlErrLine.FindStringSubmatch(fmt.Sprint(err)); err != nil && m != nil && m[2] == msg {
+			line = k
+			break
+		}
 	}
 	r.failAt(Pos{File: r.file, Line: line}, CodeSyntax, "", "invalid YAML: %s", msg)
+}
+
+// yamlError returns the first error reading every YAML document of src.
+func yamlError(src []byte) error {
+	dec := yaml.NewDecoder(bytes.NewReader(src))
+	for {
+		var n yaml.Node
+		if err := dec.Decode(&n); err != nil {
+			if errors.Is(err, io.EOF) {
+				return nil
+			}
+			return err
+		}
+	}
 }
 
 // offsetPos is the position of byte offset i of the source.
@@ -402,7 +411,7 @@ func (r *resolver) decodeRows(n *yaml.Node) {
 			continue
 		}
 		fs := r.fields("rows", it, rowKeys, func(key string) string {
-			if key == "expression" {
+			if strings.HasPrefix(key, "expr") {
 				return `did you mean "expr"?`
 			}
 			return ""

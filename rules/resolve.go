@@ -41,6 +41,9 @@ func parseStat(s string) (SummarySpec, bool) {
 // a scale, so bounds and location statistics apply.
 func ordered(t Type) bool { return t != TypeString && t != TypeBoolean }
 
+// plural names the columns of type t, for messages.
+func plural(t Type) string { return t.String() + " columns" }
+
 // textual reports whether a column of type t holds strings.
 func textual(t Type) bool { return t == TypeAny || t == TypeString }
 
@@ -136,7 +139,7 @@ func (r *resolver) names() {
 				allowed = append(allowed, c.Name)
 			}
 			if len(allowed) == 0 {
-				r.fail(r.root, CodeBadValue, p.rule.ID, "the table is closed but the policy declares no columns").Hint =
+				r.failAt(p.rule.Pos, CodeBadValue, p.rule.ID, "the table is closed but the policy declares no columns").Hint =
 					"declare the columns under columns, or drop closed"
 			}
 			p.rule.Spec = ClosedSpec{Allowed: allowed}
@@ -169,6 +172,8 @@ func (r *resolver) stat(p *pending, quantiles map[*colDraft]map[float64]string) 
 		e := r.failAt(p.rule.Pos, CodeUnknownStat, p.col.path+".summary", "unknown statistic %q", name)
 		if s, ok := parseStat(strings.ToLower(name)); ok && s.Stat == StatQuantile {
 			e.Hint = fmt.Sprintf("did you mean %q?", strings.ToLower(name))
+		} else if quantileName.MatchString(name) {
+			e.Hint = "quantiles run from p0 to p100"
 		} else if e.Hint = didYouMean(name, statNames); e.Hint == "" {
 			e.Hint = "one of " + strings.Join(statNames, ", ") + ", or a quantile p<percent> such as p95"
 		}
@@ -185,7 +190,7 @@ func (r *resolver) stat(p *pending, quantiles map[*colDraft]map[float64]string) 
 		quantiles[p.col][spec.Q] = name
 	}
 	if t := r.column(p.col).Type; !ordered(t) && spec.Stat != StatCount && spec.Stat != StatDistinct {
-		r.failAt(p.rule.Pos, CodeNotApplicable, p.rule.ID, "%s needs ordered values; the column is %s", name, t).Hint =
+		r.failAt(p.rule.Pos, CodeNotApplicable, p.rule.ID, "%s needs ordered values, not %s", name, plural(t)).Hint =
 			"count and distinct apply to every type"
 		return
 	}
@@ -378,6 +383,9 @@ func (r *resolver) bounds(path string, n *yaml.Node, value func(string, *yaml.No
 		r.fail(fs.get("warn"), CodeTolerance, path, "the warn interval reaches outside the fail interval").Hint =
 			"warn is the narrower interval"
 		return t, false
+	case t.Warn != nil && t.Fail != nil && max(t.Warn.Lo, t.Fail.Lo) > min(t.Warn.Hi, t.Fail.Hi):
+		r.fail(fs.get("warn"), CodeEmptyRange, path, "the warn and fail intervals do not meet, so no value passes")
+		return t, false
 	}
 	return t, true
 }
@@ -457,7 +465,7 @@ func (r *resolver) values() {
 			r.enumSpec(p, t)
 		}
 		if !applies {
-			r.failAt(p.rule.Pos, CodeNotApplicable, id, "%s does not apply to a %s column", key, t)
+			r.failAt(p.rule.Pos, CodeNotApplicable, id, "%s does not apply to %s", key, plural(t))
 		}
 		switch p.rule.Kind {
 		case KindMinimum, KindMinLength:
@@ -577,14 +585,16 @@ func (r *resolver) enumSpec(p *pending, t Type) {
 	seen := map[string]bool{}
 	for _, it := range items {
 		if it.Kind != yaml.ScalarNode || isNull(it) {
-			r.wrongKind(it, id, "a text or a number").Hint = "nulls are bounded by nulls, not enum"
+			if e := r.wrongKind(it, id, "a text or a number"); isNull(it) {
+				e.Hint = "bound missing values with nulls"
+			}
 			ok = false
 			continue
 		}
 		k := enumKind(it)
 		switch {
 		case want != "" && k != want:
-			r.fail(it, CodeWrongKind, id, "a %s column needs %s values, got %s", t, want, describe(it))
+			r.fail(it, CodeWrongKind, id, "%s need %s values, got %s", plural(t), want, describe(it))
 			ok = false
 			continue
 		case kind == "":

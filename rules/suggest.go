@@ -9,13 +9,13 @@ import (
 // hint, or "" when none is close. Closeness is the optimal string alignment
 // distance (Levenshtein edits plus swaps of adjacent characters; Damerau
 // 1964) between the lower-cased names, counted in characters. A candidate
-// is close when that distance is at most max(1, len(name)/3) and smaller
+// is close when that distance is at most max(1, (len(name)+1)/4) and smaller
 // than the length of both names, so a short name is never matched with an
 // unrelated one. Ties go to the earlier candidate; a candidate equal to name
 // wins outright.
 func Suggest(name string, candidates []string) string {
 	a := []rune(strings.ToLower(name))
-	limit := max(1, len(a)/3)
+	limit := max(1, (len(a)+1)/4)
 	best, bestD := "", limit+1
 	for _, c := range candidates {
 		if c == name {
