@@ -582,11 +582,11 @@ func TestSuggest(t *testing.T) {
 		{"Maximum", columnKeys, "maximum"},
 		{"minimun", columnKeys, "minimum"},
 		{"exclusiveMaximun", columnKeys, "exclusiveMaximum"},
-		{"tpye", columnKeys, "type"},         // a swap is one edit
-		{"nul", columnKeys, ""},              // two edits in three letters is too far...
-		{"nulss", columnKeys, "nulls"},       // ...one is close
-		{"distribution", columnKeys, ""},     // four edits from description
-		{"mean", columnKeys, ""},             // nothing near
+		{"tpye", columnKeys, "type"},     // a swap is one edit
+		{"nul", columnKeys, ""},          // two edits in three letters is too far...
+		{"nulss", columnKeys, "nulls"},   // ...one is close
+		{"distribution", columnKeys, ""}, // four edits from description
+		{"mean", columnKeys, ""},         // nothing near
 		{"weight_kg", []string{"weight_kg", "Weight_kg"}, "weight_kg"},
 		{"WEIGHT_KG", []string{"weight_lb", "weight_kg"}, "weight_kg"},
 		{"weight_lg", []string{"weight_kg", "height_kg"}, "weight_kg"}, // ties go to the first
