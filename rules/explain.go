@@ -60,7 +60,7 @@ func explainValue(p *Policy, r *Rule, v float64) string {
 	case r.Measure.Unit == UnitShare:
 		return formatPercent(v)
 	}
-	if s, ok := r.Spec.(SummarySpec); ok && s.Stat != StatStd && len(r.Columns) == 1 {
+	if s, ok := r.Spec.(SummarySpec); ok && s.Stat.located() && len(r.Columns) == 1 {
 		if c := p.Column(r.Columns[0]); c != nil && timed(c.Type) {
 			return formatTime(v, c.Type)
 		}

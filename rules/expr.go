@@ -212,7 +212,7 @@ func exprColumns(root ast.Node) []exprColumn {
 		case *ast.MemberNode:
 			if id, ok := n.Node.(*ast.IdentifierNode); ok && id.Value == "$env" {
 				if s, ok := n.Property.(*ast.StringNode); ok {
-					add(s.Value, n)
+					add(s.Value, id)
 					return
 				}
 			}

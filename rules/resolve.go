@@ -47,6 +47,10 @@ func plural(t Type) string { return t.String() + " columns" }
 // textual reports whether a column of type t holds strings.
 func textual(t Type) bool { return t == TypeAny || t == TypeString }
 
+// located reports whether statistic s says where values lie, so that on a
+// time column it is itself a time (unlike a spread or a count).
+func (s Stat) located() bool { return s != StatStd && s != StatCount && s != StatDistinct }
+
 // timed reports whether a column of type t holds points in time.
 func timed(t Type) bool { return t == TypeTimestamp || t == TypeDate }
 
@@ -267,7 +271,7 @@ func (r *resolver) tolerances() {
 // type t: time texts for where a time column's values lie, numbers
 // otherwise.
 func (r *resolver) statValue(t Type, s Stat) func(string, *yaml.Node) (float64, bool) {
-	if timed(t) && s != StatStd && s != StatCount && s != StatDistinct {
+	if timed(t) && s.located() {
 		return func(path string, n *yaml.Node) (float64, bool) {
 			return r.timeText(path, n, t)
 		}
