@@ -143,11 +143,11 @@ func TestExprTraceGivesUp(t *testing.T) {
 	}
 }
 
-func mustRead(t *testing.T, path string) []byte {
-	t.Helper()
+func mustRead(tb testing.TB, path string) []byte {
+	tb.Helper()
 	b, err := os.ReadFile(path)
 	if err != nil {
-		t.Fatal(err)
+		tb.Fatal(err)
 	}
 	return b
 }
