@@ -15,14 +15,19 @@ import (
 	"github.com/expr-lang/expr/builtin"
 	"github.com/expr-lang/expr/conf"
 	"github.com/expr-lang/expr/file"
+
+	"github.com/assay-project/assay/rules"
 )
 
 // Error is an expression that does not compile. Line and Col locate the
 // problem inside the expression text, both 1-based, Col counting
-// characters (Unicode code points); both are 0 when the problem concerns
+// characters (Unicode code points), and Offset is the same place as a
+// 0-based count of characters from the start of the text (what
+// rules.RowSpec.PosAt takes). Line and Col are 0 when the problem concerns
 // the whole expression (for example, it does not give a boolean).
 type Error struct {
 	Line, Col int
+	Offset    int
 	Msg       string
 }
 
@@ -242,12 +247,12 @@ func compileError(err error, env map[string]any, unreadable map[string]arrow.Dat
 	}
 	e := &Error{Msg: fe.Message}
 	if fe.Line > 0 {
-		e.Line, e.Col = fe.Line, fe.Column+1
+		e.Line, e.Col, e.Offset = fe.Line, fe.Column+1, fe.From
 	}
 	if name, ok := strings.CutPrefix(fe.Message, "unknown name "); ok {
 		if dt, ok := unreadable[name]; ok {
 			e.Msg = fmt.Sprintf("column %s has type %s, which expressions cannot read", name, dt)
-		} else if s := suggest(name, candidates(env)); s != "" {
+		} else if s := rules.Suggest(name, candidates(env)); s != "" {
 			e.Msg += fmt.Sprintf(" (did you mean %s?)", s)
 		}
 	}
@@ -269,42 +274,4 @@ func candidates(env map[string]any) []string {
 	}
 	sort.Strings(names)
 	return names
-}
-
-// suggest returns the candidate closest to name by edit distance, if it is
-// close: at most 2 edits, and fewer than half of name's characters. Ties go
-// to the first in candidates' order. (A local helper: package rules has no
-// shared one yet.)
-func suggest(name string, candidates []string) string {
-	best, bestD := "", 3
-	for _, c := range candidates {
-		d := editDistance(name, c)
-		if d < bestD && 2*d < len([]rune(name)) {
-			best, bestD = c, d
-		}
-	}
-	return best
-}
-
-// editDistance is the Levenshtein distance between a and b in code points
-// (insertions, deletions and substitutions each cost 1).
-func editDistance(a, b string) int {
-	x, y := []rune(a), []rune(b)
-	prev := make([]int, len(y)+1)
-	cur := make([]int, len(y)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(x); i++ {
-		cur[0] = i
-		for j := 1; j <= len(y); j++ {
-			sub := prev[j-1]
-			if x[i-1] != y[j-1] {
-				sub++
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, sub)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(y)]
 }

@@ -11,7 +11,7 @@
 // time.Time), and requires a boolean result. Errors are expr's, carried in
 // an *Error with the 1-based line and column inside the expression; an
 // unknown name gets a "did you mean" hint from the column and function
-// names (Levenshtein distance at most 2). Besides expr's builtins the
+// names (rules.Suggest). Besides expr's builtins the
 // functions sqrt, log (natural) and exp are available.
 //
 // # Evaluating

@@ -12,6 +12,7 @@ import (
 	"github.com/expr-lang/expr/compiler"
 	"github.com/expr-lang/expr/conf"
 	"github.com/expr-lang/expr/file"
+	"github.com/expr-lang/expr/optimizer"
 	"github.com/expr-lang/expr/parser"
 	"github.com/expr-lang/expr/vm"
 )
@@ -179,17 +180,61 @@ func (pl *planner) build(n ast.Node) *plan {
 }
 
 // kindOfNode is the kind of n's values as the checker typed them, or
-// kindNone where that type may not hold: expr types min and max by their
-// first argument, while they return whichever argument wins.
+// kindNone where that type may not hold (see honest).
 func kindOfNode(n ast.Node) kind {
-	if b, ok := n.(*ast.BuiltinNode); ok && (b.Name == "min" || b.Name == "max") {
-		for _, a := range b.Arguments {
-			if a.Type() != b.Type() {
-				return kindNone
-			}
-		}
+	if !honest(n) {
+		return kindNone
 	}
 	return kindOfType(n.Type())
+}
+
+// honest reports whether every value n yields has the type the checker
+// gave it. expr types c ? x : y by x when y's type is an interface x's
+// satisfies, min and max by their first argument while they return the
+// winner, and keeps an int type on x + 1 after retyping its literal to a
+// float (a function argument wanting a float); arithmetic passes such a
+// wrong type on.
+func honest(n ast.Node) bool {
+	k := kindOfType(n.Type())
+	same := func(args ...ast.Node) bool {
+		for _, a := range args {
+			if !honest(a) || kindOfType(a.Type()) != k {
+				return false
+			}
+		}
+		return true
+	}
+	switch n := n.(type) {
+	case *ast.ConditionalNode:
+		return same(n.Exp1, n.Exp2)
+	case *ast.BuiltinNode:
+		switch n.Name {
+		case "min", "max", "abs":
+			return same(n.Arguments...)
+		}
+	case *ast.UnaryNode:
+		if n.Operator == "-" || n.Operator == "+" {
+			return same(n.Node)
+		}
+	case *ast.BinaryNode:
+		switch n.Operator {
+		case "??":
+			return same(n.Left, n.Right)
+		case "+", "-", "*":
+			l, r := kindOfType(n.Left.Type()), kindOfType(n.Right.Type())
+			if !honest(n.Left) || !honest(n.Right) {
+				return false
+			}
+			if !l.numeric() || !r.numeric() {
+				return true // time and duration arithmetic, string +
+			}
+			if l == r {
+				return k == l
+			}
+			return k == kindFloat
+		}
+	}
+	return true
 }
 
 // scan collects what a subtree reads.
@@ -246,9 +291,21 @@ func (pl *planner) reads(n ast.Node) *scan {
 	return s
 }
 
+// compile compiles subtree n for the virtual machine as expr.Compile
+// does, optimizer included: expr's optimizer changes some results (it
+// turns `x in ["", "a"]` into a map lookup, where a nil x finds "").
+// Optimizing rewrites nodes of n's subtree in place, which is safe: a
+// subtree is compiled only when it will not be vectorized.
+func (pl *planner) compile(n ast.Node) (*vm.Program, error) {
+	if err := optimizer.Optimize(&n, pl.cfg); err != nil {
+		return nil, err
+	}
+	return compiler.Compile(&parser.Tree{Node: n, Source: pl.src}, pl.cfg)
+}
+
 // run evaluates a subtree that reads no column on the virtual machine.
 func (pl *planner) run(n ast.Node) (any, bool) {
-	prog, err := compiler.Compile(&parser.Tree{Node: n, Source: pl.src}, pl.cfg)
+	prog, err := pl.compile(n)
 	if err != nil {
 		return nil, false
 	}
@@ -300,7 +357,7 @@ func (pl *planner) fallback(n ast.Node, k kind) *plan {
 	if k == kindNone {
 		return nil
 	}
-	prog, err := compiler.Compile(&parser.Tree{Node: n, Source: pl.src}, pl.cfg)
+	prog, err := pl.compile(n)
 	if err != nil {
 		return nil
 	}
