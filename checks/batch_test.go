@@ -88,7 +88,7 @@ func appendValue(t *testing.T, bld array.Builder, v any) {
 		b.Append(v.(float64))
 	case *array.Float32Builder:
 		b.Append(float32(v.(float64)))
-	case *array.StringBuilder:
+	case interface{ Append(string) }: // utf8, large utf8, utf8 view
 		b.Append(v.(string))
 	case *array.BooleanBuilder:
 		b.Append(v.(bool))

@@ -64,11 +64,12 @@ func newBoundCheck(r *rules.Rule, s rules.BoundSpec, env *Env) (Check, error) {
 		return vc, nil
 	}
 	lo, hi := intRange(s, c.perSecond)
+	bound := toUnits(s.Value, c.perSecond)
 	vc.scan = func(a arrow.Array, sc *scratch, hit func(int, float64)) {
 		v := validOf(a)
 		for i, x := range int64s(a, &sc.ints) {
 			if (x < lo || x > hi) && v.at(i) {
-				hit(i, math.Abs(float64(x)/c.perSecond-s.Value))
+				hit(i, math.Abs(float64(x)-bound)/c.perSecond)
 			}
 		}
 	}

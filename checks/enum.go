@@ -24,7 +24,7 @@ func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 	if err != nil {
 		return nil, err
 	}
-	vc := &valueCheck{rule: r, env: env, col: c, breaks: "are not one of " + listValues(s.Values)}
+	vc := &valueCheck{rule: r, env: env, col: c, breaks: "are outside the list " + listValues(s.Values)}
 	switch c.class {
 	case classString:
 		set := make(map[string]bool, len(s.Values))

@@ -7,8 +7,6 @@ import (
 	"strings"
 	"time"
 
-	"github.com/apache/arrow-go/v18/arrow"
-
 	"github.com/assay-project/assay/rules"
 )
 
@@ -22,12 +20,15 @@ func share(k, n int64) float64 {
 }
 
 // countOf writes "3 of 10,000 values (0.03%)", or "none of 10,000 values",
-// or "no values" when n is 0.
+// or "no values" when n is 0; noun is plural ("1 of 1 value").
 func countOf(k, n int64, noun string) string {
 	switch {
 	case n == 0:
 		return "no " + noun
-	case k == 0:
+	case n == 1:
+		noun = strings.TrimSuffix(noun, "s")
+	}
+	if k == 0 {
 		return fmt.Sprintf("none of %s %s", thousands(n), noun)
 	}
 	return fmt.Sprintf("%s of %s %s (%s)", thousands(k), thousands(n), noun, percent(share(k, n)))
@@ -85,13 +86,13 @@ func number(v float64) string {
 // (v in seconds since the epoch).
 func quantity(env *Env, c column, v float64) string {
 	if c.class == classTime && !math.IsNaN(v) && !math.IsInf(v, 0) {
-		sec, frac := math.Modf(v)
-		t := time.Unix(int64(sec), int64(math.Round(frac*1e9))).UTC()
-		isDate := c.typ.ID() == arrow.DATE32 || c.typ.ID() == arrow.DATE64
-		if isDate && t.Truncate(24*time.Hour).Equal(t) {
-			return t.Format(time.DateOnly)
+		if u := toUnits(v, c.perSecond); u == math.Trunc(u) && math.Abs(u) < 0x1p63 {
+			return timeText(c.typ, int64(u))
 		}
-		return t.Format(time.RFC3339Nano)
+		// Between two units: to the microsecond, about what float64
+		// seconds hold for present-day times.
+		us := math.Round(v * 1e6)
+		return time.UnixMicro(int64(us)).UTC().Format(time.RFC3339Nano)
 	}
 	s := number(v)
 	if env.Policy != nil {

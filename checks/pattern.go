@@ -24,7 +24,7 @@ func newPatternCheck(r *rules.Rule, s rules.PatternSpec, env *Env) (Check, error
 			return nil, fmt.Errorf("pattern of column %q: %w", c.name, err)
 		}
 	}
-	vc := &valueCheck{rule: r, env: env, col: c, breaks: "do not match " + re.String()}
+	vc := &valueCheck{rule: r, env: env, col: c, breaks: "fail to match " + re.String()}
 	vc.scan = func(a arrow.Array, _ *scratch, hit func(int, float64)) {
 		eachString(a, func(i int, v string) {
 			if !re.MatchString(v) {

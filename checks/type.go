@@ -128,7 +128,7 @@ func (a *TypeAccumulator) Finish() report.Result {
 	if !ok {
 		noun = "values of the column's type"
 	}
-	res.Message = fmt.Sprintf("%s are not %s", countOf(a.Invalid, a.Cells, "non-null cells"), noun)
+	res.Message = fmt.Sprintf("%s fail to parse as %s", countOf(a.Invalid, a.Cells, "non-null cells"), noun)
 	res.Offending = offending(a.Invalid, &a.listing)
 	return res
 }
