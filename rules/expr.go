@@ -84,7 +84,7 @@ func (r *resolver) expressions() {
 // quote escapes (a backslash escape, a doubled single quote) stand at
 // their first character.
 func (r *resolver) trace(n *yaml.Node) []Pos {
-	lines := strings.Split(string(r.src), "\n")
+	lines := r.lines
 	line, col := n.Line-1, n.Column-1 // 0-based; col counts runes
 	switch n.Style {
 	case yaml.SingleQuotedStyle, yaml.DoubleQuotedStyle:
@@ -95,7 +95,7 @@ func (r *resolver) trace(n *yaml.Node) []Pos {
 	if line < 0 || line >= len(lines) {
 		return nil
 	}
-	src := []rune(strings.TrimRight(lines[line], "\r"))
+	src := []rune(lines[line])
 	// at returns the source rune under the cursor; '\n' at a line's end.
 	at := func() (rune, bool) {
 		if col < len(src) {
@@ -113,7 +113,7 @@ func (r *resolver) trace(n *yaml.Node) []Pos {
 			if line >= len(lines) {
 				return
 			}
-			src = []rune(strings.TrimRight(lines[line], "\r"))
+			src = []rune(lines[line])
 		}
 	}
 	pos := func() Pos { return Pos{File: r.file, Line: line + 1, Col: col + 1} }

@@ -9,6 +9,7 @@ import (
 	"io"
 	"os"
 	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -60,6 +61,9 @@ var stages = []stage{
 func resolve(name string, src []byte, last string) *resolver {
 	sum := sha256.Sum256(src)
 	r := &resolver{file: name, src: src, p: &Policy{File: name, Hash: "sha256:" + hex.EncodeToString(sum[:])}}
+	for _, l := range strings.Split(string(src), "\n") {
+		r.lines = append(r.lines, strings.TrimSuffix(l, "\r"))
+	}
 	for _, s := range stages {
 		s.run(r)
 		if r.fatal || s.name == last {
@@ -73,6 +77,7 @@ func resolve(name string, src []byte, last string) *resolver {
 type resolver struct {
 	file  string
 	src   []byte
+	lines []string // src split at line breaks, without them
 	errs  ErrorList
 	fatal bool // the file is not YAML: nothing after decode can run
 
@@ -107,10 +112,9 @@ func (r *resolver) column(c *colDraft) *Column { return &r.p.Columns[c.i] }
 
 // errorList sorts the problems and attaches their source lines.
 func (r *resolver) errorList() ErrorList {
-	lines := strings.Split(string(r.src), "\n")
 	for _, e := range r.errs {
-		if e.Pos.Line > 0 && e.Pos.Line <= len(lines) {
-			e.Source = strings.TrimRight(lines[e.Pos.Line-1], "\r")
+		if e.Pos.Line > 0 && e.Pos.Line <= len(r.lines) {
+			e.Source = r.lines[e.Pos.Line-1]
 		}
 	}
 	sortErrors(r.errs)
@@ -233,7 +237,7 @@ var (
 
 // syntax records a YAML syntax error. go.yaml.in/yaml/v3 gives no column,
 // and its line is that of the construct the problem is in, sometimes
-// counted from 0, sometimes left out. So syntax looks for the first
+// counted from 0, sometimes left out. So syntax looks for the shortest
 // prefix of the file, from that line on, that fails with the same problem:
 // its last line is where the problem is. The column stays unknown.
 func (r *resolver) syntax(err error) {
@@ -255,13 +259,16 @@ func (r *resolver) syntax(err error) {
 	}
 	lines := bytes.SplitAfter(r.src, []byte("\n"))
 	line = max(1, min(line, len(lines)))
-	const scan = 500 // lines tried past the one reported
-	for k := line; k <= len(lines) && k <= line+scan; k++ {
-		err := yamlError(bytes.Join(lines[:k], nil))
-		if m := yamlErrLine.FindStringSubmatch(fmt.Sprint(err)); err != nil && m != nil && m[2] == msg {
-			line = k
-			break
-		}
+	// fails reports whether the first k lines fail with the same problem.
+	// It holds for the whole file and, as a rule, from the problem's line
+	// on, so a binary search finds that line.
+	fails := func(k int) bool {
+		m := yamlErrLine.FindStringSubmatch(fmt.Sprint(yamlError(bytes.Join(lines[:k], nil))))
+		return m != nil && m[2] == msg
+	}
+	n := len(lines) - line + 1
+	if i := sort.Search(n, func(i int) bool { return fails(line + i) }); i < n {
+		line += i
 	}
 	r.failAt(Pos{File: r.file, Line: line}, CodeSyntax, "", "invalid YAML: %s", msg)
 }
