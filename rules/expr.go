@@ -25,10 +25,7 @@ func (s RowSpec) PosAt(i int) Pos {
 // expressions parses every row expression for its syntax and records the
 // columns it reads. Types are checked later, against the data.
 func (r *resolver) expressions() {
-	closed := false
-	for _, p := range r.table {
-		closed = closed || p.rule.Kind == KindClosed
-	}
+	closed := r.closed()
 	for _, p := range r.rules {
 		if p.rule.Kind != KindRow || p.val == nil {
 			continue
@@ -105,15 +102,15 @@ func (r *resolver) trace(n *yaml.Node) []Pos {
 	}
 	advance := func(k int) {
 		for ; k > 0; k-- {
-			if col < len(src) {
+			switch {
+			case col < len(src):
 				col++
-				continue
+			case line+1 < len(lines):
+				line, col = line+1, 0
+				src = []rune(lines[line])
+			default:
+				return // the end of the file
 			}
-			line, col = line+1, 0
-			if line >= len(lines) {
-				return
-			}
-			src = []rune(lines[line])
 		}
 	}
 	pos := func() Pos { return Pos{File: r.file, Line: line + 1, Col: col + 1} }
@@ -202,6 +199,11 @@ func exprColumns(root ast.Node) []exprColumn {
 		out = append(out, exprColumn{name: name, at: n.Location().From})
 	}
 	var walk func(n ast.Node, bound map[string]bool)
+	walkAll := func(bound map[string]bool, nodes ...ast.Node) {
+		for _, n := range nodes {
+			walk(n, bound)
+		}
+	}
 	walk = func(n ast.Node, bound map[string]bool) {
 		switch n := n.(type) {
 		case nil:
@@ -216,15 +218,12 @@ func exprColumns(root ast.Node) []exprColumn {
 					return
 				}
 			}
-			walk(n.Node, bound)
-			walk(n.Property, bound)
+			walkAll(bound, n.Node, n.Property)
 		case *ast.CallNode:
 			if _, named := n.Callee.(*ast.IdentifierNode); !named {
 				walk(n.Callee, bound)
 			}
-			for _, a := range n.Arguments {
-				walk(a, bound)
-			}
+			walkAll(bound, n.Arguments...)
 		case *ast.VariableDeclaratorNode:
 			walk(n.Value, bound)
 			inner := map[string]bool{n.Name: true}
@@ -233,41 +232,27 @@ func exprColumns(root ast.Node) []exprColumn {
 			}
 			walk(n.Expr, inner)
 		case *ast.UnaryNode:
-			walk(n.Node, bound)
+			walkAll(bound, n.Node)
 		case *ast.BinaryNode:
-			walk(n.Left, bound)
-			walk(n.Right, bound)
+			walkAll(bound, n.Left, n.Right)
 		case *ast.ChainNode:
-			walk(n.Node, bound)
+			walkAll(bound, n.Node)
 		case *ast.SliceNode:
-			walk(n.Node, bound)
-			walk(n.From, bound)
-			walk(n.To, bound)
+			walkAll(bound, n.Node, n.From, n.To)
 		case *ast.BuiltinNode:
-			for _, a := range n.Arguments {
-				walk(a, bound)
-			}
+			walkAll(bound, n.Arguments...)
 		case *ast.PredicateNode:
-			walk(n.Node, bound)
+			walkAll(bound, n.Node)
 		case *ast.SequenceNode:
-			for _, s := range n.Nodes {
-				walk(s, bound)
-			}
+			walkAll(bound, n.Nodes...)
 		case *ast.ConditionalNode:
-			walk(n.Cond, bound)
-			walk(n.Exp1, bound)
-			walk(n.Exp2, bound)
+			walkAll(bound, n.Cond, n.Exp1, n.Exp2)
 		case *ast.ArrayNode:
-			for _, s := range n.Nodes {
-				walk(s, bound)
-			}
+			walkAll(bound, n.Nodes...)
 		case *ast.MapNode:
-			for _, s := range n.Pairs {
-				walk(s, bound)
-			}
+			walkAll(bound, n.Pairs...)
 		case *ast.PairNode:
-			walk(n.Key, bound)
-			walk(n.Value, bound)
+			walkAll(bound, n.Key, n.Value)
 		}
 	}
 	walk(root, map[string]bool{})

@@ -108,6 +108,7 @@ var badFixtures = []struct {
 		{CodeBadValue, 9, 14, `columns.day.minimum: "2024-01-01T10:00:00Z" is not a date`},
 		{CodeBadValue, 10, 14, `columns.day.maximum: "31/12/2024" is not a date`},
 		{CodeWrongKind, 12, 14, "columns.untyped.minimum: expected a number, got the text \"2024-01-01\" (declare type: timestamp or date to bound times)"},
+		{CodeWrongKind, 14, 14, "columns.quoted.maximum: expected a number, got the text \"2024-01-01T00:00:00Z\" (declare type: timestamp or date to bound times)"},
 	}},
 	{"tolerances.yaml", false, []want{
 		{CodeTolerance, 4, 12, "columns.a.nulls: share 150% is outside [0, 1]"},

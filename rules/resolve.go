@@ -120,10 +120,7 @@ func (r *resolver) names() {
 			r.rowName(p, seen)
 		}
 	}
-	closed := false
-	for _, p := range r.table {
-		closed = closed || p.rule.Kind == KindClosed
-	}
+	closed := r.closed()
 	for _, p := range r.table {
 		switch p.rule.Kind {
 		case KindKey, KindRequired:
@@ -138,10 +135,7 @@ func (r *resolver) names() {
 				}
 			}
 		case KindClosed:
-			var allowed []string
-			for _, c := range r.p.Columns {
-				allowed = append(allowed, c.Name)
-			}
+			allowed := r.columnNames()
 			if len(allowed) == 0 {
 				r.failAt(p.rule.Pos, CodeBadValue, p.rule.ID, "the table is closed but the policy declares no columns").Hint =
 					"declare the columns under columns, or drop closed"
@@ -151,18 +145,33 @@ func (r *resolver) names() {
 	}
 }
 
+// closed reports whether the policy closes the table to undeclared columns.
+func (r *resolver) closed() bool {
+	for _, p := range r.table {
+		if p.rule.Kind == KindClosed {
+			return true
+		}
+	}
+	return false
+}
+
+// columnNames lists the declared columns' names.
+func (r *resolver) columnNames() []string {
+	var names []string
+	for _, c := range r.p.Columns {
+		names = append(names, c.Name)
+	}
+	return names
+}
+
 // declared reports column c, used by a rule at, when a closed policy does
 // not declare it.
 func (r *resolver) declared(path, c string, at Pos) {
 	if r.p.Column(c) != nil {
 		return
 	}
-	var cols []string
-	for _, d := range r.p.Columns {
-		cols = append(cols, d.Name)
-	}
 	e := r.failAt(at, CodeUndeclared, path, "column %q is not declared, and the table is closed", c)
-	if e.Hint = didYouMean(c, cols); e.Hint == "" {
+	if e.Hint = didYouMean(c, r.columnNames()); e.Hint == "" {
 		e.Hint = "declare it under columns"
 	}
 }
@@ -534,7 +543,7 @@ func (r *resolver) boundSpec(p *pending, t Type, key string) {
 	switch {
 	case timed(t):
 		v, ok = r.timeText(p.rule.ID, p.val, t)
-	case t == TypeAny && p.val.Kind == yaml.ScalarNode && (p.val.ShortTag() == "!!timestamp"):
+	case t == TypeAny && p.val.Kind == yaml.ScalarNode && !isNumber(p.val) && isTime(p.val.Value):
 		r.wrongKind(p.val, p.rule.ID, "a number").Hint = "declare type: timestamp or date to bound times"
 	default:
 		v, ok = r.number(p.rule.ID, p.val)
@@ -542,6 +551,12 @@ func (r *resolver) boundSpec(p *pending, t Type, key string) {
 	if ok {
 		p.rule.Spec = BoundSpec{Bound: p.rule.Kind, Value: v, Exclusive: strings.HasPrefix(key, "exclusive"), Text: p.val.Value}
 	}
+}
+
+// isTime reports whether s reads as a timestamp or a date.
+func isTime(s string) bool {
+	_, err := parseTime(s, TypeTimestamp)
+	return err == nil
 }
 
 // patternSpec compiles a pattern.
