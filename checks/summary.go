@@ -7,6 +7,7 @@ import (
 	"math/big"
 	"math/bits"
 	"slices"
+	"strconv"
 
 	"github.com/apache/arrow-go/v18/arrow/array"
 
@@ -361,17 +362,29 @@ func (a *SummaryAccumulator) Finish() report.Result {
 	if name == "" {
 		name = string(a.check.stat)
 	}
+	var shown string
 	switch {
 	case why != "":
 		res.Message = fmt.Sprintf("%s is undefined: %s", name, why)
+		return res
 	case a.check.stat == rules.StatCount || a.check.stat == rules.StatDistinct:
 		res.Message = fmt.Sprintf("%s is %s", name, thousands(int64(v)))
+		return res
 	case a.check.stat == rules.StatStd && a.check.col.class == classTime:
-		res.Message = fmt.Sprintf("%s is %s s over %s values", name, number(v), thousands(a.Count))
-	default:
-		res.Message = fmt.Sprintf("%s is %s over %s values", name, quantity(a.check.env, a.check.col, v), thousands(a.Count))
+		shown = number(round7(v)) + " s"
+	case a.check.stat == rules.StatMin || a.check.stat == rules.StatMax || a.check.col.class == classTime:
+		shown = quantity(a.check.env, a.check.col, v) // a value of the data, or a time
+	default: // computed: 7 significant digits
+		shown = quantity(a.check.env, a.check.col, round7(v))
 	}
+	res.Message = fmt.Sprintf("%s is %s over %s values", name, shown, thousands(a.Count))
 	return res
+}
+
+// round7 rounds v to 7 significant digits, for messages.
+func round7(v float64) float64 {
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'g', 7, 64), 64)
+	return r
 }
 
 // value is the statistic, in seconds for time columns, or NaN and why it

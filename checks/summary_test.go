@@ -108,6 +108,16 @@ func TestSummaryVerdicts(t *testing.T) {
 	if want := "mean is 5 over 2 values"; res.Message != want {
 		t.Errorf("message %q, want %q", res.Message, want)
 	}
+	// Computed statistics are written to 7 significant digits, the
+	// measure keeps them all.
+	thirds := newBatch(t, mem, 1, col{"x", tFloat, []any{1.0, 2.0, 2.0}})
+	release(t, thirds)
+	env := envOf(thirds, 10)
+	env.Policy = &rules.Policy{Columns: []rules.Column{{Name: "x", Unit: "kg"}}}
+	res = run(t, compile(t, summaryRule(rules.StatMean, 0, within(0, 10), "x"), env), thirds)
+	if want := "mean is 1.666667 kg over 3 values"; res.Message != want || res.Measure.Value != 5.0/3 {
+		t.Errorf("message %q measure %v, want %q and 5/3", res.Message, res.Measure.Value, want)
+	}
 }
 
 // TestSummaryUndefined: a statistic that cannot be computed is NaN, says
