@@ -46,6 +46,10 @@ func DetectResolution(s Sorted) (Resolution, bool) {
 			prev = q
 		}
 	}
+	if g == 0 {
+		// Distinct values that round to the same multiple of 10^-12.
+		return Resolution{}, false
+	}
 	first := int64(math.Round(x[0] * scale))
 	origin := ((first % g) + g) % g
 	return Resolution{Step: float64(g) / scale, Origin: float64(origin) / scale}, true
