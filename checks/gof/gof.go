@@ -6,6 +6,21 @@
 // used, how the p-value was obtained, and an effect size that does not grow
 // with n.
 //
+// # Tests and p-values
+//
+//	test        reference                      function       p-value
+//	KS          fully specified                Specified      exact, Marsaglia, Tsang & Wang (2003), n <= 1000; asymptotic above
+//	AD          fully specified                Specified      Marsaglia & Marsaglia (2004)
+//	CvM         fully specified                Specified      Csörgő & Faraway (1996)
+//	KS          normal, mean and sd estimated  Normal         Dallal & Wilkinson (1986) for p <= 0.1, bootstrap above
+//	AD, CvM     normal, mean and sd estimated  Normal         Stephens; D'Agostino & Stephens (1986), table 4.9
+//	AD          exponential, scale estimated   Exponential    Stephens (1974); D'Agostino & Stephens (1986)
+//	KS, CvM     exponential, scale estimated   Exponential    parametric bootstrap (exact Monte Carlo)
+//	KS, AD, CvM any fitted family              Estimated      parametric bootstrap
+//	SW          normal                         ShapiroWilk    Royston (1992, 1995)
+//	chi-square  cell probabilities             ChiSquare      chi-square, df = cells - 1 - estimated
+//	KS          fully specified, resolution h  KSAtResolution continuous KS at the boundary statistic (conservative)
+//
 // # Which measure to judge
 //
 // A p-value answers "could this sample come from the reference?". With

@@ -22,7 +22,8 @@ import (
 // the union (Merge). Everything is driven by the generator seeded in
 // NewReservoir, so the sample repeats for the same seed and input order.
 // Give each shard its own seed: reservoirs with equal seeds pick the same
-// positions, and their samples are then not independent.
+// positions, and their samples are then not independent. A Reservoir is not
+// safe for concurrent use; give each goroutine its own and merge them.
 type Reservoir struct {
 	size  int
 	seen  int64
