@@ -475,3 +475,26 @@ func TestExponentialPointsBySimulation(t *testing.T) {
 		t.Errorf("simulated 5%% point of the modified D = %.4f, Stephens 1.094", q)
 	}
 }
+
+// Shapiro-Wilk at the smallest sizes, where AS R94 switches branches: n = 3
+// (exact p), n = 5 (only a_n adjusted), n = 6 (a_n and a_(n-1)) [computed:
+// R 4.2.2 shapiro.test].
+func TestShapiroWilkSmallN(t *testing.T) {
+	for _, c := range []struct {
+		x    []float64
+		w, p float64
+	}{
+		{[]float64{2.1, 3.7, 3.9}, 0.832191780821918, 0.193917521481448},
+		{[]float64{1.2, 3.4, 2.2, 8.1, 4.0}, 0.899921725273185, 0.409453047599558},
+		{[]float64{5, 1, 2.5, 3, 9, 4.4}, 0.930900290388075, 0.58707216705482},
+	} {
+		s, _ := Sort(c.x)
+		r, err := ShapiroWilk(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !near(r.Statistic.Value, c.w, 1e-12) || !near(r.PValue, c.p, 1e-12) {
+			t.Errorf("n=%d: W = %.15g p = %.15g, want %v and %v", len(c.x), r.Statistic.Value, r.PValue, c.w, c.p)
+		}
+	}
+}
