@@ -75,13 +75,19 @@ func bindColumn(env *Env, name string) (column, error) {
 	return c, nil
 }
 
-// bindColumnOf binds the only column rule r reads and checks that its class
-// is one of want; what names the rule's kind for the error.
-func bindColumnOf(r *rules.Rule, env *Env, what string, want ...class) (column, error) {
+// bindOne binds the only column rule r reads; what names the rule's kind
+// for the error.
+func bindOne(r *rules.Rule, env *Env, what string) (column, error) {
 	if len(r.Columns) != 1 {
 		return column{}, fmt.Errorf("%s reads one column, the rule names %d", what, len(r.Columns))
 	}
-	c, err := bindColumn(env, r.Columns[0])
+	return bindColumn(env, r.Columns[0])
+}
+
+// bindColumnOf binds the only column rule r reads and checks that its class
+// is one of want.
+func bindColumnOf(r *rules.Rule, env *Env, what string, want ...class) (column, error) {
+	c, err := bindOne(r, env, what)
 	if err != nil {
 		return column{}, err
 	}

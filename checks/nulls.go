@@ -1,8 +1,6 @@
 package checks
 
 import (
-	"fmt"
-
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
@@ -19,10 +17,7 @@ type nullsCheck struct {
 }
 
 func newNullsCheck(r *rules.Rule, env *Env) (Check, error) {
-	if len(r.Columns) != 1 {
-		return nil, fmt.Errorf("nulls reads one column, the rule names %d", len(r.Columns))
-	}
-	c, err := bindColumn(env, r.Columns[0])
+	c, err := bindOne(r, env, "nulls")
 	if err != nil {
 		return nil, err
 	}

@@ -78,10 +78,7 @@ func newSummaryCheck(r *rules.Rule, s rules.SummarySpec, env *Env) (Check, error
 	what := "summary " + string(s.Stat)
 	switch s.Stat {
 	case rules.StatCount:
-		if len(r.Columns) != 1 {
-			return nil, fmt.Errorf("%s reads one column, the rule names %d", what, len(r.Columns))
-		}
-		c, err = bindColumn(env, r.Columns[0])
+		c, err = bindOne(r, env, what)
 	case rules.StatDistinct:
 		c, err = bindColumnOf(r, env, what, classInteger, classNumber, classTime, classString, classBoolean)
 	case rules.StatMean, rules.StatStd, rules.StatMin, rules.StatMax, rules.StatMedian, rules.StatQuantile:

@@ -23,10 +23,7 @@ type typeCheck struct {
 }
 
 func newTypeCheck(r *rules.Rule, s rules.TypeSpec, env *Env) (Check, error) {
-	if len(r.Columns) != 1 {
-		return nil, fmt.Errorf("type reads one column, the rule names %d", len(r.Columns))
-	}
-	c, err := bindColumn(env, r.Columns[0])
+	c, err := bindOne(r, env, "type")
 	if err != nil {
 		return nil, err
 	}

@@ -1,10 +1,6 @@
 package checks
 
-import (
-	"fmt"
-
-	"github.com/assay-project/assay/rules"
-)
+import "github.com/assay-project/assay/rules"
 
 // newUniqueCheck compiles unique: the share of a column's non-null values
 // that belong to a duplicated value, every row of each duplicated group
@@ -12,8 +8,8 @@ import (
 // did not parse are not values and never duplicates. It runs in two passes
 // (see dupCheck): hashes first, exact groups second.
 func newUniqueCheck(r *rules.Rule, env *Env) (Check, error) {
-	if len(r.Columns) != 1 {
-		return nil, fmt.Errorf("unique reads one column, the rule names %d", len(r.Columns))
+	if _, err := bindOne(r, env, "unique"); err != nil {
+		return nil, err
 	}
 	return newDupCheck(r, env, false)
 }
