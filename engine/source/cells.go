@@ -1,0 +1,379 @@
+package source
+
+import (
+	"strconv"
+	"unsafe"
+)
+
+// Cell grammars for text input (CSV cells, and strings in Parquet or Arrow
+// files read as a declared type). Each parser takes a cell's bytes exactly as
+// read, after unquoting, and never trims blanks: " 5" is not a number.
+//
+// Number (the grammar of integer and number columns):
+//
+//	number   = [sign] mantissa [exponent]
+//	mantissa = digits ["." [digits]] | "." digits
+//	exponent = ("e" | "E") [sign] digits
+//	integer  = [sign] digits
+//	sign     = "+" | "-"
+//	digits   = one or more of "0"..."9"
+//
+// So "-1.5e3", ".5", "5.", "+7" and "007" are numbers; "0x1p3", "1_000",
+// "Inf", "NaN", "1e", "." and " 5" are not. A number becomes the float64
+// nearest to its decimal value (ties to even), the result strconv.ParseFloat
+// gives; one whose magnitude rounds beyond the float64 range is invalid, one
+// too small to represent becomes zero. An integer is the same grammar without
+// fraction or exponent, and its value must lie in [-2^63, 2^63-1]: "5.0" and
+// "1e3" are numbers but not integers.
+//
+// Boolean: "true", "True", "TRUE", "false", "False" or "FALSE" (not 1/0,
+// yes/no or t/f).
+//
+// Timestamp (RFC 3339, with a space also allowed between date and time):
+//
+//	YYYY-MM-DD ("T" | "t" | " ") hh:mm:ss ["." digits] ["Z" | "z" | ("+" | "-") hh:mm]
+//
+// without an offset the time is UTC; it becomes microseconds since
+// 1970-01-01T00:00:00Z, fraction digits past the sixth dropped. Seconds run
+// 00-59 (no leap second 60); years 0000-9999.
+//
+// Date: YYYY-MM-DD, a valid day of the proleptic Gregorian calendar, which
+// becomes days since 1970-01-01.
+
+// pow10 holds the powers of ten that float64 represents exactly.
+var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
+	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
+
+// parseInt parses b by the integer grammar.
+func parseInt(b []byte) (int64, bool) {
+	i := 0
+	neg := false
+	if len(b) > 0 && (b[0] == '+' || b[0] == '-') {
+		neg = b[0] == '-'
+		i = 1
+	}
+	if i == len(b) {
+		return 0, false
+	}
+	const cutoff = (1 << 63) / 10
+	var u uint64
+	for ; i < len(b); i++ {
+		d := b[i] - '0'
+		if d > 9 || u > cutoff {
+			return 0, false
+		}
+		u = u*10 + uint64(d)
+	}
+	if neg {
+		if u > 1<<63 {
+			return 0, false
+		}
+		return -int64(u), true
+	}
+	if u > 1<<63-1 {
+		return 0, false
+	}
+	return int64(u), true
+}
+
+// parseFloat parses b by the number grammar.
+//
+// Mantissas of at most 2^53 with a decimal exponent in [-22, 22] take the
+// exact fast path of Clinger (1990, "How to read floating point numbers
+// accurately", PLDI '90, section 3): both operands are exact float64 values,
+// so the single IEEE multiplication or division rounds correctly. Everything
+// else goes to strconv.ParseFloat, which is correctly rounded too.
+func parseFloat(b []byte) (float64, bool) {
+	i, n := 0, len(b)
+	neg := false
+	if i < n && (b[i] == '+' || b[i] == '-') {
+		neg = b[i] == '-'
+		i++
+	}
+	var mant uint64
+	nd, exp := 0, 0 // significant digits in mant; decimal exponent of mant
+	digits, slow := false, false
+	for ; i < n; i++ {
+		d := b[i] - '0'
+		if d > 9 {
+			break
+		}
+		digits = true
+		switch {
+		case mant == 0 && d == 0:
+		case nd < 19:
+			mant = mant*10 + uint64(d)
+			nd++
+		default:
+			slow = true
+		}
+	}
+	if i < n && b[i] == '.' {
+		for i++; i < n; i++ {
+			d := b[i] - '0'
+			if d > 9 {
+				break
+			}
+			digits = true
+			switch {
+			case mant == 0 && d == 0:
+				exp--
+			case nd < 19:
+				mant = mant*10 + uint64(d)
+				nd++
+				exp--
+			default:
+				slow = true
+			}
+		}
+	}
+	if !digits {
+		return 0, false
+	}
+	if i < n && (b[i] == 'e' || b[i] == 'E') {
+		i++
+		eneg := false
+		if i < n && (b[i] == '+' || b[i] == '-') {
+			eneg = b[i] == '-'
+			i++
+		}
+		start, e := i, 0
+		for ; i < n; i++ {
+			d := b[i] - '0'
+			if d > 9 {
+				break
+			}
+			if e < 1e6 {
+				e = e*10 + int(d)
+			}
+		}
+		if i == start {
+			return 0, false
+		}
+		if eneg {
+			e = -e
+		}
+		exp += e
+	}
+	if i != n {
+		return 0, false
+	}
+	if !slow && mant <= 1<<53 && exp >= -22 && exp <= 22 {
+		f := float64(mant)
+		if exp < 0 {
+			f /= pow10[-exp]
+		} else {
+			f *= pow10[exp]
+		}
+		if neg {
+			f = -f
+		}
+		return f, true
+	}
+	// The grammar is a subset of strconv's, so only a range error remains.
+	// strconv copies the text into any error it returns, so the string view
+	// does not outlive b.
+	f, err := strconv.ParseFloat(unsafe.String(unsafe.SliceData(b), len(b)), 64)
+	return f, err == nil
+}
+
+// parseBool parses b by the boolean grammar.
+func parseBool(b []byte) (v, ok bool) {
+	switch string(b) {
+	case "true", "True", "TRUE":
+		return true, true
+	case "false", "False", "FALSE":
+		return false, true
+	}
+	return false, false
+}
+
+// digits2 reads the two-digit decimal at b[i:i+2].
+func digits2(b []byte, i int) (int, bool) {
+	d1, d2 := b[i]-'0', b[i+1]-'0'
+	return int(d1)*10 + int(d2), d1 <= 9 && d2 <= 9
+}
+
+// parseYMD reads YYYY-MM-DD at the start of b (which has at least 10 bytes)
+// and returns days since 1970-01-01.
+func parseYMD(b []byte) (int64, bool) {
+	hi, ok1 := digits2(b, 0)
+	lo, ok2 := digits2(b, 2)
+	m, ok3 := digits2(b, 5)
+	d, ok4 := digits2(b, 8)
+	if !(ok1 && ok2 && ok3 && ok4) || b[4] != '-' || b[7] != '-' {
+		return 0, false
+	}
+	y := hi*100 + lo
+	if m < 1 || m > 12 || d < 1 || d > daysIn(y, m) {
+		return 0, false
+	}
+	return daysFromCivil(y, m, d), true
+}
+
+// parseDate parses b by the date grammar into days since 1970-01-01.
+func parseDate(b []byte) (int32, bool) {
+	if len(b) != 10 {
+		return 0, false
+	}
+	d, ok := parseYMD(b)
+	return int32(d), ok
+}
+
+// parseTimestamp parses b by the timestamp grammar into microseconds since
+// 1970-01-01T00:00:00Z.
+func parseTimestamp(b []byte) (int64, bool) {
+	if len(b) < 19 {
+		return 0, false
+	}
+	days, ok := parseYMD(b)
+	if !ok {
+		return 0, false
+	}
+	if c := b[10]; c != 'T' && c != 't' && c != ' ' {
+		return 0, false
+	}
+	h, ok1 := digits2(b, 11)
+	mi, ok2 := digits2(b, 14)
+	s, ok3 := digits2(b, 17)
+	if !(ok1 && ok2 && ok3) || b[13] != ':' || b[16] != ':' || h > 23 || mi > 59 || s > 59 {
+		return 0, false
+	}
+	i := 19
+	var micros int64
+	if i < len(b) && b[i] == '.' {
+		i++
+		start := i
+		scale := int64(100000)
+		for ; i < len(b) && b[i]-'0' <= 9; i++ {
+			micros += int64(b[i]-'0') * scale
+			scale /= 10
+		}
+		if i == start {
+			return 0, false
+		}
+	}
+	offset := 0 // seconds east of UTC
+	if i < len(b) {
+		switch b[i] {
+		case 'Z', 'z':
+			i++
+		case '+', '-':
+			if len(b)-i < 6 || b[i+3] != ':' {
+				return 0, false
+			}
+			oh, ok1 := digits2(b, i+1)
+			om, ok2 := digits2(b, i+4)
+			if !ok1 || !ok2 || oh > 23 || om > 59 {
+				return 0, false
+			}
+			offset = oh*3600 + om*60
+			if b[i] == '-' {
+				offset = -offset
+			}
+			i += 6
+		default:
+			return 0, false
+		}
+	}
+	if i != len(b) {
+		return 0, false
+	}
+	secs := days*86400 + int64(h*3600+mi*60+s-offset)
+	return secs*1e6 + micros, true
+}
+
+// daysIn returns the number of days of month m (1-12) in year y of the
+// proleptic Gregorian calendar.
+func daysIn(y, m int) int {
+	switch m {
+	case 2:
+		if y%4 == 0 && (y%100 != 0 || y%400 == 0) {
+			return 29
+		}
+		return 28
+	case 4, 6, 9, 11:
+		return 30
+	}
+	return 31
+}
+
+// daysFromCivil returns the number of days from 1970-01-01 to y-m-d in the
+// proleptic Gregorian calendar, by the days_from_civil algorithm of
+// H. Hinnant (2013), "chrono-Compatible Low-Level Date Algorithms": count
+// 400-year eras of 146097 days from 0000-03-01, so that the leap day falls at
+// the end of each year.
+func daysFromCivil(y, m, d int) int64 {
+	if m <= 2 {
+		y--
+	}
+	era := y / 400
+	if y < 0 {
+		era = (y - 399) / 400
+	}
+	yoe := y - era*400 // [0, 399]
+	mp := (m + 9) % 12 // March = 0
+	doy := (153*mp+2)/5 + d - 1
+	doe := yoe*365 + yoe/4 - yoe/100 + doy
+	return int64(era)*146097 + int64(doe) - 719468
+}
+
+// Bits of a cell's fit, for type inference.
+const (
+	fitInt uint8 = 1 << iota
+	fitFloat
+	fitBool
+	fitTimestamp
+	fitDate
+	fitAll = fitInt | fitFloat | fitBool | fitTimestamp | fitDate
+)
+
+// fits returns the set of non-string kinds whose grammar b follows.
+func fits(b []byte) uint8 {
+	if len(b) == 0 {
+		return 0
+	}
+	var f uint8
+	switch c := b[0]; {
+	case c >= '0' && c <= '9' || c == '+' || c == '-' || c == '.':
+		if _, ok := parseInt(b); ok {
+			f |= fitInt | fitFloat
+		} else if _, ok := parseFloat(b); ok {
+			f |= fitFloat
+		}
+		if len(b) == 10 {
+			if _, ok := parseDate(b); ok {
+				f |= fitDate
+			}
+		} else if _, ok := parseTimestamp(b); ok {
+			f |= fitTimestamp
+		}
+	case c == 't' || c == 'T' || c == 'f' || c == 'F':
+		if _, ok := parseBool(b); ok {
+			f |= fitBool
+		}
+	}
+	return f
+}
+
+// inferKind picks a column's kind from the intersection of its sampled
+// cells' fits: integer, else number, else boolean, timestamp or date, else
+// string. A column with no non-null cell in the sample (fit still fitAll)
+// is string.
+func inferKind(fit uint8) kind {
+	switch {
+	case fit == fitAll:
+		return kString
+	case fit&fitInt != 0:
+		return kInt
+	case fit&fitFloat != 0:
+		return kFloat
+	case fit&fitBool != 0:
+		return kBool
+	case fit&fitTimestamp != 0:
+		return kTimestamp
+	case fit&fitDate != 0:
+		return kDate
+	}
+	return kString
+}

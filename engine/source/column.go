@@ -1,0 +1,217 @@
+package source
+
+import (
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/bitutil"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+)
+
+// nullSet holds the cell texts read as null.
+type nullSet struct {
+	lens   uint64 // bit n is set when some token is n bytes long (n < 64)
+	long   bool   // some token is 64 bytes or longer
+	tokens []string
+}
+
+func newNullSet(tokens []string) *nullSet {
+	ns := &nullSet{tokens: tokens}
+	for _, t := range tokens {
+		if len(t) < 64 {
+			ns.lens |= 1 << len(t)
+		} else {
+			ns.long = true
+		}
+	}
+	return ns
+}
+
+// has reports whether b is a null token.
+func (ns *nullSet) has(b []byte) bool {
+	if len(b) < 64 {
+		if ns.lens&(1<<len(b)) == 0 {
+			return false
+		}
+	} else if !ns.long {
+		return false
+	}
+	for _, t := range ns.tokens {
+		if string(b) == t {
+			return true
+		}
+	}
+	return false
+}
+
+// column accumulates the cells of one CSV column for a batch, parsing them
+// straight into Arrow buffers: a validity bitmap and the values (int64,
+// float64 and timestamp as 8-byte values, date as 4-byte days, booleans as a
+// bitmap, strings as int32 offsets plus bytes).
+type column struct {
+	kind  kind
+	mem   memory.Allocator
+	nulls *nullSet
+
+	n, nullCount int
+	valid        *memory.Buffer
+	bits         []byte
+	vals         *memory.Buffer
+	i64          []int64
+	f64          []float64
+	i32          []int32 // dates, or string offsets
+	vbits        []byte  // boolean values
+	data         *memory.Buffer
+	dbuf         []byte
+	dlen         int // bytes in data; kept after finish as a size guess
+	invalid      []InvalidCell
+}
+
+func newColumn(k kind, nulls *nullSet, mem memory.Allocator) *column {
+	return &column{kind: k, nulls: nulls, mem: mem}
+}
+
+// start readies the column for a batch of up to rows rows.
+func (c *column) start(rows int) {
+	c.n, c.nullCount, c.invalid = 0, 0, nil
+	c.valid = zeroed(c.mem, int(bitutil.BytesForBits(int64(rows))))
+	c.bits = c.valid.Bytes()
+	switch c.kind {
+	case kInt, kTimestamp:
+		c.vals = zeroed(c.mem, rows*8)
+		c.i64 = arrow.Int64Traits.CastFromBytes(c.vals.Bytes())
+	case kFloat:
+		c.vals = zeroed(c.mem, rows*8)
+		c.f64 = arrow.Float64Traits.CastFromBytes(c.vals.Bytes())
+	case kDate:
+		c.vals = zeroed(c.mem, rows*4)
+		c.i32 = arrow.Int32Traits.CastFromBytes(c.vals.Bytes())
+	case kBool:
+		c.vals = zeroed(c.mem, int(bitutil.BytesForBits(int64(rows))))
+		c.vbits = c.vals.Bytes()
+	case kString:
+		c.vals = zeroed(c.mem, (rows+1)*4)
+		c.i32 = arrow.Int32Traits.CastFromBytes(c.vals.Bytes())
+		// The previous batch's size is a good guess.
+		size := max(64<<10, c.dlen+c.dlen/8)
+		c.data = memory.NewResizableBuffer(c.mem)
+		c.data.Reserve(size)
+		c.dbuf, c.dlen = c.data.Buf(), 0
+	}
+}
+
+// zeroed allocates a buffer of n zero bytes.
+func zeroed(mem memory.Allocator, n int) *memory.Buffer {
+	b := memory.NewResizableBuffer(mem)
+	b.Resize(n)
+	memory.Set(b.Bytes(), 0)
+	return b
+}
+
+// append adds one cell.
+func (c *column) append(b []byte) {
+	i := c.n
+	c.n++
+	if c.nulls.has(b) {
+		c.nullCount++
+		if c.kind == kString {
+			c.i32[i+1] = int32(c.dlen)
+		}
+		return
+	}
+	switch c.kind {
+	case kInt:
+		v, ok := parseInt(b)
+		if !ok {
+			c.bad(i, b)
+			return
+		}
+		c.i64[i] = v
+	case kFloat:
+		v, ok := parseFloat(b)
+		if !ok {
+			c.bad(i, b)
+			return
+		}
+		c.f64[i] = v
+	case kTimestamp:
+		v, ok := parseTimestamp(b)
+		if !ok {
+			c.bad(i, b)
+			return
+		}
+		c.i64[i] = v
+	case kDate:
+		v, ok := parseDate(b)
+		if !ok {
+			c.bad(i, b)
+			return
+		}
+		c.i32[i] = v
+	case kBool:
+		v, ok := parseBool(b)
+		if !ok {
+			c.bad(i, b)
+			return
+		}
+		if v {
+			bitutil.SetBit(c.vbits, i)
+		}
+	case kString:
+		end := c.dlen + len(b)
+		if end > len(c.dbuf) {
+			c.data.Reserve(max(end, 2*len(c.dbuf)))
+			c.dbuf = c.data.Buf()
+		}
+		copy(c.dbuf[c.dlen:], b)
+		c.dlen = end
+		c.i32[i+1] = int32(end)
+	}
+	bitutil.SetBit(c.bits, i)
+}
+
+// bad records cell i, text b, as null and invalid.
+func (c *column) bad(i int, b []byte) {
+	c.nullCount++
+	c.invalid = append(c.invalid, InvalidCell{Row: i, Text: string(b)})
+}
+
+// finish returns the column's cells as an array and lets go of the batch's
+// buffers.
+func (c *column) finish() arrow.Array {
+	n := c.n
+	if c.nullCount == 0 {
+		c.valid.Release()
+		c.valid = nil
+	} else {
+		c.valid.ResizeNoShrink(int(bitutil.BytesForBits(int64(n))))
+	}
+	buffers := []*memory.Buffer{c.valid, c.vals}
+	switch c.kind {
+	case kInt, kTimestamp, kFloat:
+		c.vals.ResizeNoShrink(n * 8)
+	case kDate:
+		c.vals.ResizeNoShrink(n * 4)
+	case kBool:
+		c.vals.ResizeNoShrink(int(bitutil.BytesForBits(int64(n))))
+	case kString:
+		c.vals.ResizeNoShrink((n + 1) * 4)
+		c.data.ResizeNoShrink(c.dlen)
+		buffers = append(buffers, c.data)
+	}
+	data := array.NewData(c.kind.dataType(), n, buffers, nil, c.nullCount, 0)
+	arr := array.MakeFromData(data)
+	data.Release()
+	c.release()
+	return arr
+}
+
+// release drops the column's references to its buffers.
+func (c *column) release() {
+	for _, b := range []*memory.Buffer{c.valid, c.vals, c.data} {
+		if b != nil {
+			b.Release()
+		}
+	}
+	c.valid, c.vals, c.data = nil, nil, nil
+	c.bits, c.i64, c.f64, c.i32, c.vbits, c.dbuf = nil, nil, nil, nil, nil, nil
+}

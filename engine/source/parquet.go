@@ -1,0 +1,182 @@
+package source
+
+import (
+	"bytes"
+	"context"
+	"encoding/binary"
+	"fmt"
+	"os"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/file"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// openParquet opens the Parquet file of in, checking first that it is
+// whole: a Parquet file ends with its footer, the footer's length and
+// "PAR1".
+func (s *Set) openParquet(in *input, f *os.File, size int64) (*file.Reader, error) {
+	tail := make([]byte, 8) // footer length, "PAR1"
+	if size >= 12 {
+		if _, err := f.ReadAt(tail, size-8); err != nil {
+			return nil, &Error{Path: in.name, Msg: "cannot read the file: " + pathErrText(err), Err: err}
+		}
+	}
+	if !bytes.Equal(tail[4:], parquetMagic) || int64(binary.LittleEndian.Uint32(tail))+12 > size {
+		return nil, errorf(in.name, "the Parquet file is truncated: it does not end with its footer and \"PAR1\" (it was cut short; copy it again)")
+	}
+	props := parquet.NewReaderProperties(s.opts.Allocator)
+	r, err := file.NewParquetReader(f, file.WithReadProps(props))
+	if err != nil {
+		return nil, &Error{Path: in.name, Err: err,
+			Msg: "cannot read the Parquet footer: " + err.Error() + " (the file is damaged; copy it again)"}
+	}
+	return r, nil
+}
+
+// inspectParquet reads the schema and row count of a Parquet input.
+func (s *Set) inspectParquet(in *input, f *os.File, size int64) error {
+	r, err := s.openParquet(in, f, size)
+	if err != nil {
+		return err
+	}
+	defer r.Close()
+	fr, err := pqarrow.NewFileReader(r, pqarrow.ArrowReadProperties{}, s.opts.Allocator)
+	if err != nil {
+		return &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet schema: " + err.Error()}
+	}
+	sc, err := fr.Schema()
+	if err != nil {
+		return &Error{Path: in.name, Err: err, Msg: "cannot map the Parquet schema to Arrow types: " + err.Error()}
+	}
+	setColumns(in, sc)
+	in.Rows = r.NumRows()
+	return checkNames(in, 0)
+}
+
+// setColumns takes the names and types of a Parquet or Arrow input from its
+// schema.
+func setColumns(in *input, sc *arrow.Schema) {
+	in.names = make([]string, sc.NumFields())
+	in.types = make([]arrow.DataType, sc.NumFields())
+	for i, f := range sc.Fields() {
+		in.names[i], in.types[i] = f.Name, f.Type
+	}
+}
+
+// leaves appends the Parquet leaf column indices under field f.
+func leaves(dst []int, f *pqarrow.SchemaField) []int {
+	if f.IsLeaf() {
+		return append(dst, f.ColIndex)
+	}
+	for i := range f.Children {
+		dst = leaves(dst, &f.Children[i])
+	}
+	return dst
+}
+
+// scanParquet reads input i by record batches of at most BatchRows rows,
+// decoding only the projected columns.
+func (s *Set) scanParquet(ctx context.Context, i int, proj []int, schema *arrow.Schema, first int64, fn func(*Batch) error) (int64, error) {
+	in := s.inputs[i]
+	f, size, err := openFile(in)
+	if err != nil {
+		return 0, err
+	}
+	defer f.Close()
+	r, err := s.openParquet(in, f, size)
+	if err != nil {
+		return 0, err
+	}
+	defer r.Close()
+	total := r.NumRows()
+	if total == 0 {
+		return 0, nil
+	}
+	if len(proj) == 0 {
+		return total, emitRows(ctx, i, schema, first, total, int64(s.opts.BatchRows), fn)
+	}
+	props := pqarrow.ArrowReadProperties{BatchSize: int64(s.opts.BatchRows)}
+	fr, err := pqarrow.NewFileReader(r, props, s.opts.Allocator)
+	if err != nil {
+		return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet schema: " + err.Error()}
+	}
+	var cols []int
+	for _, sc := range proj {
+		cols = leaves(cols, &fr.Manifest.Fields[in.pos[sc]])
+	}
+	rr, err := fr.GetRecordReader(ctx, cols, nil)
+	if err != nil {
+		return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet columns: " + err.Error()}
+	}
+	defer rr.Release()
+	// The reader's columns come in the order of proj, as cols lists them.
+	var rows int64
+	for rr.Next() {
+		if err := ctx.Err(); err != nil {
+			return rows, err
+		}
+		rec := rr.RecordBatch()
+		if err := s.deliver(in, i, rec.Columns(), rec.NumRows(), proj, schema, first+rows, fn); err != nil {
+			return rows, err
+		}
+		rows += rec.NumRows()
+	}
+	if err := rr.Err(); err != nil {
+		return rows, &Error{Path: in.name, Row: rows + 1, Err: err, Msg: fmt.Sprintf(
+			"cannot read the Parquet data after row %d: %v (the file is damaged; copy it again)", rows, err)}
+	}
+	return rows, nil
+}
+
+// deliver converts columns as stored, stored[k] holding the Set's column
+// proj[k], into a Batch of rows rows and hands it to fn.
+func (s *Set) deliver(in *input, i int, stored []arrow.Array, rows int64, proj []int, schema *arrow.Schema, firstRow int64, fn func(*Batch) error) error {
+	cols := make([]arrow.Array, len(proj))
+	var invalid map[int][]InvalidCell
+	for k, sc := range proj {
+		a := stored[k]
+		conv := in.conv[sc]
+		if conv == nil {
+			a.Retain()
+			cols[k] = a
+			continue
+		}
+		var bad []InvalidCell
+		cols[k], bad = conv(a, s.opts.Allocator)
+		if bad != nil {
+			if invalid == nil {
+				invalid = make(map[int][]InvalidCell)
+			}
+			invalid[k] = bad
+		}
+	}
+	b := &Batch{Record: array.NewRecordBatch(schema, cols, rows), Source: i, FirstRow: firstRow, Invalid: invalid}
+	for _, c := range cols {
+		c.Release()
+	}
+	err := fn(b)
+	b.Release()
+	return err
+}
+
+// emitRows delivers batches without columns for total rows, when a scan
+// asks for no column.
+func emitRows(ctx context.Context, i int, schema *arrow.Schema, first, total, batchRows int64, fn func(*Batch) error) error {
+	for done := int64(0); done < total; {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		n := min(batchRows, total-done)
+		b := &Batch{Record: array.NewRecordBatch(schema, nil, n), Source: i, FirstRow: first + done}
+		err := fn(b)
+		b.Release()
+		if err != nil {
+			return err
+		}
+		done += n
+	}
+	return nil
+}

@@ -1,0 +1,351 @@
+package source
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"unicode/utf8"
+)
+
+// Sizes of the splitter's buffer.
+const (
+	defaultBufferSize = 1 << 20  // first read size; the buffer grows only for longer records
+	maxRecordBytes    = 64 << 20 // a longer record is an error, usually an unclosed quote
+)
+
+// span locates one field of the current record in the splitter's buffer.
+type span struct {
+	start, end int
+	doubled    bool // quoted, with doubled quotes still to undo
+}
+
+// splitter cuts CSV text into records and fields. It reads large blocks into
+// one buffer and hands out fields as slices of it, valid until the next call
+// of next.
+//
+// Syntax: fields are separated by the delimiter and records end at "\n" or
+// "\r\n" (a lone "\r" is an ordinary character). A field that starts with the
+// quote character runs to the matching closing quote; inside it the
+// delimiter and line breaks are text and a doubled quote stands for one
+// quote; after the closing quote comes the delimiter, a line break or the
+// end of the input. A quote anywhere else is an ordinary character. Lines
+// with no characters are skipped. The text must be UTF-8 without NUL bytes.
+type splitter struct {
+	r      io.Reader
+	buf    []byte
+	pos    int   // start of unread data
+	end    int   // end of data read
+	eof    bool  // r has no more data
+	rerr   error // r failed
+	line   int64 // line number of buf[pos]
+	delim  byte
+	quote  byte
+	quotes bool // quoting on
+
+	stop  [256]bool // bytes that end an unquoted run
+	qstop [256]bool // bytes that end a run inside quotes
+
+	// The record last read.
+	fields   []span
+	recLine  int64 // line on which it starts
+	recStart int
+	recEnd   int
+}
+
+// splitError is a syntax error of the text, to be located by the caller.
+type splitError struct {
+	line  int64 // line of the offending byte, or where an unclosed quote opened
+	field int   // 0-based field index within the record
+	msg   string
+	err   error
+}
+
+func (e *splitError) Error() string { return e.msg }
+
+const nulMessage = "NUL byte in the text (is this a binary or UTF-16 file? save it as UTF-8 text)"
+
+// errNeedMore tells that the record runs past the data in the buffer.
+var errNeedMore = errors.New("need more data")
+
+func newSplitter(r io.Reader, delim, quote byte, quotes bool, bufSize int) *splitter {
+	if bufSize <= 0 {
+		bufSize = defaultBufferSize
+	}
+	s := &splitter{r: r, buf: make([]byte, bufSize), line: 1, delim: delim, quote: quote, quotes: quotes}
+	for _, c := range []byte{delim, '\n', '\r', 0} {
+		s.stop[c] = true
+	}
+	for _, c := range []byte{quote, '\n', 0} {
+		s.qstop[c] = true
+	}
+	return s
+}
+
+// skipBOM drops a UTF-8 byte order mark at the start of the input.
+func (s *splitter) skipBOM() error {
+	for s.end-s.pos < 3 && !s.eof {
+		if err := s.fill(); err != nil {
+			return err
+		}
+	}
+	if bytes.HasPrefix(s.buf[s.pos:s.end], []byte("\xef\xbb\xbf")) {
+		s.pos += 3
+	}
+	return nil
+}
+
+// next reads the next record into s.fields. It returns false at the end of
+// the input.
+func (s *splitter) next() (bool, error) {
+	for {
+		err := s.scan()
+		if err == nil {
+			return len(s.fields) > 0, nil
+		}
+		if err != errNeedMore {
+			return false, err
+		}
+		if err := s.fill(); err != nil {
+			return false, err
+		}
+	}
+}
+
+// field returns the bytes of field f of the current record.
+func (s *splitter) field(f span) []byte { return s.buf[f.start:f.end] }
+
+// fill reads more input, first moving unread data to the front of the
+// buffer and growing the buffer when the unread data fills it.
+func (s *splitter) fill() error {
+	if s.rerr != nil {
+		return s.rerr
+	}
+	if s.pos > 0 {
+		n := copy(s.buf, s.buf[s.pos:s.end])
+		s.pos, s.end = 0, n
+	}
+	if s.end == len(s.buf) {
+		if len(s.buf) >= maxRecordBytes {
+			return &splitError{line: s.line, field: -1, msg: fmt.Sprintf(
+				"the row starting on this line is longer than %d MiB (is a quote opened here never closed? double quotes inside quoted text, or turn quoting off)",
+				maxRecordBytes>>20)}
+		}
+		nb := make([]byte, min(2*len(s.buf), maxRecordBytes))
+		copy(nb, s.buf[:s.end])
+		s.buf = nb
+	}
+	for s.end < len(s.buf) {
+		n, err := s.r.Read(s.buf[s.end:])
+		s.end += n
+		if err == io.EOF {
+			s.eof = true
+			return nil
+		}
+		if err != nil {
+			msg := "cannot read the file: " + err.Error()
+			if errors.Is(err, io.ErrUnexpectedEOF) {
+				msg = "the compressed data ends early (the file was cut short; copy it again)"
+			}
+			s.rerr = &splitError{line: s.line, field: -1, msg: msg, err: err}
+			return s.rerr
+		}
+	}
+	return nil
+}
+
+// scan parses one record from s.buf[s.pos:s.end]. It returns errNeedMore
+// when the record may continue past s.end, leaving s.pos unchanged.
+func (s *splitter) scan() error {
+	buf := s.buf[:s.end]
+	stop, qstop := &s.stop, &s.qstop
+	i, line := s.pos, s.line
+	s.fields = s.fields[:0]
+	// Skip empty lines.
+	for {
+		if i == len(buf) {
+			if !s.eof {
+				return errNeedMore
+			}
+			s.pos, s.line = i, line
+			return nil
+		}
+		if buf[i] == '\n' {
+			i++
+			line++
+			continue
+		}
+		if buf[i] == '\r' {
+			if i+1 == len(buf) {
+				if !s.eof {
+					return errNeedMore
+				}
+				s.pos, s.line = i+1, line
+				return nil
+			}
+			if buf[i+1] == '\n' {
+				i += 2
+				line++
+				continue
+			}
+		}
+		break
+	}
+	s.recLine, s.recStart = line, i
+	var seen byte // OR of the bytes in the record, to spot non-ASCII
+	for {
+		if s.quotes && i < len(buf) && buf[i] == s.quote {
+			open := line
+			j := i + 1
+			start, end := j, -1
+			doubled := false
+			for end < 0 {
+				for j < len(buf) && !qstop[buf[j]] {
+					seen |= buf[j]
+					j++
+				}
+				if j == len(buf) {
+					if !s.eof {
+						return errNeedMore
+					}
+					return &splitError{line: open, field: len(s.fields), msg: "quoted text opened on this line is never closed " +
+						"(a stray quote? inside quoted text write a quote twice, or set quote to \"\" to read quotes as text)"}
+				}
+				switch buf[j] {
+				case '\n':
+					line++
+					j++
+				case 0:
+					return &splitError{line: line, field: len(s.fields), msg: nulMessage}
+				default: // the quote
+					if j+1 == len(buf) && !s.eof {
+						return errNeedMore
+					}
+					if j+1 < len(buf) && buf[j+1] == s.quote {
+						doubled = true
+						j += 2
+						continue
+					}
+					end = j
+					j++
+				}
+			}
+			s.fields = append(s.fields, span{start: start, end: end, doubled: doubled})
+			if j == len(buf) {
+				if !s.eof {
+					return errNeedMore
+				}
+				return s.finish(j, j, line, seen)
+			}
+			switch c := buf[j]; {
+			case c == s.delim:
+				i = j + 1
+				continue
+			case c == '\n':
+				return s.finish(j, j+1, line+1, seen)
+			case c == '\r' && j+1 == len(buf):
+				if !s.eof {
+					return errNeedMore
+				}
+				return s.finish(j, j+1, line, seen)
+			case c == '\r' && buf[j+1] == '\n':
+				return s.finish(j, j+2, line+1, seen)
+			}
+			return &splitError{line: line, field: len(s.fields) - 1,
+				msg: "text follows the closing quote (inside quoted text write a quote twice)"}
+		}
+		// An unquoted field: runs to the delimiter or the end of the line.
+		j := i
+		for {
+			for j < len(buf) && !stop[buf[j]] {
+				seen |= buf[j]
+				j++
+			}
+			if j == len(buf) {
+				if !s.eof {
+					return errNeedMore
+				}
+				s.fields = append(s.fields, span{start: i, end: j})
+				return s.finish(j, j, line, seen)
+			}
+			c := buf[j]
+			if c != '\r' {
+				break
+			}
+			if j+1 == len(buf) {
+				if !s.eof {
+					return errNeedMore
+				}
+				break
+			}
+			if buf[j+1] == '\n' {
+				break
+			}
+			j++ // a lone carriage return is text
+		}
+		s.fields = append(s.fields, span{start: i, end: j})
+		switch buf[j] {
+		case s.delim:
+			i = j + 1
+			continue
+		case '\n':
+			return s.finish(j, j+1, line+1, seen)
+		case '\r':
+			if j+1 < len(buf) {
+				return s.finish(j, j+2, line+1, seen)
+			}
+			return s.finish(j, j+1, line, seen)
+		}
+		return &splitError{line: line, field: len(s.fields) - 1, msg: nulMessage}
+	}
+}
+
+// finish ends the record at recEnd, with the next one starting at next on
+// line nextLine: it checks the encoding and undoes doubled quotes.
+func (s *splitter) finish(recEnd, next int, nextLine int64, seen byte) error {
+	s.recEnd = recEnd
+	if seen >= utf8.RuneSelf {
+		if err := s.checkUTF8(); err != nil {
+			return err
+		}
+	}
+	s.pos, s.line = next, nextLine
+	for k := range s.fields {
+		f := &s.fields[k]
+		if !f.doubled {
+			continue
+		}
+		w := f.start
+		for r := f.start; r < f.end; r++ {
+			s.buf[w] = s.buf[r]
+			w++
+			if s.buf[r] == s.quote {
+				r++ // skip the second quote of the pair
+			}
+		}
+		f.end, f.doubled = w, false
+	}
+	return nil
+}
+
+// checkUTF8 finds the first field of the record that is not valid UTF-8.
+func (s *splitter) checkUTF8() error {
+	if utf8.Valid(s.buf[s.recStart:s.recEnd]) {
+		return nil
+	}
+	for k, f := range s.fields {
+		b := s.buf[f.start:f.end]
+		for off := 0; off < len(b); {
+			r, size := utf8.DecodeRune(b[off:])
+			if r == utf8.RuneError && size == 1 {
+				line := s.recLine + int64(bytes.Count(s.buf[s.recStart:f.start+off], []byte{'\n'}))
+				return &splitError{line: line, field: k, msg: fmt.Sprintf(
+					"invalid UTF-8: byte %#02x at byte %d of the cell (save the file as UTF-8)", b[off], off+1)}
+			}
+			off += size
+		}
+	}
+	// Delimiters, quotes and line breaks are ASCII, so the bad bytes must lie
+	// in a field; this is a fallback that keeps the error if they do not.
+	return &splitError{line: s.recLine, field: -1, msg: "invalid UTF-8 (save the file as UTF-8)"}
+}
