@@ -232,8 +232,8 @@ func (a *SummaryAccumulator) Observe(b *source.Batch) error {
 
 func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
 	var (
-		n, nan     int64
-		mean, m2   float64
+		w          welford
+		nan        int64
 		lo, hi     = math.Inf(1), math.Inf(-1)
 		sum        = a.FloatSum
 		keep       = a.check.keepsValues()
@@ -250,10 +250,7 @@ func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
 			nan++
 			continue
 		}
-		n++
-		d := x - mean
-		mean += d / float64(n)
-		m2 += d * (x - mean)
+		w.add(x)
 		lo, hi = min(lo, x), max(hi, x)
 		sum.Add(x)
 		if keep {
@@ -261,15 +258,14 @@ func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
 		}
 	}
 	a.FloatSum = sum
-	a.pool(n, mean, m2, lo, hi)
-	a.Count += n + nan
+	a.pool(w, lo, hi)
+	a.Count += w.n + nan
 	a.NaN += nan
 }
 
 func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
 	var (
-		n          int64
-		mean, m2   float64
+		w          welford
 		lo, hi     int64 = math.MaxInt64, math.MinInt64
 		sum              = a.Sum
 		keep             = a.check.keepsValues()
@@ -279,11 +275,7 @@ func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
 		if !v.at(i) {
 			continue
 		}
-		n++
-		f := float64(x)
-		d := f - mean
-		mean += d / float64(n)
-		m2 += d * (f - mean)
+		w.add(float64(x))
 		lo, hi = min(lo, x), max(hi, x)
 		sum.Add(x)
 		if keep {
@@ -294,10 +286,10 @@ func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
 		}
 	}
 	a.Sum = sum
-	if n > 0 {
-		a.pool(n, mean, m2, float64(lo), float64(hi))
+	if w.n > 0 {
+		a.pool(w, float64(lo), float64(hi))
 	}
-	a.Count += n
+	a.Count += w.n
 }
 
 // floatKey is x's bits for counting distinct values: -0 as 0, every NaN
@@ -312,23 +304,37 @@ func floatKey(x float64) uint64 {
 	return math.Float64bits(x)
 }
 
-// pool folds n more non-NaN values, with mean, M2, min and max of their
-// own, into a's moments (Chan, Golub & LeVeque; see summaryCheck). It does
-// not change Count.
-func (a *SummaryAccumulator) pool(n int64, mean, m2, lo, hi float64) {
-	if n == 0 {
+// welford is the count, mean and M2 of some values, updated one value at a
+// time (Welford 1962; see summaryCheck).
+type welford struct {
+	n        int64
+	mean, m2 float64
+}
+
+func (w *welford) add(x float64) {
+	w.n++
+	d := x - w.mean
+	w.mean += d / float64(w.n)
+	w.m2 += d * (x - w.mean)
+}
+
+// pool folds the moments of w's values, whose least and greatest are lo
+// and hi, into a's (Chan, Golub & LeVeque; see summaryCheck). It does not
+// change Count.
+func (a *SummaryAccumulator) pool(w welford, lo, hi float64) {
+	if w.n == 0 {
 		return
 	}
 	had := a.Count - a.NaN
 	a.Min, a.Max = min(a.Min, lo), max(a.Max, hi)
 	if had == 0 {
-		a.Mean, a.M2 = mean, m2
+		a.Mean, a.M2 = w.mean, w.m2
 		return
 	}
-	total := float64(had + n)
-	d := mean - a.Mean
-	a.Mean += d * float64(n) / total
-	a.M2 += m2 + d*d*float64(had)*float64(n)/total
+	total := float64(had + w.n)
+	d := w.mean - a.Mean
+	a.Mean += d * float64(w.n) / total
+	a.M2 += w.m2 + d*d*float64(had)*float64(w.n)/total
 }
 
 // Merge folds other's values into a.
@@ -337,7 +343,7 @@ func (a *SummaryAccumulator) Merge(other Accumulator) error {
 	if !ok || o.check != a.check {
 		return errMerge(a.check.rule, a, other)
 	}
-	a.pool(o.Count-o.NaN, o.Mean, o.M2, o.Min, o.Max)
+	a.pool(welford{n: o.Count - o.NaN, mean: o.Mean, m2: o.M2}, o.Min, o.Max)
 	a.Count += o.Count
 	a.NaN += o.NaN
 	a.Sum.AddInt128(o.Sum)
