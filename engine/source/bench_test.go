@@ -1,0 +1,360 @@
+package source
+
+import (
+	"bufio"
+	"context"
+	"encoding/csv"
+	"io"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strconv"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	acsv "github.com/apache/arrow-go/v18/arrow/csv"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/compress"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// Benchmark data lives in one temporary folder, made on first use and
+// removed by TestMain.
+var bench struct {
+	once    sync.Once
+	dir     string
+	csv     string
+	parquet string
+	err     error
+}
+
+func removeBenchData() {
+	if bench.dir != "" {
+		_ = os.RemoveAll(bench.dir)
+	}
+}
+
+// benchFiles makes the benchmark inputs: a CSV file of about 100 MB and a
+// Parquet file of one million rows, both of the columns of benchSchema.
+func benchFiles(b *testing.B) (csvPath, parquetPath string) {
+	b.Helper()
+	bench.once.Do(func() {
+		bench.dir, bench.err = os.MkdirTemp("", "assay-source-bench-")
+		if bench.err != nil {
+			return
+		}
+		bench.csv = filepath.Join(bench.dir, "bench.csv")
+		if bench.err = writeBenchCSV(bench.csv, 1_000_000); bench.err != nil {
+			return
+		}
+		bench.parquet = filepath.Join(bench.dir, "bench.parquet")
+		bench.err = writeBenchParquet(bench.parquet, 1_000_000)
+	})
+	if bench.err != nil {
+		b.Fatal(bench.err)
+	}
+	return bench.csv, bench.parquet
+}
+
+// benchSchema is the mixed table the benchmarks read: sequential ids, short
+// codes, timestamps, dates, numbers with few decimals (measurements),
+// integers, booleans, free text (sometimes quoted, with commas, or
+// missing), and full-precision floats (17 significant digits, the slow
+// path of number parsing).
+var benchSchema = arrow.NewSchema([]arrow.Field{
+	{Name: "id", Type: tInt64, Nullable: true},
+	{Name: "hive", Type: tString, Nullable: true},
+	{Name: "at", Type: tTimestamp, Nullable: true},
+	{Name: "day", Type: tDate, Nullable: true},
+	{Name: "weight_kg", Type: tFloat64, Nullable: true},
+	{Name: "temp_c", Type: tFloat64, Nullable: true},
+	{Name: "humidity", Type: tInt64, Nullable: true},
+	{Name: "ok", Type: tBoolean, Nullable: true},
+	{Name: "note", Type: tString, Nullable: true},
+	{Name: "score", Type: tFloat64, Nullable: true},
+}, nil)
+
+// benchRow is one generated row.
+type benchRow struct {
+	id, humidity   int64
+	hive, note     string
+	at             time.Time
+	weight, temp   float64
+	score          float64
+	ok, noteQuoted bool
+}
+
+var notes = []string{"", "calm", "queen seen, laying", "swarm cell", "fed 2:1 syrup", "weak, \"robbing\""}
+
+func genRows(n int, row func(r *benchRow)) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	start := time.Date(2024, 1, 1, 0, 0, 0, 0, time.UTC)
+	var r benchRow
+	for i := range n {
+		r.id = int64(i + 1)
+		r.hive = "H-" + strconv.Itoa(100+rng.IntN(900))
+		r.at = start.Add(time.Duration(i) * 37 * time.Second)
+		r.weight = float64(rng.IntN(8000)) / 100
+		r.temp = float64(rng.IntN(600)-100) / 10
+		r.humidity = int64(rng.IntN(101))
+		r.ok = rng.IntN(10) != 0
+		r.note = notes[rng.IntN(len(notes))]
+		r.score = rng.NormFloat64()
+		row(&r)
+	}
+}
+
+func writeBenchCSV(path string, n int) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	w := bufio.NewWriterSize(f, 1<<20)
+	w.WriteString("id,hive,at,day,weight_kg,temp_c,humidity,ok,note,score\n")
+	var line []byte
+	genRows(n, func(r *benchRow) {
+		line = strconv.AppendInt(line[:0], r.id, 10)
+		line = append(line, ',')
+		line = append(line, r.hive...)
+		line = append(line, ',')
+		line = r.at.AppendFormat(line, time.RFC3339)
+		line = append(line, ',')
+		line = r.at.AppendFormat(line, time.DateOnly)
+		line = append(line, ',')
+		line = strconv.AppendFloat(line, r.weight, 'f', -1, 64)
+		line = append(line, ',')
+		line = strconv.AppendFloat(line, r.temp, 'f', -1, 64)
+		line = append(line, ',')
+		line = strconv.AppendInt(line, r.humidity, 10)
+		line = append(line, ',')
+		line = strconv.AppendBool(line, r.ok)
+		line = append(line, ',')
+		line = appendCSVText(line, r.note)
+		line = append(line, ',')
+		line = strconv.AppendFloat(line, r.score, 'g', -1, 64)
+		line = append(line, '\n')
+		w.Write(line)
+	})
+	if err := w.Flush(); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
+}
+
+// appendCSVText appends s, quoted when it holds a comma or a quote.
+func appendCSVText(dst []byte, s string) []byte {
+	quote := false
+	for i := 0; i < len(s); i++ {
+		if s[i] == ',' || s[i] == '"' {
+			quote = true
+		}
+	}
+	if !quote {
+		return append(dst, s...)
+	}
+	dst = append(dst, '"')
+	for i := 0; i < len(s); i++ {
+		if s[i] == '"' {
+			dst = append(dst, '"')
+		}
+		dst = append(dst, s[i])
+	}
+	return append(dst, '"')
+}
+
+func writeBenchParquet(path string, n int) error {
+	mem := memory.DefaultAllocator
+	rb := array.NewRecordBuilder(mem, benchSchema)
+	defer rb.Release()
+	genRows(n, func(r *benchRow) {
+		rb.Field(0).(*array.Int64Builder).Append(r.id)
+		rb.Field(1).(*array.StringBuilder).Append(r.hive)
+		rb.Field(2).(*array.TimestampBuilder).Append(arrow.Timestamp(r.at.UnixMicro()))
+		rb.Field(3).(*array.Date32Builder).Append(arrow.Date32FromTime(r.at))
+		rb.Field(4).(*array.Float64Builder).Append(r.weight)
+		rb.Field(5).(*array.Float64Builder).Append(r.temp)
+		rb.Field(6).(*array.Int64Builder).Append(r.humidity)
+		rb.Field(7).(*array.BooleanBuilder).Append(r.ok)
+		if r.note == "" {
+			rb.Field(8).AppendNull()
+		} else {
+			rb.Field(8).(*array.StringBuilder).Append(r.note)
+		}
+		rb.Field(9).(*array.Float64Builder).Append(r.score)
+	})
+	rec := rb.NewRecordBatch()
+	defer rec.Release()
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	props := parquet.NewWriterProperties(parquet.WithCompression(compress.Codecs.Snappy), parquet.WithMaxRowGroupLength(128*1024))
+	w, err := pqarrow.NewFileWriter(benchSchema, f, props, pqarrow.DefaultWriterProps())
+	if err != nil {
+		f.Close()
+		return err
+	}
+	if err := w.Write(rec); err != nil {
+		w.Close()
+		return err
+	}
+	return w.Close()
+}
+
+// reportRates adds rows per second to the benchmark's output.
+func reportRates(b *testing.B, rows int64) {
+	b.Helper()
+	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+}
+
+// BenchmarkCSVSource reads the CSV file with this package: Open (header and
+// a 10000-row sample for inference) and a full Scan of all columns.
+func BenchmarkCSVSource(b *testing.B) {
+	path, _ := benchFiles(b)
+	b.SetBytes(fileSize(b, path))
+	b.ReportAllocs()
+	var rows int64
+	for b.Loop() {
+		s, err := Open([]string{path}, Options{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		rows = 0
+		err = s.Scan(context.Background(), nil, func(bt *Batch) error { rows += bt.Record.NumRows(); return nil })
+		if err != nil {
+			b.Fatal(err)
+		}
+		s.Close()
+		if got := s.Schema(); !got.Equal(benchSchema) {
+			b.Fatalf("inferred schema %v", got)
+		}
+	}
+	reportRates(b, rows)
+}
+
+// BenchmarkCSVEncodingCSV is the baseline: encoding/csv with a reused
+// record, each cell parsed by strconv or time.Parse into Go slices of
+// 65536 rows, reused.
+func BenchmarkCSVEncodingCSV(b *testing.B) {
+	path, _ := benchFiles(b)
+	b.SetBytes(fileSize(b, path))
+	b.ReportAllocs()
+	var rows int64
+	for b.Loop() {
+		f, err := os.Open(path)
+		if err != nil {
+			b.Fatal(err)
+		}
+		r := csv.NewReader(bufio.NewReaderSize(f, 1<<20))
+		r.ReuseRecord = true
+		const chunk = 65536
+		ints := make([][]int64, 2)
+		floats := make([][]float64, 3)
+		times := make([][]int64, 2)
+		bools := make([]bool, 0, chunk)
+		strs := make([][]string, 2)
+		if _, err := r.Read(); err != nil {
+			b.Fatal(err)
+		}
+		rows = 0
+		for {
+			rec, err := r.Read()
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				b.Fatal(err)
+			}
+			if rows%chunk == 0 {
+				for i := range ints {
+					ints[i] = ints[i][:0]
+					times[i] = times[i][:0]
+					strs[i] = strs[i][:0]
+				}
+				for i := range floats {
+					floats[i] = floats[i][:0]
+				}
+				bools = bools[:0]
+			}
+			rows++
+			id, _ := strconv.ParseInt(rec[0], 10, 64)
+			hum, _ := strconv.ParseInt(rec[6], 10, 64)
+			ints[0], ints[1] = append(ints[0], id), append(ints[1], hum)
+			at, _ := time.Parse(time.RFC3339, rec[2])
+			day, _ := time.Parse(time.DateOnly, rec[3])
+			times[0], times[1] = append(times[0], at.UnixMicro()), append(times[1], day.Unix()/86400)
+			for k, c := range []int{4, 5, 9} {
+				v, _ := strconv.ParseFloat(rec[c], 64)
+				floats[k] = append(floats[k], v)
+			}
+			ok, _ := strconv.ParseBool(rec[7])
+			bools = append(bools, ok)
+			strs[0], strs[1] = append(strs[0], rec[1]), append(strs[1], rec[8])
+		}
+		f.Close()
+	}
+	reportRates(b, rows)
+}
+
+// BenchmarkCSVArrowReader reads the CSV file with arrow-go's CSV reader,
+// given the schema (no inference), in chunks of 65536 rows.
+func BenchmarkCSVArrowReader(b *testing.B) {
+	path, _ := benchFiles(b)
+	b.SetBytes(fileSize(b, path))
+	b.ReportAllocs()
+	var rows int64
+	for b.Loop() {
+		f, err := os.Open(path)
+		if err != nil {
+			b.Fatal(err)
+		}
+		r := acsv.NewReader(f, benchSchema, acsv.WithHeader(true), acsv.WithChunk(65536),
+			acsv.WithNullReader(true, DefaultNulls...), acsv.WithLazyQuotes(true))
+		rows = 0
+		for r.Next() {
+			rows += r.RecordBatch().NumRows()
+		}
+		if err := r.Err(); err != nil {
+			b.Fatal(err)
+		}
+		r.Release()
+		f.Close()
+	}
+	reportRates(b, rows)
+}
+
+// BenchmarkParquetSource scans all columns of the one-million-row Parquet
+// file (Snappy, row groups of 131072 rows); bytes are those of the file.
+func BenchmarkParquetSource(b *testing.B) {
+	_, path := benchFiles(b)
+	b.SetBytes(fileSize(b, path))
+	b.ReportAllocs()
+	var rows int64
+	for b.Loop() {
+		s, err := Open([]string{path}, Options{})
+		if err != nil {
+			b.Fatal(err)
+		}
+		rows = 0
+		err = s.Scan(context.Background(), nil, func(bt *Batch) error { rows += bt.Record.NumRows(); return nil })
+		if err != nil {
+			b.Fatal(err)
+		}
+		s.Close()
+	}
+	reportRates(b, rows)
+}
+
+func fileSize(b *testing.B, path string) int64 {
+	b.Helper()
+	fi, err := os.Stat(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return fi.Size()
+}
