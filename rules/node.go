@@ -181,8 +181,9 @@ func (r *resolver) text(path string, n *yaml.Node) (string, bool) {
 	return n.Value, true
 }
 
-// nameList reads a list of distinct, non-empty names, with their nodes.
-func (r *resolver) nameList(path string, n *yaml.Node, what string) ([]string, []*yaml.Node, bool) {
+// columnList reads a list of distinct, non-empty column names, with their
+// nodes.
+func (r *resolver) columnList(path string, n *yaml.Node) ([]string, []*yaml.Node, bool) {
 	items, ok := r.list(path, n)
 	if !ok {
 		return nil, nil, false
@@ -195,17 +196,17 @@ func (r *resolver) nameList(path string, n *yaml.Node, what string) ([]string, [
 		case !ok:
 			continue
 		case strings.TrimSpace(s) == "":
-			r.fail(it, CodeBadValue, path, "empty %s name", what)
+			r.fail(it, CodeBadValue, path, "empty column name")
 			continue
 		case contains(out, s):
-			r.fail(it, CodeDuplicate, path, "%s %q listed twice", what, s)
+			r.fail(it, CodeDuplicate, path, "column %q listed twice", s)
 			continue
 		}
 		out = append(out, s)
 		nodes = append(nodes, it)
 	}
 	if len(items) == 0 {
-		r.fail(n, CodeBadValue, path, "the list is empty").Hint = "name at least one " + what
+		r.fail(n, CodeBadValue, path, "the list is empty").Hint = "name at least one column"
 	}
 	return out, nodes, len(out) > 0 && len(out) == len(items)
 }

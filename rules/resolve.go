@@ -124,7 +124,7 @@ func (r *resolver) names() {
 	for _, p := range r.table {
 		switch p.rule.Kind {
 		case KindKey, KindRequired:
-			cols, nodes, ok := r.nameList(p.rule.ID, p.val, "column")
+			cols, nodes, ok := r.columnList(p.rule.ID, p.val)
 			if !ok {
 				continue
 			}
