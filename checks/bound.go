@@ -21,7 +21,9 @@ import (
 // the epoch) is first scaled to the column's unit and rounded to the nearest
 // unit when it lies within float64 precision of it, so a bound written to
 // the microsecond is exact on timestamp[us]. Float columns are compared
-// as float64; NaN breaks every bound.
+// as float64 (on a float32 column the bound is first rounded to float32, as
+// the data were, so a maximum of 0.1 allows the 0.1 written in the data);
+// NaN breaks every bound.
 func newBoundCheck(r *rules.Rule, s rules.BoundSpec, env *Env) (Check, error) {
 	word := string(s.Bound)
 	if s.Exclusive {
@@ -52,6 +54,7 @@ func newBoundCheck(r *rules.Rule, s rules.BoundSpec, env *Env) (Check, error) {
 		return nil, fmt.Errorf("bound of kind %q", s.Bound)
 	}
 	if c.class == classNumber {
+		s.Value = asStored(c, s.Value)
 		lo, hi := floatRange(s)
 		vc.scan = func(a arrow.Array, sc *scratch, hit func(int, float64)) {
 			v := validOf(a)
@@ -74,6 +77,15 @@ func newBoundCheck(r *rules.Rule, s rules.BoundSpec, env *Env) (Check, error) {
 		}
 	}
 	return vc, nil
+}
+
+// asStored rounds v as a value of float column c is stored: to float32 on
+// a float32 column.
+func asStored(c column, v float64) float64 {
+	if c.typ.ID() == arrow.FLOAT32 {
+		return float64(float32(v))
+	}
+	return v
 }
 
 // floatRange is the closed interval of float64 values the bound allows. An

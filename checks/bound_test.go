@@ -5,6 +5,8 @@ import (
 	"reflect"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow"
+
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/rules"
 )
@@ -48,6 +50,18 @@ func TestBoundFloat(t *testing.T) {
 				t.Errorf("message %q, want %q", res.Message, tc.msg)
 			}
 		})
+	}
+}
+
+// TestBoundFloat32: on a float32 column the bound is rounded as the data
+// were: 0.1 stored as float32 is 0.100000001 but is not above 0.1.
+func TestBoundFloat32(t *testing.T) {
+	mem := checkedMem(t)
+	b := newBatch(t, mem, 1, col{"x", arrow.PrimitiveTypes.Float32, []any{0.1, 0.2}})
+	release(t, b)
+	res := run(t, compile(t, newRule(rules.BoundSpec{Bound: rules.KindMaximum, Value: 0.1}, atMost(0), "x"), envOf(b, 5)), b)
+	if count, rows, _ := listed(res); count != 1 || !reflect.DeepEqual(rows, []int64{2}) {
+		t.Errorf("offending %d %v, want 1 [2]", count, rows)
 	}
 }
 

@@ -15,10 +15,12 @@ import (
 // newEnumCheck compiles enum: the share of non-null values that are not one
 // of the listed values. Strings compare as text (exactly, case and all);
 // integers and numbers numerically (so 1 and 1.0 are the same member; NaN
-// is never one); booleans by the words true and false; dates and
+// is never one; on a float32 column the members are rounded to float32, as
+// the data were); booleans by the words true and false; dates and
 // timestamps as instants (the policy resolves them to seconds since the
-// epoch, which are scaled to the column's unit as bounds are). Every breaking value scores
-// 1: none is farther off than another, so the listing keeps the first rows.
+// epoch, which are scaled to the column's unit as bounds are). Every
+// breaking value scores 1: none is farther off than another, so the
+// listing keeps the first rows.
 func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 	c, err := bindColumnOf(r, env, "enum", classString, classInteger, classNumber, classBoolean, classTime)
 	if err != nil {
@@ -44,7 +46,7 @@ func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 		}
 		set := make(map[float64]bool, len(s.Numbers))
 		for _, v := range s.Numbers {
-			set[v] = true
+			set[asStored(c, v)] = true
 		}
 		vc.scan = func(a arrow.Array, sc *scratch, hit func(int, float64)) {
 			v := validOf(a)
