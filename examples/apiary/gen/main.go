@@ -14,11 +14,14 @@
 //
 // On top of that the generator plants the problems listed under "Planted
 // problems" below, which the demo policy (../policy.yaml) is written to
-// catch. The same flags always give the same bytes: all randomness comes
-// from one PCG generator seeded by -seed.
+// catch. With -inspections it also writes the week's inspection records,
+// one file per yard, for the second demo policy (../inspections.yaml; see
+// inspections.go). The same flags always give the same bytes: all
+// randomness comes from PCG generators seeded by -seed.
 //
-// The committed ../hives.csv is this program's output with its default
-// flags; a test fails when the two differ.
+// The committed ../hives.csv and ../inspections/ are this program's output
+// with the flags of the go:generate line below; a test fails when they
+// differ.
 package main
 
 //go:generate go run . -o ../hives.csv -inspections ../inspections
@@ -46,8 +49,8 @@ const (
 // start is the first hour of the export.
 var start = time.Date(2025, time.June, 2, 0, 0, 0, 0, time.UTC)
 
-// Planted problems. Hours count from start (hour 0); each plant touches one
-// hive, so a test can find it again in the CSV.
+// Planted problems. Hours count from start (hour 0); each plant but the
+// missing readings touches one hive, so a test can find it again in the CSV.
 const (
 	// The scale of gramsHive reports grams instead of kilograms for a whole
 	// day, after a settings reset: columns.weight_kg.maximum fails.
@@ -319,7 +322,8 @@ func daylight(hod float64) float64 {
 //	ambient  = day mean (interpolated to the next day's) + yard warmth
 //	           + swing·cos(2π(hod−15)/24) + noise
 //	brood    = set point + g·(ambient − 20) + noise, g = 0.04 (0.15 for a weak colony)
-//	weight   = tare + stored − foragers away + noise
+//	weight   = tare + stored − away + noise
+//	away     = 0.9·strength·sun·min(1, 2.5·daylight)   (foragers out)
 //	stored  += 0.6·strength·sun·flow·daylight − 0.025 per hour
 //	humidity = 95 − 2.6·(ambient − 12) (+15 on the rainy day) + noise, in [25, 99]
 //	volts   += panel·sun·daylight − drain, at most 4.18
