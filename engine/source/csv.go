@@ -105,9 +105,17 @@ func (c *csvFile) checkWidth(width int, noHeader bool) error {
 			against = "the first row has"
 		}
 		return &Error{Path: c.in.name, Line: c.sp.recLine, Row: c.rows, Msg: fmt.Sprintf(
-			"row %d has %d fields, %s %d (check the delimiter and quoting)", c.rows, n, against, width)}
+			"row %d has %s, %s %d (check the delimiter and quoting)", c.rows, fields(n), against, width)}
 	}
 	return nil
+}
+
+// fields says "1 field" or "n fields".
+func fields(n int) string {
+	if n == 1 {
+		return "1 field"
+	}
+	return fmt.Sprintf("%d fields", n)
 }
 
 // locate turns a splitter error at data row row (0: the header) into an
@@ -127,7 +135,7 @@ func (c *csvFile) locate(err error, row int64) error {
 			e.Column = c.in.names[se.field]
 			where += fmt.Sprintf(", column %q", e.Column)
 		} else {
-			where += fmt.Sprintf(", field %d", se.field+1)
+			where += fmt.Sprintf(", column %d", se.field+1)
 		}
 	}
 	e.Msg = where + ": " + se.msg

@@ -37,7 +37,7 @@ type splitter struct {
 	pos    int   // start of unread data
 	end    int   // end of data read
 	eof    bool  // r has no more data
-	rerr   error // r failed
+	rerr   *splitError // r failed
 	line   int64 // line number of buf[pos]
 	delim  byte
 	quote  byte
@@ -119,6 +119,7 @@ func (s *splitter) field(f span) []byte { return s.buf[f.start:f.end] }
 // buffer and growing the buffer when the unread data fills it.
 func (s *splitter) fill() error {
 	if s.rerr != nil {
+		s.rerr.line = s.line // where the rows read stop
 		return s.rerr
 	}
 	if s.pos > 0 {
@@ -135,6 +136,7 @@ func (s *splitter) fill() error {
 		copy(nb, s.buf[:s.end])
 		s.buf = nb
 	}
+	start := s.end
 	for s.end < len(s.buf) {
 		n, err := s.r.Read(s.buf[s.end:])
 		s.end += n
@@ -143,11 +145,16 @@ func (s *splitter) fill() error {
 			return nil
 		}
 		if err != nil {
+			// Deliver the rows read so far; the error comes with the
+			// next read, located at the row it cuts.
 			msg := "cannot read the file: " + err.Error()
 			if errors.Is(err, io.ErrUnexpectedEOF) {
 				msg = "the compressed data ends early (the file was cut short; copy it again)"
 			}
 			s.rerr = &splitError{line: s.line, field: -1, msg: msg, err: err}
+			if s.end > start {
+				return nil
+			}
 			return s.rerr
 		}
 	}
