@@ -34,11 +34,11 @@ type span struct {
 type splitter struct {
 	r      io.Reader
 	buf    []byte
-	pos    int   // start of unread data
-	end    int   // end of data read
-	eof    bool  // r has no more data
+	pos    int         // start of unread data
+	end    int         // end of data read
+	eof    bool        // r has no more data
 	rerr   *splitError // r failed
-	line   int64 // line number of buf[pos]
+	line   int64       // line number of buf[pos]
 	delim  byte
 	quote  byte
 	quotes bool // quoting on
