@@ -91,11 +91,11 @@ func (e *Evaluator) Eval(rec arrow.RecordBatch, out []Truth, gap []float64) erro
 	}
 	schema := rec.Schema()
 	for k, c := range e.p.cols {
-		idx := schema.FieldIndices(c.name)
-		if len(idx) == 0 {
+		idx := fieldIndex(schema, c.name)
+		if idx < 0 {
 			return fmt.Errorf("column %q is not in the data", c.name)
 		}
-		arr := rec.Column(idx[0])
+		arr := rec.Column(idx)
 		if !arrow.TypeEqual(arr.DataType(), c.dtype) {
 			return fmt.Errorf("column %q is %s in the data, the expression was compiled for %s", c.name, arr.DataType(), c.dtype)
 		}
@@ -109,27 +109,26 @@ func (e *Evaluator) Eval(rec arrow.RecordBatch, out []Truth, gap []float64) erro
 		}
 		v := e.root(m)
 		dst := out[off : off+m]
-		b := v.b[:m]
+		b, valid := bytesOf(v.b[:m]), validBytes(v.valid, m)
 		for i := range dst {
-			if b[i] {
-				dst[i] = True
-			} else {
-				dst[i] = False
-			}
-		}
-		if v.valid != nil {
-			valid := v.valid[:m]
-			for i := range dst {
-				if !valid[i] {
-					dst[i] = Unknown
-				}
-			}
+			dst[i] = Truth((1 + b[i]) * valid[i]) // False 1, True 2, Unknown 0
 		}
 		if gap != nil {
 			e.gaps(dst, gap[off:off+m])
 		}
 	}
 	return nil
+}
+
+// fieldIndex is the index of the first field named name, or -1. Unlike
+// Schema.FieldIndices it does not allocate.
+func fieldIndex(schema *arrow.Schema, name string) int {
+	for i := range schema.NumFields() {
+		if schema.Field(i).Name == name {
+			return i
+		}
+	}
+	return -1
 }
 
 // clear drops the references to the batch, which its owner releases.
@@ -247,7 +246,15 @@ func (e *Evaluator) inst(p *plan) evalFn {
 		}
 		return mapVec(args[0], floats, out.f, out, func(x float64) float64 { return -x })
 	case opNot:
-		return mapVec(args[0], bools, out.b, out, func(x bool) bool { return !x })
+		return func(m int) *vec {
+			x := args[0](m)
+			xb, dst := bytesOf(x.b[:m]), bytesOf(out.b[:m])
+			for i := range dst {
+				dst[i] = xb[i] ^ 1
+			}
+			out.valid = x.valid
+			return out
+		}
 	case opAnd, opOr:
 		kleene := and
 		if p.op == opOr {
@@ -331,9 +338,13 @@ func (e *Evaluator) inst(p *plan) evalFn {
 			x := args[0](m)
 			b.arena = b.arena[:0]
 			dst := out.s[:m]
-			for i := range dst {
+			for i, xs := range x.s[:m] {
+				if !needsCase(xs, p.upper) {
+					dst[i] = xs
+					continue
+				}
 				from := len(b.arena)
-				b.arena = appendCase(b.arena, x.s[i], p.upper)
+				b.arena = appendCase(b.arena, xs, p.upper)
 				dst[i] = arenaString(b.arena, from, len(b.arena))
 			}
 			out.valid = x.valid
@@ -389,7 +400,6 @@ func abs[T int64 | float64](x T) T {
 
 func ints(v *vec) []int64     { return v.i }
 func floats(v *vec) []float64 { return v.f }
-func bools(v *vec) []bool     { return v.b }
 func strs(v *vec) []string    { return v.s }
 
 func (e *Evaluator) arith(p *plan, x, y evalFn, b *buffers) evalFn {

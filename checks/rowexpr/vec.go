@@ -99,11 +99,12 @@ func bothValid(x, y, buf []bool) []bool {
 	case y == nil:
 		return x
 	}
-	buf = buf[:len(x)]
-	for i := range buf {
-		buf[i] = x[i] && y[i]
+	n := len(x)
+	b, xb, yb := bytesOf(buf[:n]), bytesOf(x), bytesOf(y[:n])
+	for i := range b {
+		b[i] = xb[i] & yb[i]
 	}
-	return buf
+	return buf[:n]
 }
 
 type cmpOp uint8
@@ -241,42 +242,86 @@ func modulo(x, y, dst []int64, xv, yv, valid []bool) {
 	}
 }
 
+// bytesOf views a bool slice as bytes. A Go bool is one byte holding 0 or
+// 1, so &, | and ^1 on the bytes are and, or and not without the branches
+// that && and || compile to, which random data mispredicts half the time.
+func bytesOf(b []bool) []uint8 {
+	if len(b) == 0 {
+		return nil
+	}
+	return unsafe.Slice((*uint8)(unsafe.Pointer(&b[0])), len(b))
+}
+
 // and writes Kleene's three-valued conjunction: false when either side is
-// known false, true when both are true, unknown otherwise.
+// known false, true when both are true, unknown otherwise. It returns the
+// validity mask, nil when both sides have none.
 func and(x, y *vec, dst, valid []bool) []bool {
-	xb, yb := x.b[:len(dst)], y.b[:len(dst)]
+	n := len(dst)
+	d, xb, yb := bytesOf(dst), bytesOf(x.b[:n]), bytesOf(y.b[:n])
 	if x.valid == nil && y.valid == nil {
-		for i := range dst {
-			dst[i] = xb[i] && yb[i]
+		for i := range d {
+			d[i] = xb[i] & yb[i]
 		}
 		return nil
 	}
-	for i := range dst {
-		xv := x.valid == nil || x.valid[i]
-		yv := y.valid == nil || y.valid[i]
-		dst[i] = (xb[i] || !xv) && (yb[i] || !yv)
-		valid[i] = (xv && yv) || (xv && !xb[i]) || (yv && !yb[i])
+	xv, yv, v := validBytes(x.valid, n), validBytes(y.valid, n), bytesOf(valid[:n])
+	for i := range d {
+		// A side counts as true where unknown; a known false decides.
+		xt, yt := xb[i]|(xv[i]^1), yb[i]|(yv[i]^1)
+		d[i] = xt & yt
+		v[i] = xv[i]&yv[i] | xv[i]&(xb[i]^1) | yv[i]&(yb[i]^1)
 	}
-	return valid[:len(dst)]
+	return valid[:n]
 }
 
 // or writes Kleene's three-valued disjunction: true when either side is
 // known true, false when both are false, unknown otherwise.
 func or(x, y *vec, dst, valid []bool) []bool {
-	xb, yb := x.b[:len(dst)], y.b[:len(dst)]
+	n := len(dst)
+	d, xb, yb := bytesOf(dst), bytesOf(x.b[:n]), bytesOf(y.b[:n])
 	if x.valid == nil && y.valid == nil {
-		for i := range dst {
-			dst[i] = xb[i] || yb[i]
+		for i := range d {
+			d[i] = xb[i] | yb[i]
 		}
 		return nil
 	}
-	for i := range dst {
-		xv := x.valid == nil || x.valid[i]
-		yv := y.valid == nil || y.valid[i]
-		dst[i] = (xb[i] && xv) || (yb[i] && yv)
-		valid[i] = (xv && yv) || (xv && xb[i]) || (yv && yb[i])
+	xv, yv, v := validBytes(x.valid, n), validBytes(y.valid, n), bytesOf(valid[:n])
+	for i := range d {
+		d[i] = xb[i]&xv[i] | yb[i]&yv[i]
+		v[i] = xv[i]&yv[i] | xv[i]&xb[i] | yv[i]&yb[i]
 	}
-	return valid[:len(dst)]
+	return valid[:n]
+}
+
+// allValid is a mask of ones, for operands without a mask.
+var allValid = func() []uint8 {
+	b := make([]uint8, chunkRows)
+	for i := range b {
+		b[i] = 1
+	}
+	return b
+}()
+
+func validBytes(valid []bool, n int) []uint8 {
+	if valid == nil {
+		return allValid[:n]
+	}
+	return bytesOf(valid[:n])
+}
+
+// needsCase reports whether lower (or upper) case changes s: whether it
+// has an ASCII letter of the other case or any byte outside ASCII.
+func needsCase(s string, upper bool) bool {
+	lo, hi := byte('A'), byte('Z')
+	if upper {
+		lo, hi = 'a', 'z'
+	}
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; c >= utf8.RuneSelf || lo <= c && c <= hi {
+			return true
+		}
+	}
+	return false
 }
 
 // appendCase appends s with every code point mapped to lower case (or
