@@ -112,7 +112,8 @@ func (p *Program) Measured() bool { return p.gap }
 func (p *Program) String() string { return p.src }
 
 // Compile parses and type-checks src with expr against the given columns
-// (Arrow types int64, float64, utf8, bool, timestamp of any unit, date32),
+// (Arrow types int64, float64, utf8, bool, timestamp of any unit, date32,
+// and the narrower or other layouts kindOf lists),
 // requiring a boolean result, and prepares its evaluation. Type errors are
 // expr's own, located inside src; an unknown name gets a "did you mean"
 // hint from the column names.
@@ -206,18 +207,21 @@ func mathFuncNamed(name string) (mathFunc, bool) {
 	return mathFunc{}, false
 }
 
-// kindOf is how an expression reads a column of Arrow type dt.
+// kindOf is how an expression reads a column of Arrow type dt: narrower
+// integers as int64 (uint64 is left out: its upper half does not fit),
+// float32 as float64, every string layout as string, timestamps and dates
+// as instants.
 func kindOf(dt arrow.DataType) kind {
 	switch dt.ID() {
-	case arrow.INT64:
+	case arrow.INT8, arrow.INT16, arrow.INT32, arrow.INT64, arrow.UINT8, arrow.UINT16, arrow.UINT32:
 		return kindInt
-	case arrow.FLOAT64:
+	case arrow.FLOAT32, arrow.FLOAT64:
 		return kindFloat
-	case arrow.STRING:
+	case arrow.STRING, arrow.LARGE_STRING, arrow.STRING_VIEW:
 		return kindString
 	case arrow.BOOL:
 		return kindBool
-	case arrow.TIMESTAMP, arrow.DATE32:
+	case arrow.TIMESTAMP, arrow.DATE32, arrow.DATE64:
 		return kindTime
 	}
 	return kindNone

@@ -6,9 +6,11 @@
 // # Compiling
 //
 // Compile parses and type-checks the expression with expr itself, the
-// columns declared as variables of their Go types (int64 -> int64, float64
-// -> float64, utf8 -> string, bool -> bool, timestamp and date32 ->
-// time.Time), and requires a boolean result. Errors are expr's, carried in
+// columns declared as variables of Go types: int8 to int64 and uint8 to
+// uint32 as int64, float32 and float64 as float64 (a float32 is read as the
+// float64 of the same value), utf8, large utf8 and utf8 view as string,
+// bool as bool, timestamps of any unit, date32 and date64 as time.Time;
+// and requires a boolean result. Errors are expr's, carried in
 // an *Error with the 1-based line and column inside the expression; an
 // unknown name gets a "did you mean" hint from the column and function
 // names (rules.Suggest). Besides expr's builtins the

@@ -187,7 +187,7 @@ func (e *Evaluator) load(k, off, m int) {
 			b[i] = a.Value(off + i)
 		}
 		v.b = b
-	case *array.String:
+	case interface{ Value(int) string }: // utf8, large utf8, utf8 view
 		s := buf.out.s[:m]
 		for i := range s {
 			s[i] = a.Value(off + i)
@@ -195,20 +195,51 @@ func (e *Evaluator) load(k, off, m int) {
 		v.s = s
 	case *array.Timestamp:
 		unit := a.DataType().(*arrow.TimestampType).Unit
-		per := int64(time.Second / unit.Multiplier()) // units per second
-		t := buf.out.t[:m]
-		for i, x := range a.TimestampValues()[off : off+m] {
-			sec, rem := floorDiv(int64(x), per)
-			t[i] = instant{sec: sec, nsec: rem * int64(unit.Multiplier())}
-		}
-		v.t = t
+		v.t = instants(buf.out.t[:m], a.TimestampValues()[off:off+m], int64(unit.Multiplier()))
 	case *array.Date32:
-		t := buf.out.t[:m]
-		for i, d := range a.Date32Values()[off : off+m] {
-			t[i] = instant{sec: int64(d) * 86400}
-		}
-		v.t = t
+		v.t = instants(buf.out.t[:m], a.Date32Values()[off:off+m], 86400*1e9)
+	case *array.Date64:
+		v.t = instants(buf.out.t[:m], a.Date64Values()[off:off+m], 1e6)
+	case *array.Float32:
+		v.f = widen(buf.out.f[:m], a.Float32Values()[off:off+m])
+	case *array.Int32:
+		v.i = widen(buf.out.i[:m], a.Int32Values()[off:off+m])
+	case *array.Int16:
+		v.i = widen(buf.out.i[:m], a.Int16Values()[off:off+m])
+	case *array.Int8:
+		v.i = widen(buf.out.i[:m], a.Int8Values()[off:off+m])
+	case *array.Uint32:
+		v.i = widen(buf.out.i[:m], a.Uint32Values()[off:off+m])
+	case *array.Uint16:
+		v.i = widen(buf.out.i[:m], a.Uint16Values()[off:off+m])
+	case *array.Uint8:
+		v.i = widen(buf.out.i[:m], a.Uint8Values()[off:off+m])
 	}
+}
+
+// widen converts src into dst, which is as long.
+func widen[T ~int8 | ~int16 | ~int32 | ~uint8 | ~uint16 | ~uint32 | ~float32, U int64 | float64](dst []U, src []T) []U {
+	for i, x := range src {
+		dst[i] = U(x)
+	}
+	return dst
+}
+
+// instants converts times counted in units of nsPer nanoseconds since the
+// epoch into instants, in dst, which is as long.
+func instants[T ~int32 | ~int64](dst []instant, src []T, nsPer int64) []instant {
+	if nsPer >= 1e9 { // seconds or days: whole seconds
+		for i, x := range src {
+			dst[i] = instant{sec: int64(x) * (nsPer / 1e9)}
+		}
+		return dst
+	}
+	per := 1e9 / nsPer // units a second
+	for i, x := range src {
+		sec, rem := floorDiv(int64(x), per)
+		dst[i] = instant{sec: sec, nsec: rem * nsPer}
+	}
+	return dst
 }
 
 // floorDiv returns the quotient rounded down and the remainder, which has

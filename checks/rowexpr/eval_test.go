@@ -3,6 +3,10 @@ package rowexpr
 import (
 	"math"
 	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/memory"
 )
 
 // fixture has five rows with a null in most columns somewhere.
@@ -182,6 +186,96 @@ func TestGap(t *testing.T) {
 			if got[i] == False && math.IsNaN(w) != math.IsNaN(gap[i]) || !math.IsNaN(w) && gap[i] != w {
 				t.Errorf("%s: row %d (%v): gap %v, want %v", tt.src, i, got[i], gap[i], w)
 			}
+		}
+	}
+}
+
+// TestLayouts reads narrower integers, float32, other string layouts,
+// date64 and timestamps of every unit, and compares instants across units
+// exactly (one nanosecond apart is apart).
+func TestLayouts(t *testing.T) {
+	unit := func(u arrow.TimeUnit) arrow.DataType { return &arrow.TimestampType{Unit: u} }
+	cols := []struct {
+		name string
+		typ  arrow.DataType
+		vals []any // the middle row is null
+	}{
+		{"i32", arrow.PrimitiveTypes.Int32, []any{int32(-5), int32(math.MaxInt32)}},
+		{"u8", arrow.PrimitiveTypes.Uint8, []any{uint8(200), uint8(0)}},
+		{"f32", arrow.PrimitiveTypes.Float32, []any{float32(0.5), float32(0.1)}},
+		{"ls", arrow.BinaryTypes.LargeString, []any{"é", ""}},
+		{"sv", arrow.BinaryTypes.StringView, []any{"a long string, longer than twelve bytes", "x"}},
+		{"d64", arrow.FixedWidthTypes.Date64, []any{arrow.Date64(1704067200000), arrow.Date64(-86400000)}},
+		{"tss", unit(arrow.Second), []any{arrow.Timestamp(1704067200), arrow.Timestamp(-1)}},
+		{"tsms", unit(arrow.Millisecond), []any{arrow.Timestamp(1704067200001), arrow.Timestamp(-1)}},
+		{"tsns", unit(arrow.Nanosecond), []any{arrow.Timestamp(1704067199999999999), arrow.Timestamp(-1)}},
+	}
+	mem := memory.NewCheckedAllocator(memory.NewGoAllocator())
+	defer mem.AssertSize(t, 0)
+	fields := make([]arrow.Field, len(cols))
+	arrs := make([]arrow.Array, len(cols))
+	types := map[string]arrow.DataType{}
+	for k, c := range cols {
+		fields[k] = arrow.Field{Name: c.name, Type: c.typ, Nullable: true}
+		types[c.name] = c.typ
+		b := array.NewBuilder(mem, c.typ)
+		for _, v := range []any{c.vals[0], nil, c.vals[1]} {
+			if v == nil {
+				b.AppendNull()
+				continue
+			}
+			switch bb := b.(type) {
+			case *array.Int32Builder:
+				bb.Append(v.(int32))
+			case *array.Uint8Builder:
+				bb.Append(v.(uint8))
+			case *array.Float32Builder:
+				bb.Append(v.(float32))
+			case *array.LargeStringBuilder:
+				bb.Append(v.(string))
+			case *array.StringViewBuilder:
+				bb.Append(v.(string))
+			case *array.Date64Builder:
+				bb.Append(v.(arrow.Date64))
+			case *array.TimestampBuilder:
+				bb.Append(v.(arrow.Timestamp))
+			}
+		}
+		arrs[k] = b.NewArray()
+		b.Release()
+	}
+	rec := array.NewRecordBatch(arrow.NewSchema(fields, nil), arrs, 3)
+	defer rec.Release()
+	for _, a := range arrs {
+		a.Release()
+	}
+	tests := []struct{ src, want string }{
+		{`i32 + u8 == 195`, "T?F"},
+		{`i32 == 2147483647 && u8 < 1`, "F?T"},
+		{`f32 == 0.5`, "T?F"},
+		{`f32 == 0.1`, "F?F"}, // float32(0.1) read as float64 is not 0.1
+		{`f32 > 0.09 && f32 < 0.11 || f32 == 0.5`, "T?T"},
+		{`len(ls) == 1 && sv contains "twelve"`, "T?F"},
+		{`tsms > tss`, "T?T"},  // 1 ms after; -1 ms is after -1 s
+		{`tsns < tss`, "T?F"},  // 1 ns before
+		{`tsns < tsms`, "T?F"}, // -1 ns is after -1 ms
+		{`d64 == tss`, "T?F"},
+		{`d64 < date("1970-01-01") == (tss < date("1970-01-01"))`, "T?T"},
+		{`tsns.Nanosecond() == 999999999`, "T?T"}, // on the machine
+	}
+	for _, tt := range tests {
+		p, err := Compile(tt.src, types)
+		if err != nil {
+			t.Errorf("Compile(%q): %v", tt.src, err)
+			continue
+		}
+		out := make([]Truth, 3)
+		if err := p.NewEvaluator().Eval(rec, out, nil); err != nil {
+			t.Errorf("Eval(%q): %v", tt.src, err)
+			continue
+		}
+		if truths(out) != tt.want {
+			t.Errorf("%s: got %s, want %s", tt.src, truths(out), tt.want)
 		}
 	}
 }

@@ -146,6 +146,11 @@ func (pl *planner) plan(root ast.Node) (*plan, error) {
 	pl.reads(root) // registers the columns in order of appearance
 	p := pl.build(root)
 	if p == nil || p.kind != kindBool {
+		// The whole expression on the machine, compiled as expr.Compile
+		// does with AsBool: ending in a cast that turns nil into false.
+		cfg := *pl.cfg
+		cfg.Expect = reflect.Bool
+		pl.cfg = &cfg
 		p = pl.fallback(root, kindBool)
 		if p == nil {
 			return nil, &Error{Msg: "expression could not be compiled for evaluation"}
