@@ -23,6 +23,7 @@ type csvFile struct {
 	gz   *gzip.Reader
 	sp   *splitter
 	rows int64 // data rows read so far
+	size int64 // bytes in the file
 }
 
 // openCSV opens in, ready to read its first record.
@@ -31,7 +32,7 @@ func (s *Set) openCSV(in *input) (*csvFile, error) {
 	if err != nil {
 		return nil, err
 	}
-	c := &csvFile{in: in, f: f}
+	c := &csvFile{in: in, f: f, size: size}
 	var r io.Reader = f
 	bufSize := s.opts.bufferSize
 	if bufSize == 0 {
@@ -228,15 +229,21 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 		}
 	}
 	batchRows := s.opts.BatchRows
+	capRows := batchRows // room for rows in a batch's buffers
+	if !in.Gzip {
+		// A row takes at least one byte per field, so a small file needs
+		// small buffers.
+		capRows = int(min(int64(batchRows), c.size/int64(max(width, 1))+1))
+	}
 	for done := false; !done; {
 		if err := ctx.Err(); err != nil {
 			return c.rows, err
 		}
 		for _, col := range cols {
-			col.start(batchRows)
+			col.start(capRows)
 		}
-		lines := make([]int64, 0, batchRows)
-		for len(lines) < batchRows {
+		lines := make([]int64, 0, capRows)
+		for len(lines) < capRows {
 			if !pending {
 				ok, err := c.record(width, noHeader)
 				if err != nil {
