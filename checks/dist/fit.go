@@ -83,7 +83,11 @@ func (f Family) Check(sample []float64) error {
 		minN = s.minN
 	}
 	if len(sample) < minN {
-		return fmt.Errorf("%s needs at least %d values, got %d", f, minN, len(sample))
+		unit := "values"
+		if minN == 1 {
+			unit = "value"
+		}
+		return fmt.Errorf("%s needs at least %d %s, got %d", f, minN, unit, len(sample))
 	}
 	if err := checkValues(sample, f.String(), "finite numbers", finite); err != nil {
 		return err
