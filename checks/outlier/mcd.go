@@ -1,0 +1,613 @@
+package outlier
+
+import (
+	"fmt"
+	"math"
+	"math/bits"
+	"math/rand/v2"
+	"slices"
+
+	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// MCDOptions tune FastMCD. The zero value gives the defaults of Rousseeuw &
+// Van Driessen (1999), which are also robustbase's.
+type MCDOptions struct {
+	// Alpha is the share of rows the estimate rests on, 1/2 <= Alpha <= 1;
+	// h = SubsetSize(n, p, Alpha). 0 means 1/2, the maximal breakdown point.
+	Alpha float64
+	// Starts is the number of random (p+1)-subsets; 0 means 500.
+	Starts int
+	// GroupSize is the size of the subgroups large data are split into;
+	// 0 means 300. Data of fewer than 2·GroupSize rows are not split.
+	GroupSize int
+	// MaxGroups bounds the number of subgroups; 0 means 5, so the merged
+	// set has at most 1500 rows.
+	MaxGroups int
+	// Keep is the number of best solutions carried from one stage to the
+	// next; 0 means 10.
+	Keep int
+	// MaxSteps bounds the C-steps of one solution in the full data; 0
+	// means 200.
+	MaxSteps int
+	// Reweight is the chi-square quantile whose value cuts the raw squared
+	// distances for the reweighting step; 0 means 0.975.
+	Reweight float64
+}
+
+func (o MCDOptions) withDefaults() (MCDOptions, error) {
+	def := func(v *int, d int, name string) error {
+		if *v < 0 {
+			return fmt.Errorf("%s is %d, want a positive number (0 for the default %d)", name, *v, d)
+		}
+		if *v == 0 {
+			*v = d
+		}
+		return nil
+	}
+	for _, f := range []struct {
+		v    *int
+		d    int
+		name string
+	}{{&o.Starts, 500, "starts"}, {&o.GroupSize, 300, "group size"}, {&o.MaxGroups, 5, "groups"}, {&o.Keep, 10, "kept solutions"}, {&o.MaxSteps, 200, "steps"}} {
+		if err := def(f.v, f.d, f.name); err != nil {
+			return o, err
+		}
+	}
+	if o.Alpha == 0 {
+		o.Alpha = 0.5
+	}
+	if !(o.Alpha >= 0.5 && o.Alpha <= 1) {
+		return o, fmt.Errorf("alpha is %v, want 0.5 <= alpha <= 1", o.Alpha)
+	}
+	if o.Reweight == 0 {
+		o.Reweight = 0.975
+	}
+	if !(o.Reweight > 0 && o.Reweight < 1) {
+		return o, fmt.Errorf("reweighting quantile is %v, want 0 < q < 1", o.Reweight)
+	}
+	if o.GroupSize < 2 {
+		return o, fmt.Errorf("group size is %d, want at least 2", o.GroupSize)
+	}
+	return o, nil
+}
+
+// SubsetSize is the number of rows h an MCD estimate rests on, for n rows,
+// p columns and share alpha (1/2 <= alpha <= 1): with n₂ = ⌊(n+p+1)/2⌋,
+//
+//	h = ⌊2n₂ − n + 2(n − n₂) α⌋,
+//
+// which is n₂, the size of maximal breakdown point (Rousseeuw & Van
+// Driessen 1999), at α = 1/2, about αn above it, and n at α = 1. It is the
+// formula of robustbase's h.alpha.n.
+func SubsetSize(n, p int, alpha float64) int {
+	n2 := (n + p + 1) / 2
+	return int(math.Floor(float64(2*n2-n) + 2*float64(n-n2)*alpha))
+}
+
+// ConsistencyFactor is the factor that makes the covariance of the a·n rows
+// closest to the center (0 < a <= 1) consistent for the covariance of a
+// p-variate normal (Croux & Haesbroeck 1999):
+//
+//	c(a, p) = a / F_{χ²(p+2)}(χ²_{p, a}),
+//
+// χ²_{p,a} the a-quantile of the chi-square distribution with p degrees of
+// freedom and F_{χ²(p+2)} the distribution function with p + 2. c(1, p) = 1.
+// robustbase calls it .MCDcons.
+func ConsistencyFactor(p int, a float64) float64 {
+	if p < 1 || !(a > 0 && a <= 1) {
+		return math.NaN()
+	}
+	if a == 1 {
+		return 1
+	}
+	q := distuv.ChiSquared{K: float64(p)}.Quantile(a)
+	return a / distuv.ChiSquared{K: float64(p + 2)}.CDF(q)
+}
+
+// MCD is a minimum covariance determinant estimate with its reweighted
+// version.
+type MCD struct {
+	N, H int
+	// Best holds the rows (0-based, ascending) of the h-subset whose
+	// covariance has the smallest determinant found.
+	Best []int
+	// LogDet is ln det of the covariance (divisor h − 1) of the Best rows,
+	// before any factor: the criterion minimised (robustbase's crit).
+	LogDet float64
+	// Raw is the mean and covariance of the Best rows, the covariance
+	// multiplied by RawFactor = ConsistencyFactor(p, h/n).
+	Raw       Scatter
+	RawFactor float64
+	// Kept is the number of rows whose squared distance to Raw is below
+	// the reweighting cutoff, χ²_{p, 0.975} by default.
+	Kept int
+	// Final is the mean and covariance (divisor Kept − 1) of those rows,
+	// the covariance multiplied by Factor = ConsistencyFactor(p, Kept/n).
+	Final  Scatter
+	Factor float64
+}
+
+// FastMCD computes the minimum covariance determinant estimate of p >= 2
+// columns of equal length by the FAST-MCD algorithm of Rousseeuw & Van
+// Driessen (1999), then reweights it. The MCD estimate is the mean and
+// covariance of the h rows (h = SubsetSize) whose covariance has the
+// smallest determinant; with h about n/2 up to half the rows can be
+// arbitrarily bad without carrying it away.
+//
+// The search rests on the C-step (their Theorem 1): given a mean and
+// covariance, take the h rows with the smallest squared distances to them;
+// the covariance of those rows has a determinant no larger. Each of
+// opt.Starts random subsets of p+1 rows (enlarged by random rows while its
+// covariance is singular) gives a first estimate, improved by three
+// C-steps (to H1, H2, H3 in the paper's notation). Data of 2·GroupSize rows
+// or more are split into k = min(MaxGroups, ⌊n/GroupSize⌋) random groups
+// (drawn from a random sample of k·GroupSize rows when n is larger); the
+// starts are shared among the groups and run within them, with h scaled to
+// the group; the Keep best of each group are then improved by two C-steps
+// within the merged groups. Finally the Keep best solutions are iterated in
+// the full data until the determinant stops decreasing (at most MaxSteps
+// C-steps), and the best one is the raw estimate.
+//
+// Consistency and reweighting follow robustbase's covMcd without its
+// small-sample correction (use.correction = FALSE): the raw covariance is
+// multiplied by ConsistencyFactor(p, h/n); rows whose squared distance to
+// the raw estimate is below χ²_{p, opt.Reweight} get weight 1, the others
+// 0; the final estimate is the mean and covariance of the weighted rows,
+// multiplied by ConsistencyFactor(p, Kept/n). The small-sample factors of
+// Pison, Van Aelst & Willems (2002) are not applied; they tend to 1 as n
+// grows.
+//
+// Every random choice comes from rng, so a result repeats from its seed.
+// Memory is O(n) beyond the data; time is O(n p²) per full-data C-step.
+// For data that do not fit in memory, estimate from a seeded sample and
+// score every row with Final. It fails when more than h rows lie on a
+// hyperplane (the covariance of the best subset is singular: an "exact
+// fit"), or when n < p + 2.
+func FastMCD(cols [][]float64, opt MCDOptions, rng *rand.Rand) (MCD, error) {
+	opt, err := opt.withDefaults()
+	if err != nil {
+		return MCD{}, fmt.Errorf("fast mcd: %w", err)
+	}
+	if rng == nil {
+		return MCD{}, fmt.Errorf("fast mcd: no random source")
+	}
+	p := len(cols)
+	if p < 2 {
+		return MCD{}, fmt.Errorf("fast mcd: %d columns, need at least 2 (use the robust z-score for one)", p)
+	}
+	n, err := checkColumns(cols, p)
+	if err != nil {
+		return MCD{}, fmt.Errorf("fast mcd: %w", err)
+	}
+	if n < p+2 {
+		return MCD{}, fmt.Errorf("fast mcd: %d rows of %d columns, need at least %d", n, p, p+2)
+	}
+	h := SubsetSize(n, p, opt.Alpha)
+	r := newMCDRun(cols, n, rng)
+	var best []int
+	if h == n {
+		best = make([]int, n)
+		for i := range best {
+			best[i] = i
+		}
+	} else {
+		est, err := r.search(h, opt)
+		if err != nil {
+			return MCD{}, fmt.Errorf("fast mcd: %w", err)
+		}
+		best = slices.Clone(r.smallest(est, nil, n, h))
+		slices.Sort(best)
+	}
+	res, err := r.finish(best, opt.Reweight)
+	if err != nil {
+		return MCD{}, fmt.Errorf("fast mcd: %w", err)
+	}
+	return res, nil
+}
+
+// finish turns the best h-subset (ascending rows) into the raw estimate
+// and reweights it with the cutoff χ²_{p, q}.
+func (r *mcdRun) finish(best []int, q float64) (MCD, error) {
+	n, p, h := r.n, r.p, len(best)
+	res := MCD{N: n, H: h, Best: best, RawFactor: ConsistencyFactor(p, float64(h)/float64(n))}
+	raw, ok := r.fit(best, h)
+	if !ok {
+		return MCD{}, errExactFit(h, n)
+	}
+	res.LogDet = raw.logDet
+	var err error
+	if res.Raw, err = raw.scatter(res.RawFactor); err != nil {
+		return MCD{}, fmt.Errorf("raw estimate: %w", err)
+	}
+	cut := Cutoff(p, q)
+	d2 := r.d2[:n]
+	res.Raw.distances(r.cols, nil, d2)
+	kept := make([]int, 0, n)
+	for i, d := range d2 {
+		if d < cut {
+			kept = append(kept, i)
+		}
+	}
+	res.Kept = len(kept)
+	res.Factor = ConsistencyFactor(p, float64(res.Kept)/float64(n))
+	rew, ok := r.fit(kept, len(kept))
+	if !ok {
+		return MCD{}, fmt.Errorf("the %d rows kept by reweighting have a singular covariance", len(kept))
+	}
+	if res.Final, err = rew.scatter(res.Factor); err != nil {
+		return MCD{}, fmt.Errorf("reweighted estimate: %w", err)
+	}
+	return res, nil
+}
+
+func errExactFit(h, n int) error {
+	return fmt.Errorf("at least %d of the %d rows lie on a hyperplane (exact fit): their covariance is singular and distances to it are undefined", h, n)
+}
+
+// estimate is a mean and covariance (p × p row-major) of some rows with
+// the inverse Cholesky factor of the covariance and ln det.
+type estimate struct {
+	mean, cov, linv []float64
+	logDet          float64
+}
+
+func (e estimate) scatter(factor float64) (Scatter, error) {
+	p := len(e.mean)
+	cov := mat.NewSymDense(p, nil)
+	for j := range p {
+		for k := j; k < p; k++ {
+			cov.SetSym(j, k, factor*e.cov[j*p+k])
+		}
+	}
+	return NewScatter(e.mean, cov)
+}
+
+// same reports whether two estimates are bit for bit the same, which they
+// are when they come from the same rows.
+func (e estimate) same(o estimate) bool {
+	return e.logDet == o.logDet && slices.Equal(e.mean, o.mean)
+}
+
+// mcdRun holds the data and the scratch space of one FastMCD call.
+type mcdRun struct {
+	cols [][]float64
+	n, p int
+	rng  *rand.Rand
+	f    factor
+	sym  *mat.SymDense
+	d2   []float64 // distances of the rows of the current set
+	tmp  []float64 // copy of d2 for selection
+	sel  []int     // rows selected by the last C-step
+}
+
+func newMCDRun(cols [][]float64, n int, rng *rand.Rand) *mcdRun {
+	p := len(cols)
+	return &mcdRun{cols: cols, n: n, p: p, rng: rng, sym: mat.NewSymDense(p, nil),
+		d2: make([]float64, n), tmp: make([]float64, n)}
+}
+
+// fit returns the mean and covariance (divisor m − 1) of the m rows listed
+// in rows (the first m rows when rows is nil), by two passes. It reports
+// false when the covariance is not positive definite.
+func (r *mcdRun) fit(rows []int, m int) (estimate, bool) {
+	p := r.p
+	e := estimate{mean: make([]float64, p), cov: make([]float64, p*p), linv: make([]float64, p*p)}
+	row := func(k int) int {
+		if rows == nil {
+			return k
+		}
+		return rows[k]
+	}
+	for j, c := range r.cols {
+		var s float64
+		for k := range m {
+			s += c[row(k)]
+		}
+		e.mean[j] = s / float64(m)
+	}
+	u := rowBuf(p)
+	for k := range m {
+		i := row(k)
+		for j := range p {
+			u[j] = r.cols[j][i] - e.mean[j]
+		}
+		for j := range p {
+			for l := j; l < p; l++ {
+				e.cov[j*p+l] += u[j] * u[l]
+			}
+		}
+	}
+	d := float64(m - 1)
+	for j := range p {
+		for l := j; l < p; l++ {
+			v := e.cov[j*p+l] / d
+			e.cov[j*p+l], e.cov[l*p+j] = v, v
+			r.sym.SetSym(j, l, v)
+		}
+	}
+	if !r.f.factorize(r.sym, e.linv) {
+		return estimate{}, false
+	}
+	e.logDet = r.f.chol.LogDet()
+	return e, true
+}
+
+// smallest returns the h rows of the set (rows, or the first m rows when
+// rows is nil) with the smallest squared distances to e, in set order with
+// ties at the h-th distance taken in set order. The slice is reused by the
+// next call.
+func (r *mcdRun) smallest(e estimate, rows []int, m, h int) []int {
+	d2 := r.d2[:m]
+	sqDistances(r.cols, e.mean, e.linv, rows, d2)
+	tmp := r.tmp[:m]
+	copy(tmp, d2)
+	t := selectKth(tmp, h-1)
+	sel := r.sel[:0]
+	for k, d := range d2 {
+		if d < t {
+			sel = append(sel, k)
+		}
+	}
+	for k, d := range d2 {
+		if len(sel) == h {
+			break
+		}
+		if d == t {
+			sel = append(sel, k)
+		}
+	}
+	if rows != nil {
+		for i, k := range sel {
+			sel[i] = rows[k]
+		}
+	}
+	r.sel = sel
+	return sel
+}
+
+// cstep is one C-step in the set: the h rows closest to e, and their fit.
+func (r *mcdRun) cstep(e estimate, rows []int, m, h int) (estimate, bool) {
+	return r.fit(r.smallest(e, rows, m, h), h)
+}
+
+// search runs the three stages of FAST-MCD and returns the best estimate
+// found in the full data.
+func (r *mcdRun) search(h int, opt MCDOptions) (estimate, error) {
+	n := r.n
+	groups := r.groups(opt)
+	var cands []estimate
+	if groups == nil {
+		cands = r.starts(nil, n, h, opt.Starts, opt.Keep)
+	} else {
+		var merged []int
+		for g, rows := range groups {
+			starts := opt.Starts / len(groups)
+			if g < opt.Starts%len(groups) {
+				starts++
+			}
+			hg := max(r.p+1, len(rows)*h/n)
+			cands = append(cands, r.starts(rows, len(rows), hg, max(starts, 1), opt.Keep)...)
+			merged = append(merged, rows...)
+		}
+		hm := max(r.p+1, len(merged)*h/n)
+		var best keepBest
+		for _, c := range cands {
+			if e, ok := r.iterate(c, merged, len(merged), hm, 2); ok {
+				best.add(e, opt.Keep)
+			}
+		}
+		cands = best.list
+	}
+	if len(cands) == 0 {
+		return estimate{}, errExactFit(h, n)
+	}
+	var final keepBest
+	var converged []estimate
+	for _, c := range cands {
+		// The first step moves the candidate from its subsample to the full
+		// data; determinants are comparable only from there on.
+		e, ok := r.cstep(c, nil, n, h)
+		if !ok {
+			return estimate{}, errExactFit(h, n)
+		}
+		for range opt.MaxSteps - 1 {
+			next, ok := r.cstep(e, nil, n, h)
+			if !ok {
+				return estimate{}, errExactFit(h, n)
+			}
+			if next.logDet >= e.logDet {
+				break
+			}
+			e = next
+			if slices.ContainsFunc(converged, e.same) {
+				break // on the path of a solution already iterated
+			}
+		}
+		converged = append(converged, e)
+		final.add(e, 1)
+	}
+	return final.list[0], nil
+}
+
+// starts runs count random starts in the set (rows, or all n rows when rows
+// is nil) of m rows with subset size h, three C-steps each, and returns the
+// keep best distinct results.
+func (r *mcdRun) starts(rows []int, m, h, count, keep int) []estimate {
+	var best keepBest
+	j := make([]int, 0, m)
+	in := make([]bool, m)
+	for range count {
+		j = j[:0]
+		clear(in)
+		var e estimate
+		ok := false
+		for !ok && len(j) < m {
+			k := r.rng.IntN(m)
+			if in[k] {
+				continue
+			}
+			in[k] = true
+			j = append(j, k)
+			if len(j) > r.p {
+				e, ok = r.fit(r.mapRows(rows, j), len(j))
+			}
+		}
+		if !ok {
+			continue
+		}
+		if e, ok = r.iterate(e, rows, m, h, 3); ok {
+			best.add(e, keep)
+		}
+	}
+	return best.list
+}
+
+// mapRows returns the data rows of the set positions in pos (pos itself
+// when the set is all rows) in a scratch slice.
+func (r *mcdRun) mapRows(rows, pos []int) []int {
+	if rows == nil {
+		return pos
+	}
+	out := r.sel[:0]
+	for _, k := range pos {
+		out = append(out, rows[k])
+	}
+	r.sel = out
+	return out
+}
+
+// iterate takes steps C-steps from e in the set; it reports false when a
+// subset's covariance is singular.
+func (r *mcdRun) iterate(e estimate, rows []int, m, h, steps int) (estimate, bool) {
+	for range steps {
+		var ok bool
+		if e, ok = r.cstep(e, rows, m, h); !ok {
+			return e, false
+		}
+	}
+	return e, true
+}
+
+// groups splits the data for the nested stages: nil when n < 2·GroupSize,
+// else k = min(MaxGroups, ⌊n/GroupSize⌋) groups of about equal size from a
+// random sample of min(n, k·GroupSize) rows.
+func (r *mcdRun) groups(opt MCDOptions) [][]int {
+	n := r.n
+	if n < 2*opt.GroupSize {
+		return nil
+	}
+	k := min(opt.MaxGroups, n/opt.GroupSize)
+	size := min(n, k*opt.GroupSize)
+	pool := sampleRows(r.rng, n, size)
+	r.rng.Shuffle(len(pool), func(a, b int) { pool[a], pool[b] = pool[b], pool[a] })
+	out := make([][]int, k)
+	for g := range k {
+		out[g] = pool[g*size/k : (g+1)*size/k]
+	}
+	return out
+}
+
+// sampleRows draws k distinct rows of n by Floyd's algorithm (Bentley &
+// Floyd 1987, "Programming pearls: a sample of brilliance"), in O(k).
+func sampleRows(rng *rand.Rand, n, k int) []int {
+	if k >= n {
+		out := make([]int, n)
+		for i := range out {
+			out[i] = i
+		}
+		return out
+	}
+	seen := make(map[int]bool, k)
+	out := make([]int, 0, k)
+	for j := n - k; j < n; j++ {
+		t := rng.IntN(j + 1)
+		if seen[t] {
+			t = j
+		}
+		seen[t] = true
+		out = append(out, t)
+	}
+	return out
+}
+
+// keepBest keeps the estimates with the smallest determinants, without
+// duplicates, in ascending order of ln det.
+type keepBest struct {
+	list []estimate
+}
+
+func (b *keepBest) add(e estimate, keep int) {
+	i, _ := slices.BinarySearchFunc(b.list, e.logDet, func(x estimate, v float64) int {
+		if x.logDet < v {
+			return -1
+		}
+		if x.logDet > v {
+			return 1
+		}
+		return 0
+	})
+	for k := i; k < len(b.list) && b.list[k].logDet == e.logDet; k++ {
+		if b.list[k].same(e) {
+			return
+		}
+	}
+	if i >= keep {
+		return
+	}
+	b.list = slices.Insert(b.list, i, e)
+	if len(b.list) > keep {
+		b.list = b.list[:keep]
+	}
+}
+
+// selectKth reorders a so that a[k] holds its k-th smallest value (0-based)
+// and returns it: Hoare's selection with a median-of-three pivot, falling
+// back to sorting the remaining range when partitions keep coming out
+// lopsided, so the worst case is O(n log n) and the usual one O(n).
+func selectKth(a []float64, k int) float64 {
+	lo, hi := 0, len(a)-1
+	budget := 2*bits.Len(uint(len(a))) + 4
+	for hi > lo {
+		if budget == 0 {
+			slices.Sort(a[lo : hi+1])
+			return a[k]
+		}
+		budget--
+		mid := lo + (hi-lo)/2
+		if a[mid] < a[lo] {
+			a[mid], a[lo] = a[lo], a[mid]
+		}
+		if a[hi] < a[lo] {
+			a[hi], a[lo] = a[lo], a[hi]
+		}
+		if a[hi] < a[mid] {
+			a[hi], a[mid] = a[mid], a[hi]
+		}
+		pivot := a[mid]
+		i, j := lo, hi
+		for i <= j {
+			for a[i] < pivot {
+				i++
+			}
+			for a[j] > pivot {
+				j--
+			}
+			if i <= j {
+				a[i], a[j] = a[j], a[i]
+				i++
+				j--
+			}
+		}
+		switch {
+		case k <= j:
+			hi = j
+		case k >= i:
+			lo = i
+		default:
+			return a[k]
+		}
+	}
+	return a[k]
+}
