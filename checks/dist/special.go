@@ -31,67 +31,59 @@ func trigamma(x float64) float64 {
 	return acc + series
 }
 
-// errNoRoot reports that a bracketing search found no sign change.
+// errNoRoot reports that the search found no sign change.
 var errNoRoot = errors.New("no sign change found")
 
-// rootPositive finds t with f(t) = 0 for an increasing function f of a
-// positive variable t, starting from the guess t0 > 0. f returns the value
+// rootPositive finds t > 0 with f(t) = 0 for an increasing function f of a
+// positive variable, starting from the guess t0 > 0. f returns the value
 // and the derivative at t.
 //
-// The root is first bracketed by doubling or halving t0 (at most 200 times),
-// then refined by Newton steps that fall back to bisection (in the geometric
-// mean, as t is a scale) whenever a step leaves the bracket — the
+// It takes Newton steps from t0 and keeps the tightest bracket [lo, hi]
+// its evaluations have shown (lo = 0 and hi = +Inf until a sign is seen on
+// that side). A step that leaves the bracket, or a derivative that is not
+// positive, is replaced by bisection in the geometric mean (t is a scale)
+// once both ends are known, and by doubling or halving t before — the
 // safeguarded Newton method of Press et al. (2007), Numerical Recipes 3rd
-// ed., §9.4 (rtsafe). It stops when the bracket or the step is below 1e-14
-// relative, or after 200 iterations.
+// ed., §9.4 (rtsafe), without its separate bracketing stage, so that a
+// good start costs no extra evaluations. It stops when a step or the
+// bracket is below 1e-14 relative; it fails when 400 steps do not find the
+// root or t leaves the floating-point range.
 func rootPositive(f func(t float64) (float64, float64), t0 float64) (float64, error) {
 	if !(t0 > 0) || math.IsInf(t0, 1) {
 		t0 = 1
 	}
-	lo, hi := t0, t0
-	flo, _ := f(lo)
-	fhi := flo
-	for i := 0; flo > 0; i++ {
-		if i == 200 || lo < 1e-300 {
-			return 0, errNoRoot
-		}
-		hi, fhi = lo, flo
-		lo /= 2
-		flo, _ = f(lo)
-	}
-	for i := 0; fhi < 0; i++ {
-		if i == 200 || hi > 1e300 {
-			return 0, errNoRoot
-		}
-		lo, flo = hi, fhi
-		hi *= 2
-		fhi, _ = f(hi)
-	}
-	if flo == 0 {
-		return lo, nil
-	}
-	if fhi == 0 {
-		return hi, nil
-	}
-	t := math.Sqrt(lo * hi)
-	for range 200 {
+	lo, hi := 0.0, math.Inf(1)
+	t := t0
+	for range 400 {
 		v, d := f(t)
-		if v == 0 {
+		switch {
+		case v == 0:
 			return t, nil
-		}
-		if v < 0 {
+		case v < 0:
 			lo = t
-		} else {
+		case v > 0:
 			hi = t
+		default:
+			return 0, errNoRoot // NaN
 		}
 		next := t - v/d
 		if !(d > 0) || !(next > lo && next < hi) {
-			next = math.Sqrt(lo * hi)
+			switch {
+			case math.IsInf(hi, 1):
+				next = 2 * t
+			case lo == 0:
+				next = t / 2
+			default:
+				next = math.Sqrt(lo * hi)
+			}
 		}
-		if math.Abs(next-t) <= 1e-14*t || (hi-lo) <= 1e-14*t {
+		if !(next > 0) || math.IsInf(next, 1) {
+			return 0, errNoRoot
+		}
+		if math.Abs(next-t) <= 1e-14*t || (lo > 0 && !math.IsInf(hi, 1) && hi-lo <= 1e-14*hi) {
 			return next, nil
 		}
 		t = next
 	}
-	return t, nil
+	return 0, errNoRoot
 }
