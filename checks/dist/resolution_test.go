@@ -106,10 +106,7 @@ func TestRounded(t *testing.T) {
 // recorded value), and as close to the rounded normal as sampling allows,
 // below the 1% critical value 1.63/√n (Massey 1951, as in VALUES.md §2.1).
 func TestRoundedRemovesTieMisfit(t *testing.T) {
-	n := 200000
-	if testing.Short() {
-		n = 50000
-	}
+	const n = 200000
 	d, err := mustLookup(t, "normal").New(map[string]float64{"mean": 0, "sd": 1})
 	if err != nil {
 		t.Fatal(err)
