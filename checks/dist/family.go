@@ -123,7 +123,8 @@ type spec struct {
 
 // Family is a probability family with some, all or none of its parameters
 // given. It is a small comparable value; the families are listed by
-// Families and found by name with Lookup; Fix gives parameters.
+// Families and found by name with Lookup; Fix gives parameters. The zero
+// Family is not a family: get one from Lookup or Families.
 type Family struct {
 	spec  *spec
 	given [maxParams]float64
