@@ -86,6 +86,9 @@ func goldenColumns(t *testing.T, set string) [][]float64 {
 	return cols
 }
 
+// newRand is the seeded random source of the tests.
+func newRand(seed uint64) *rand.Rand { return rand.New(rand.NewPCG(seed, 2)) }
+
 func relErr(got, want float64) float64 {
 	if got == want {
 		return 0
@@ -355,7 +358,7 @@ func TestFastMCDGolden(t *testing.T) {
 		p := len(cols)
 		inMinimum := 0
 		for _, seed := range seeds {
-			m, err := FastMCD(cols, MCDOptions{Alpha: g.alpha}, rand.New(rand.NewPCG(seed, 2)))
+			m, err := FastMCD(cols, MCDOptions{Alpha: g.alpha}, newRand(seed))
 			if err != nil {
 				t.Fatalf("%s seed %d: %v", set, seed, err)
 			}
