@@ -79,6 +79,9 @@ func (c *csvFile) first(noHeader bool) error {
 		if c.in.Gzip {
 			what = "the compressed file holds no text"
 		}
+		if noHeader {
+			return errorf(c.in.name, "no rows: %s", what)
+		}
 		return errorf(c.in.name, "no header line: %s", what)
 	}
 	return nil

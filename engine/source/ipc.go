@@ -35,7 +35,7 @@ func (s *Set) openArrowFile(in *input, f *os.File, size int64) (*ipc.FileReader,
 	if !bytes.Equal(tail, arrowMagic) {
 		return nil, errorf(in.name, "the Arrow file is truncated: it does not end with \"ARROW1\" (it was cut short; copy it again)")
 	}
-	r, err := ipc.NewFileReader(f, ipc.WithAllocator(s.opts.Allocator))
+	r, err := ipc.NewFileReader(f, s.ipcOptions(size)...)
 	if err != nil {
 		return nil, &Error{Path: in.name, Err: err, Msg: "cannot read the Arrow file: " + err.Error() + " (the file is damaged; copy it again)"}
 	}
@@ -43,8 +43,8 @@ func (s *Set) openArrowFile(in *input, f *os.File, size int64) (*ipc.FileReader,
 }
 
 // inspectArrowStream reads the schema of an Arrow IPC stream input.
-func (s *Set) inspectArrowStream(in *input, f *os.File) error {
-	r, err := s.openArrowStream(in, f)
+func (s *Set) inspectArrowStream(in *input, f *os.File, size int64) error {
+	r, err := s.openArrowStream(in, f, size)
 	if err != nil {
 		return err
 	}
@@ -53,8 +53,18 @@ func (s *Set) inspectArrowStream(in *input, f *os.File) error {
 	return checkNames(in, 0)
 }
 
-func (s *Set) openArrowStream(in *input, f *os.File) (*ipc.Reader, error) {
-	r, err := ipc.NewReader(f, ipc.WithAllocator(s.opts.Allocator))
+// ipcOptions are the reader options for an Arrow file of size bytes: no
+// message can be larger than the file, so a damaged length fails at once
+// instead of allocating what it claims; and none that fits is refused.
+func (s *Set) ipcOptions(size int64) []ipc.Option {
+	return []ipc.Option{ipc.WithAllocator(s.opts.Allocator), ipc.WithMetadataSizeLimit(size), ipc.WithBodySizeLimit(size)}
+}
+
+func (s *Set) openArrowStream(in *input, f *os.File, size int64) (*ipc.Reader, error) {
+	// ipc.NewReader does not pass the size limits on to its message reader
+	// (arrow-go v18.8.0), so build the two here.
+	opts := s.ipcOptions(size)
+	r, err := ipc.NewReaderFromMessageReader(ipc.NewMessageReader(f, opts...), opts...)
 	if err != nil {
 		return nil, &Error{Path: in.name, Err: err, Msg: "cannot read the Arrow stream's schema: " + err.Error() +
 			" (the file is damaged or not an Arrow stream)"}
@@ -88,7 +98,7 @@ func (s *Set) scanArrow(ctx context.Context, i int, proj []int, schema *arrow.Sc
 			return r.RecordBatchAt(k - 1)
 		}
 	} else {
-		r, err := s.openArrowStream(in, f)
+		r, err := s.openArrowStream(in, f, size)
 		if err != nil {
 			return 0, err
 		}

@@ -308,7 +308,7 @@ func (s *Set) inspect(in *input) error {
 	case ArrowFile:
 		return s.inspectArrowFile(in, f, size)
 	case ArrowStream:
-		return s.inspectArrowStream(in, f)
+		return s.inspectArrowStream(in, f, size)
 	}
 	return s.inspectCSV(in)
 }
