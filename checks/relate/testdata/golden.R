@@ -11,6 +11,7 @@
 #   huber.csv   case,intercept,slope,scale,converged   MASS::rlm, psi.huber k = 1.345, MAD scale
 #   tables.csv  case,a,b,count        contingency tables
 #   chisq.csv   case,statistic,df,p,v,v_corrected   chisq.test(correct = FALSE); V by formula
+#   cutoffs.csv n,alpha,bonferroni_t,cooks_f50   qt(1 - alpha/(2n), n - 3), qf(0.5, 2, n - 2)
 # The first line of each file names the R and MASS versions.
 
 suppressMessages(library(MASS))
@@ -49,6 +50,11 @@ x <- sample(1:5, 300, TRUE); add("ties300", x, x + sample(1:3, 300, TRUE))
 # examples: Hunter L value and panel score.
 add("tuna9", c(44.4, 45.9, 41.9, 53.3, 44.7, 44.1, 50.7, 45.2, 60.1),
   c(2.6, 3.1, 2.5, 5.0, 3.6, 4.0, 5.2, 2.8, 3.8))
+
+# Anscombe's quartet: one line, four shapes (set 3 has an outlier, set 4 a
+# point of leverage 1, whose rstudent and Cook's distance R leaves NaN).
+q <- read.csv("anscombe_1973_quartet.csv", comment.char = "#")
+for (k in 1:4) add(sprintf("anscombe%d", k), q[[sprintf("x%d", k)]], q[[sprintf("y%d", k)]])
 
 pairs <- do.call(rbind, lapply(names(cases), function(id)
   data.frame(case = id, x = num(cases[[id]]$x), y = num(cases[[id]]$y))))
@@ -123,3 +129,10 @@ for (id in names(tables)) {
 }
 write_golden(do.call(rbind, table_rows), "tables.csv")
 write_golden(do.call(rbind, chisq_rows), "chisq.csv")
+
+# Cutoffs of the row diagnostics.
+cut <- expand.grid(n = c(4, 5, 10, 30, 100, 1000, 1e6), alpha = c(0.05, 0.01))
+cut$bonferroni_t <- num(qt(1 - cut$alpha / (2 * cut$n), cut$n - 3))
+cut$cooks_f50 <- num(qf(0.5, 2, cut$n - 2))
+cut$n <- sprintf("%d", as.integer(cut$n))
+write_golden(cut, "cutoffs.csv")
