@@ -422,44 +422,25 @@ func pickNulls(r *rand.Rand, rows int, hives []*hive) []uint8 {
 // appendRow formats one CSV row, applying the plants that change only the
 // text of a cell.
 func appendRow(b []byte, rd reading, h *hive, hr int, missing uint8) []byte {
-	b = strconv.AppendInt(b, int64(rd.id), 10)
-	b = append(b, ',')
+	hiveID := rd.hiveID
 	if h.id == truncatedHive && hr == truncatedHour {
-		b = append(b, truncatedID...)
-	} else {
-		b = append(b, rd.hiveID...)
+		hiveID = truncatedID
 	}
-	b = append(b, ',')
-	b = append(b, rd.yard...)
-	b = append(b, ',')
-	b = rd.hour.AppendFormat(b, time.RFC3339)
-	b = append(b, ',')
+	weight := strconv.FormatFloat(rd.weight, 'f', 2, 64)
 	switch {
 	case missing == noWeight:
+		weight = ""
 	case h.id == gramsHive && hr >= gramsFrom && hr < gramsTo:
-		b = strconv.AppendFloat(b, math.Round(rd.weight*1000), 'f', 0, 64)
-	default:
-		b = strconv.AppendFloat(b, rd.weight, 'f', 2, 64)
+		weight = strconv.FormatFloat(math.Round(rd.weight*1000), 'f', 0, 64)
 	}
-	b = append(b, ',')
+	brood := strconv.FormatFloat(rd.brood, 'f', 2, 64)
 	if h.id == errHive && hr >= errFrom && hr < errTo {
-		b = append(b, errText...)
-	} else {
-		b = strconv.AppendFloat(b, rd.brood, 'f', 2, 64)
+		brood = errText
 	}
-	b = append(b, ',')
-	b = strconv.AppendFloat(b, rd.ambient, 'f', 2, 64)
-	b = append(b, ',')
+	humidity := strconv.FormatFloat(rd.humidity, 'f', 1, 64)
 	if missing == noHumidity {
-		b = append(b, humidityNA...)
-	} else {
-		b = strconv.AppendFloat(b, rd.humidity, 'f', 1, 64)
+		humidity = humidityNA
 	}
-	b = append(b, ',')
-	b = strconv.AppendFloat(b, rd.volts, 'f', 3, 64)
-	b = append(b, ',')
-	b = append(b, rd.firmware...)
-	b = append(b, ',')
-	b = append(b, rd.status...)
-	return append(b, '\n')
+	return fmt.Appendf(b, "%d,%s,%s,%s,%s,%s,%.2f,%s,%.3f,%s,%s\n", rd.id, hiveID, rd.yard, rd.hour.Format(time.RFC3339),
+		weight, brood, rd.ambient, humidity, rd.volts, rd.firmware, rd.status)
 }
