@@ -3,6 +3,8 @@ package outlier
 import (
 	"fmt"
 	"math"
+
+	"gonum.org/v1/gonum/mathext"
 )
 
 // CDF is a fitted distribution: CDF(x) = P(X <= x). gonum's stat/distuv
@@ -11,9 +13,8 @@ type CDF interface {
 	CDF(x float64) float64
 }
 
-// survivor is implemented by distributions that compute P(X > x) without
-// the cancellation of 1 − CDF(x) in the upper tail (gonum's distuv types
-// and package dist's do).
+// survivor is implemented by distributions that compute P(X > x) directly
+// (gonum's distuv types and package dist's Dist do).
 type survivor interface {
 	Survival(x float64) float64
 }
@@ -28,7 +29,9 @@ type survivor interface {
 // that any is flagged is at most Alpha (Bonferroni's inequality), and close
 // to Alpha for small Alpha. With parameters estimated from the same data the
 // level is approximate. 1 − F(x) is taken from a Survival method when the
-// distribution has one. For a discrete family 1 − F(x) = P(X > x), not
+// distribution has one; far-tail scores are only as precise as that method
+// (gonum v0.17.0's Normal.Survival computes 1 − erf and reaches 0 near
+// x = 8.3 sd, where package dist's normal is still exact). For a discrete family 1 − F(x) = P(X > x), not
 // P(X >= x), so the upper tail is tested slightly too often.
 type Tail struct {
 	Dist  CDF
@@ -67,10 +70,15 @@ func (t Tail) Prob(x float64) float64 {
 func (t Tail) Outside(x float64) bool { return t.Prob(x) < t.Alpha/(2*float64(t.N)) }
 
 // Score is the standard normal deviate with the same one-sided tail
-// probability, −Φ⁻¹(Prob(x)) = √2 erfc⁻¹(2 Prob(x)): 0 at the median, 3.09
-// at a tail probability of 0.001, +Inf where the probability underflows to
-// 0. It orders values like the tail probability does, on a scale comparable
-// with a z-score.
+// probability, −Φ⁻¹(Prob(x)): 0 at the median, 3.09 at a tail probability
+// of 0.001, 37 at 6e-300, +Inf where the probability underflows to 0. It
+// orders values like the tail probability does, on a scale comparable with
+// a z-score. Φ⁻¹ is Wichura's (1988) algorithm AS 241 (gonum's
+// mathext.NormalQuantile), accurate in the far tail.
 func (t Tail) Score(x float64) float64 {
-	return math.Sqrt2 * math.Erfcinv(2*t.Prob(x))
+	q := t.Prob(x)
+	if !(q >= 0) {
+		return math.NaN()
+	}
+	return -mathext.NormalQuantile(min(q, 0.5))
 }
