@@ -70,7 +70,6 @@ func (p Path) String() string {
 // and safe for concurrent use; each goroutine evaluates it with its own
 // Evaluator.
 type Program struct {
-	src       string
 	cols      []column // the columns the expression reads, in order of appearance
 	root      *plan
 	path      Path
@@ -108,8 +107,6 @@ func (p *Program) Fallbacks() []string { return slices.Clone(p.fallbacks) }
 // numbers or instants (<, <=, >, >=, ==), whose false rows Evaluator.Eval
 // scores by how far the comparison is from holding.
 func (p *Program) Measured() bool { return p.gap }
-
-func (p *Program) String() string { return p.src }
 
 // Compile parses and type-checks src with expr against the given columns
 // (Arrow types int64, float64, utf8, bool, timestamp of any unit, date32,
@@ -155,7 +152,7 @@ func Compile(src string, columns map[string]arrow.DataType) (prog *Program, err 
 	if err != nil {
 		return nil, err
 	}
-	p := &Program{src: src, cols: pl.cols, root: root, fallbacks: pl.fallbacks, env: env}
+	p := &Program{cols: pl.cols, root: root, fallbacks: pl.fallbacks, env: env}
 	switch {
 	case root.op == opVM:
 		p.path = Interpreted

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"maps"
 	"slices"
+	"sync"
 	"testing"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -104,5 +105,35 @@ func TestEvalErrors(t *testing.T) {
 	p, _ := Compile(`b > 1`, testTypes)
 	if err := p.NewEvaluator().Eval(rec, make([]Truth, 2), nil); err == nil {
 		t.Errorf("a short result buffer: no error")
+	}
+}
+
+// TestConcurrentEvaluators: one Program, an Evaluator per goroutine, on
+// both paths (run with -race).
+func TestConcurrentEvaluators(t *testing.T) {
+	rec := newRecord(t, fixture)
+	for _, src := range []string{`lower(s) == "banana" || a in [1, 10]`, `ts.Year() == 2024 || s matches "^a"`} {
+		p, err := Compile(src, testTypes)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := make([]Truth, rec.NumRows())
+		if err := p.NewEvaluator().Eval(rec, want, nil); err != nil {
+			t.Fatal(err)
+		}
+		var wg sync.WaitGroup
+		for range 4 {
+			wg.Go(func() {
+				e := p.NewEvaluator()
+				got := make([]Truth, rec.NumRows())
+				for range 50 {
+					if err := e.Eval(rec, got, nil); err != nil || !slices.Equal(got, want) {
+						t.Errorf("%s: %v %v, want %v", src, got, err, want)
+						return
+					}
+				}
+			})
+		}
+		wg.Wait()
 	}
 }

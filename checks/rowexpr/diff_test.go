@@ -278,7 +278,7 @@ func describe(row map[string]any, p *Program) string {
 // TestDifferential compares the vectorized evaluation with expr's own on
 // random expressions and random rows with nulls.
 func TestDifferential(t *testing.T) {
-	n := 3000
+	n := 1500
 	if testing.Short() {
 		n = 300
 	}

@@ -21,10 +21,6 @@ const (
 	kindTime // an instant, from a timestamp or date column or a time constant
 )
 
-var kindNames = [...]string{"none", "bool", "int", "float", "string", "time"}
-
-func (k kind) String() string { return kindNames[k] }
-
 func (k kind) numeric() bool { return k == kindInt || k == kindFloat }
 
 // instant is a point in time as seconds and nanoseconds since the Unix

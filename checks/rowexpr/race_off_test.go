@@ -1,0 +1,5 @@
+//go:build !race
+
+package rowexpr
+
+const raceEnabled = false
