@@ -92,8 +92,20 @@ func (f Family) Check(sample []float64) error {
 	if err := checkValues(sample, f.String(), "finite numbers", finite); err != nil {
 		return err
 	}
-	if s.inSupport == nil {
+	ok, need := f.support()
+	if ok == nil {
 		return nil
+	}
+	return checkValues(sample, f.String(), need, ok)
+}
+
+// support returns the family's own test of a finite value, given the
+// parameters fixed so far, and what it needs; nil when any finite value
+// will do.
+func (f Family) support() (func(float64) bool, string) {
+	s := f.spec
+	if s.inSupport == nil {
+		return nil, ""
 	}
 	fixed := make([]float64, len(s.params))
 	for i := range fixed {
@@ -102,11 +114,25 @@ func (f Family) Check(sample []float64) error {
 			fixed[i] = f.given[i]
 		}
 	}
-	ok, need := s.inSupport(fixed)
-	if ok == nil {
-		return nil
+	return s.inSupport(fixed)
+}
+
+// InSupport returns the test Check applies to each value, for callers that
+// see a sample a piece at a time and must count every value outside:
+// ok(x) reports whether x is a finite number f can produce with the
+// parameters given so far, and need says what the family needs, in the
+// words of a SupportError ("values above 0"). Check adds the size of the
+// sample to this. For the categorical family, whose values are labels, ok
+// is nil.
+func (f Family) InSupport() (ok func(x float64) bool, need string) {
+	if f.spec == nil || f.spec.kind == Categorical {
+		return nil, ""
 	}
-	return checkValues(sample, f.String(), need, ok)
+	in, need := f.support()
+	if in == nil {
+		return finite, "finite numbers"
+	}
+	return func(x float64) bool { return finite(x) && in(x) }, need
 }
 
 // Fit is a family fitted to a sample.
