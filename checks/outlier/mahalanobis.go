@@ -251,12 +251,22 @@ type factor struct {
 
 // factorize factorises the positive definite a = Uᵀ U (gonum's upper
 // factor, so L = Uᵀ) and writes L⁻¹ = (U⁻¹)ᵀ row-major into linv (p × p).
-// It reports false when a is not positive definite.
+// It reports false when a is not positive definite, counting as singular a
+// matrix in which some column is explained by the ones before it up to
+// 1 − R² < singularTol: U_kk² = a_kk (1 − R²_k), R²_k that of column k
+// regressed on columns 1 .. k−1, a test that does not depend on the
+// columns' scales.
 func (f *factor) factorize(a *mat.SymDense, linv []float64) bool {
 	if !f.chol.Factorize(a) {
 		return false
 	}
 	f.chol.UTo(&f.u)
+	p := a.SymmetricDim()
+	for k := range p {
+		if u := f.u.At(k, k); u*u < singularTol*a.At(k, k) {
+			return false
+		}
+	}
 	if err := f.u.InverseTri(&f.u); err != nil {
 		// A finite condition number above gonum's tolerance still leaves a
 		// computed inverse; an infinite one does not.
@@ -264,7 +274,6 @@ func (f *factor) factorize(a *mat.SymDense, linv []float64) bool {
 			return false
 		}
 	}
-	p := a.SymmetricDim()
 	raw := f.u.RawTriangular()
 	for k := range p {
 		for j := 0; j <= k; j++ {
@@ -276,3 +285,8 @@ func (f *factor) factorize(a *mat.SymDense, linv []float64) bool {
 	}
 	return !math.IsInf(f.chol.LogDet(), 0)
 }
+
+// singularTol is the share of a column's variance below which the part not
+// explained by the other columns counts as rounding error: 1e-12, about 10⁴
+// times the relative precision of float64.
+const singularTol = 1e-12

@@ -6,6 +6,7 @@ import (
 	"math/bits"
 	"math/rand/v2"
 	"slices"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat/distuv"
@@ -162,9 +163,10 @@ type MCD struct {
 // Every random choice comes from rng, so a result repeats from its seed.
 // Memory is O(n) beyond the data; time is O(n p²) per full-data C-step.
 // For data that do not fit in memory, estimate from a seeded sample and
-// score every row with Final. It fails when more than h rows lie on a
-// hyperplane (the covariance of the best subset is singular: an "exact
-// fit"), or when n < p + 2.
+// score every row with Final. It fails when n < p + 2, and when at least
+// h rows satisfy an exact linear relation (a singular h-subset was found and
+// h rows lie on its hyperplane: the "exact fit" case, with determinant 0,
+// where robust distances are undefined); the error names the relation.
 func FastMCD(cols [][]float64, opt MCDOptions, rng *rand.Rand) (MCD, error) {
 	opt, err := opt.withDefaults()
 	if err != nil {
@@ -193,9 +195,12 @@ func FastMCD(cols [][]float64, opt MCDOptions, rng *rand.Rand) (MCD, error) {
 			best[i] = i
 		}
 	} else {
-		est, err := r.search(h, opt)
-		if err != nil {
+		est, ok := r.search(h, opt)
+		if err := r.exactFit(h); err != nil {
 			return MCD{}, fmt.Errorf("fast mcd: %w", err)
+		}
+		if !ok {
+			return MCD{}, fmt.Errorf("fast mcd: every subset of %d rows tried has a singular covariance", h)
 		}
 		best = slices.Clone(r.smallest(est, nil, n, h))
 		slices.Sort(best)
@@ -214,7 +219,7 @@ func (r *mcdRun) finish(best []int, q float64) (MCD, error) {
 	res := MCD{N: n, H: h, Best: best, RawFactor: ConsistencyFactor(p, float64(h)/float64(n))}
 	raw, ok := r.fit(best, h)
 	if !ok {
-		return MCD{}, errExactFit(h, n)
+		return MCD{}, fmt.Errorf("the covariance of the %d rows is singular (a constant column or linearly dependent columns)", h)
 	}
 	res.LogDet = raw.logDet
 	var err error
@@ -242,8 +247,107 @@ func (r *mcdRun) finish(best []int, q float64) (MCD, error) {
 	return res, nil
 }
 
-func errExactFit(h, n int) error {
-	return fmt.Errorf("at least %d of the %d rows lie on a hyperplane (exact fit): their covariance is singular and distances to it are undefined", h, n)
+// exactFit checks the singular subset found by the search, if any: when at
+// least h of the n rows lie on its hyperplane a·x = a·x̄ (a the eigenvector
+// of its covariance's smallest eigenvalue), the MCD is that subset, with
+// determinant 0, and robust distances are undefined; the error names the
+// hyperplane. A row lies on it when |a·(x − x̄)| is within 100 times the
+// largest such value among the subset's own rows (their rounding error),
+// and at least 1e-12 times the largest over all rows.
+func (r *mcdRun) exactFit(h int) error {
+	if r.singular == nil {
+		return nil
+	}
+	p := r.p
+	mean := make([]float64, p)
+	for j, c := range r.cols {
+		var s float64
+		for _, i := range r.singular {
+			s += c[i]
+		}
+		mean[j] = s / float64(len(r.singular))
+	}
+	cov := mat.NewSymDense(p, nil)
+	u := rowBuf(p)
+	for _, i := range r.singular {
+		for j := range p {
+			u[j] = r.cols[j][i] - mean[j]
+		}
+		for j := range p {
+			for k := j; k < p; k++ {
+				cov.SetSym(j, k, cov.At(j, k)+u[j]*u[k])
+			}
+		}
+	}
+	var eig mat.EigenSym
+	if !eig.Factorize(cov, true) {
+		return nil
+	}
+	var vecs mat.Dense
+	eig.VectorsTo(&vecs)
+	a := mat.Col(nil, 0, &vecs) // eigenvalues ascend
+	proj := func(i int) float64 {
+		var t float64
+		for j := range p {
+			t += a[j] * (r.cols[j][i] - mean[j])
+		}
+		return math.Abs(t)
+	}
+	var own, all float64
+	for _, i := range r.singular {
+		own = max(own, proj(i))
+	}
+	for i := range r.n {
+		all = max(all, proj(i))
+	}
+	tol := max(100*own, 1e-12*all)
+	on := 0
+	for i := range r.n {
+		if proj(i) <= tol {
+			on++
+		}
+	}
+	if on < h {
+		return nil
+	}
+	var b, size float64
+	for j := range p {
+		b += a[j] * mean[j]
+		size += math.Abs(a[j] * mean[j])
+	}
+	if math.Abs(b) <= 1e-9*size {
+		b = 0 // rounding error of a plane through the origin
+	}
+	return fmt.Errorf("%d of the %d rows satisfy %s (an exact linear relation, at least h = %d rows): their covariance is singular and robust distances are undefined", on, r.n, hyperplane(a, b), h)
+}
+
+// hyperplane writes a·x = b with the columns named x1, x2, ... and the
+// coefficients scaled so that the largest is 1.
+func hyperplane(a []float64, b float64) string {
+	var big float64
+	for _, v := range a {
+		if math.Abs(v) > math.Abs(big) {
+			big = v
+		}
+	}
+	var sb strings.Builder
+	for j, v := range a {
+		c := v / big
+		if math.Abs(c) < 1e-12 {
+			continue
+		}
+		if sb.Len() > 0 {
+			if c < 0 {
+				sb.WriteString(" - ")
+				c = -c
+			} else {
+				sb.WriteString(" + ")
+			}
+		}
+		fmt.Fprintf(&sb, "%.6g x%d", c, j+1)
+	}
+	fmt.Fprintf(&sb, " = %.6g", b/big+0) // +0 turns −0 into 0
+	return sb.String()
 }
 
 // estimate is a mean and covariance (p × p row-major) of some rows with
@@ -280,6 +384,9 @@ type mcdRun struct {
 	d2   []float64 // distances of the rows of the current set
 	tmp  []float64 // copy of d2 for selection
 	sel  []int     // rows selected by the last C-step
+	// singular holds the first C-step subset found with a singular
+	// covariance, nil if none.
+	singular []int
 }
 
 func newMCDRun(cols [][]float64, n int, rng *rand.Rand) *mcdRun {
@@ -368,13 +475,20 @@ func (r *mcdRun) smallest(e estimate, rows []int, m, h int) []int {
 }
 
 // cstep is one C-step in the set: the h rows closest to e, and their fit.
+// When their covariance is singular it keeps the first such subset for
+// the exact-fit check and reports false.
 func (r *mcdRun) cstep(e estimate, rows []int, m, h int) (estimate, bool) {
-	return r.fit(r.smallest(e, rows, m, h), h)
+	sel := r.smallest(e, rows, m, h)
+	next, ok := r.fit(sel, h)
+	if !ok && r.singular == nil {
+		r.singular = slices.Clone(sel)
+	}
+	return next, ok
 }
 
 // search runs the three stages of FAST-MCD and returns the best estimate
-// found in the full data.
-func (r *mcdRun) search(h int, opt MCDOptions) (estimate, error) {
+// found in the full data; false when every subset it reached was singular.
+func (r *mcdRun) search(h int, opt MCDOptions) (estimate, bool) {
 	n := r.n
 	groups := r.groups(opt)
 	var cands []estimate
@@ -400,9 +514,6 @@ func (r *mcdRun) search(h int, opt MCDOptions) (estimate, error) {
 		}
 		cands = best.list
 	}
-	if len(cands) == 0 {
-		return estimate{}, errExactFit(h, n)
-	}
 	var final keepBest
 	var converged []estimate
 	for _, c := range cands {
@@ -410,14 +521,11 @@ func (r *mcdRun) search(h int, opt MCDOptions) (estimate, error) {
 		// data; determinants are comparable only from there on.
 		e, ok := r.cstep(c, nil, n, h)
 		if !ok {
-			return estimate{}, errExactFit(h, n)
+			continue
 		}
 		for range opt.MaxSteps - 1 {
 			next, ok := r.cstep(e, nil, n, h)
-			if !ok {
-				return estimate{}, errExactFit(h, n)
-			}
-			if next.logDet >= e.logDet {
+			if !ok || next.logDet >= e.logDet {
 				break
 			}
 			e = next
@@ -428,7 +536,10 @@ func (r *mcdRun) search(h int, opt MCDOptions) (estimate, error) {
 		converged = append(converged, e)
 		final.add(e, 1)
 	}
-	return final.list[0], nil
+	if len(final.list) == 0 {
+		return estimate{}, false
+	}
+	return final.list[0], true
 }
 
 // starts runs count random starts in the set (rows, or all n rows when rows
