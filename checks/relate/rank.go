@@ -14,28 +14,35 @@ import (
 // removed first.
 func Ranks(x []float64) (r []float64, ties bool) {
 	r = make([]float64, len(x))
-	return r, ranksTo(r, x, make([]int, len(x)))
+	return r, ranksTo(r, x, make([]valueIndex, len(x)))
 }
 
-// ranksTo writes the mid-ranks of x into dst using idx as scratch and
+// valueIndex is a value and the index it came from, sorted together so
+// that sorting touches contiguous memory.
+type valueIndex struct {
+	v float64
+	i int
+}
+
+// ranksTo writes the mid-ranks of x into dst using buf as scratch and
 // reports ties.
-func ranksTo(dst, x []float64, idx []int) bool {
-	for i := range idx {
-		idx[i] = i
+func ranksTo(dst, x []float64, buf []valueIndex) bool {
+	for i, v := range x {
+		buf[i] = valueIndex{v, i}
 	}
-	slices.SortFunc(idx, func(a, b int) int { return cmp.Compare(x[a], x[b]) })
+	slices.SortFunc(buf, func(a, b valueIndex) int { return cmp.Compare(a.v, b.v) })
 	ties := false
-	for i := 0; i < len(idx); {
+	for i := 0; i < len(buf); {
 		j := i + 1
-		for j < len(idx) && x[idx[j]] == x[idx[i]] {
+		for j < len(buf) && buf[j].v == buf[i].v {
 			j++
 		}
 		if j-i > 1 {
 			ties = true
 		}
 		mid := float64(i+j+1) / 2 // average of ranks i+1 .. j
-		for _, k := range idx[i:j] {
-			dst[k] = mid
+		for _, e := range buf[i:j] {
+			dst[e.i] = mid
 		}
 		i = j
 	}
@@ -64,10 +71,10 @@ func SpearmanTest(x, y []float64) (Correlation, error) {
 		return Correlation{}, err
 	}
 	n := len(x)
-	idx := make([]int, n)
+	buf := make([]valueIndex, n)
 	rx, ry := make([]float64, n), make([]float64, n)
-	tx := ranksTo(rx, x, idx)
-	ty := ranksTo(ry, y, idx)
+	tx := ranksTo(rx, x, buf)
+	ty := ranksTo(ry, y, buf)
 	var m Moments
 	m.AddAll(rx, ry)
 	if m.M2X <= 0 || m.M2Y <= 0 {

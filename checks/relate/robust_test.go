@@ -101,7 +101,7 @@ func TestTheilSenDefinition(t *testing.T) {
 // and the coverage of the 95% interval over many seeds is near 95%.
 func TestTheilSenSampled(t *testing.T) {
 	rng := newRand(5)
-	x, y := linearSample(rng, 3000, 0, 1, 1, 2, 1)
+	x, y := linearSample(rng, 2100, 0, 1, 1, 2, 1)
 	exact, err := TheilSen(x, y, TheilSenOptions{MaxExactPairs: 1 << 23})
 	if err != nil || exact.Sampled {
 		t.Fatalf("exact fit: %+v, %v", exact, err)
@@ -111,7 +111,7 @@ func TestTheilSenSampled(t *testing.T) {
 		t.Fatal(err)
 	}
 	if !fit.Sampled || fit.Pairs != DefaultSampledPairs {
-		t.Fatalf("n = 3000 (4.5e6 pairs): sampled %v over %d pairs, want sampled over %d", fit.Sampled, fit.Pairs, DefaultSampledPairs)
+		t.Fatalf("n = 2100 (2.2e6 pairs): sampled %v over %d pairs, want sampled over %d", fit.Sampled, fit.Pairs, DefaultSampledPairs)
 	}
 	if !(fit.SlopeLow <= exact.Slope && exact.Slope <= fit.SlopeHigh) || !(fit.SlopeLow < fit.Slope && fit.Slope < fit.SlopeHigh) {
 		t.Errorf("sampled slope %v in [%v, %v]; exact %v", fit.Slope, fit.SlopeLow, fit.SlopeHigh, exact.Slope)
