@@ -22,6 +22,25 @@ func residualScale(x, y []float64, a, b float64, e []float64) float64 {
 	return medianInPlace(e) / madConstant
 }
 
+// RobustLine is a line fitted robustly, y = Intercept + Slope·x, with
+// Scale = median|residual| / 0.6745, a residual sd that the outliers the
+// fit resists do not inflate. On a second pass Standardized scores each
+// row.
+type RobustLine struct {
+	Intercept, Slope, Scale float64
+}
+
+// Standardized returns the row's residual in units of the robust scale,
+// (y - Intercept - Slope·x) / Scale. With Scale 0 (more than half the rows
+// on the line) a row off the line is ±Inf and a row on it 0.
+func (l RobustLine) Standardized(x, y float64) float64 {
+	e := y - l.Intercept - l.Slope*x
+	if e == 0 {
+		return 0
+	}
+	return e / l.Scale
+}
+
 // TheilSenOptions sets how TheilSen finds the median of the pairwise
 // slopes.
 type TheilSenOptions struct {
@@ -45,8 +64,8 @@ const (
 
 // TheilSenFit is a Theil-Sen line y = Intercept + Slope·x.
 type TheilSenFit struct {
-	Intercept, Slope float64
-	N                int64
+	RobustLine
+	N int64
 	// Pairs is the number of slopes the median was taken of: every pair
 	// with distinct x, or the pairs drawn.
 	Pairs int64
@@ -55,9 +74,6 @@ type TheilSenFit struct {
 	// SlopeLow and SlopeHigh bound the exact Theil-Sen slope with 95%
 	// confidence when Sampled (see TheilSen); both equal Slope otherwise.
 	SlopeLow, SlopeHigh float64
-	// Scale is median|residual| / 0.6745, a robust residual sd for
-	// standardising residuals.
-	Scale float64
 }
 
 // TheilSen fits the line whose slope is the median of the slopes
@@ -130,7 +146,7 @@ func theilSenExact(x, y []float64) (TheilSenFit, error) {
 		return TheilSenFit{}, errConstantX
 	}
 	b := medianInPlace(slopes)
-	return TheilSenFit{Slope: b, Pairs: int64(len(slopes)), SlopeLow: b, SlopeHigh: b}, nil
+	return TheilSenFit{RobustLine: RobustLine{Slope: b}, Pairs: int64(len(slopes)), SlopeLow: b, SlopeHigh: b}, nil
 }
 
 func theilSenSampled(x, y []float64, opt TheilSenOptions) (TheilSenFit, error) {
@@ -172,7 +188,7 @@ func theilSenSampled(x, y []float64, opt TheilSenOptions) (TheilSenFit, error) {
 	if u-1 > h {
 		hi = selectK(slopes[h+1:], u-1-(h+1))
 	}
-	return TheilSenFit{Slope: b, Pairs: int64(m), Sampled: true, SlopeLow: lo, SlopeHigh: hi}, nil
+	return TheilSenFit{RobustLine: RobustLine{Slope: b}, Pairs: int64(m), Sampled: true, SlopeLow: lo, SlopeHigh: hi}, nil
 }
 
 // HuberOptions sets Huber's M-estimator.
@@ -188,12 +204,12 @@ type HuberOptions struct {
 	MaxIter int
 }
 
-// HuberFit is a Huber M-estimate of a line y = Intercept + Slope·x.
+// HuberFit is a Huber M-estimate of a line y = Intercept + Slope·x. Its
+// Scale is the MAD scale of the last iteration, median|e| / 0.6745 of the
+// residuals the last weights were computed from.
 type HuberFit struct {
-	Intercept, Slope float64
-	// Scale is the MAD scale of the last iteration, median|e| / 0.6745.
-	Scale float64
-	N     int64
+	RobustLine
+	N int64
 	// Iterations is the number of reweighted fits made; Converged is
 	// false when MaxIter was reached first.
 	Iterations int
