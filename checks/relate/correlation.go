@@ -35,16 +35,13 @@ const (
 	StudentT
 	// Normal: the standard normal limit.
 	Normal
-	// ChiSquared: the chi-square limit.
-	ChiSquared
 )
 
 var pMethodNames = map[PMethod]string{
-	Exact:      "exact",
-	Edgeworth:  "edgeworth",
-	StudentT:   "student-t",
-	Normal:     "normal",
-	ChiSquared: "chi-squared",
+	Exact:     "exact",
+	Edgeworth: "edgeworth",
+	StudentT:  "student-t",
+	Normal:    "normal",
 }
 
 func (p PMethod) String() string { return enumName(pMethodNames, p, "p-method") }

@@ -23,9 +23,10 @@
 // or shard and Merge them. A rule that flags rows fits on the first pass
 // (Moments.Line; Dependency.Result) and judges each row on a second pass
 // (Line.Diagnose, Cutoffs.Flags; Dependency.Violates) without keeping the
-// rows. The robust fits and rank correlations need the values themselves
-// (or a sample of pairs); at 10⁶ pairs each runs in well under a second
-// (see the benchmarks).
+// rows. The robust fits and rank correlations need the values themselves;
+// a robust line then scores rows on a second pass the same way
+// (RobustLine.Standardized). At 10⁶ pairs each of them takes well under a
+// second of CPU (see the benchmarks).
 //
 // # p-values
 //

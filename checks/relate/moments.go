@@ -27,7 +27,7 @@ import (
 // sample variances", Stanford STAN-CS-79-773), whose co-moment form is
 // Pébay (2008, "Formulas for robust, one-pass parallel computation of
 // covariances and arbitrary-order statistical moments", Sandia report
-// SAND2008-6212, eq. 3.15): with n = na + nb, δx = x̄b - x̄a, δy = ȳb - ȳa,
+// SAND2008-6212): with n = na + nb, δx = x̄b - x̄a, δy = ȳb - ȳa,
 //
 //	x̄ = x̄a + δx nb/n;  M2x = M2x_a + M2x_b + δx² na nb / n
 //	Cxy = Cxy_a + Cxy_b + δx δy na nb / n

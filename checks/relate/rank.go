@@ -205,7 +205,7 @@ func spearmanEdgeworth(n int, s float64, upper bool) float64 {
 //     inversions of a random permutation (the statistic T = C);
 //   - otherwise the normal approximation z = (C - D)/sqrt(Var) with the
 //     tie-corrected variance (Kendall 1970, Rank Correlation Methods,
-//     4th ed., eq. 4.3), without continuity correction:
+//     4th ed., ch. 4), without continuity correction:
 //     Var = (v0 - vt - vu)/18 + v1/(2n(n-1)) + v2/(9n(n-1)(n-2)),
 //     v0 = n(n-1)(2n+5), vt = Σ t(t-1)(2t+5) over the tie groups t of x,
 //     vu the same for y, v1 = Σt(t-1)·Σu(u-1), v2 = Σt(t-1)(t-2)·Σu(u-1)(u-2).
