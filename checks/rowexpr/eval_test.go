@@ -47,11 +47,12 @@ func TestEval(t *testing.T) {
 		{`a + b == 3`, "TF?F?", Vectorized},
 		{`a - b < 0`, "TF?T?", Vectorized},
 		{`a * b > 20`, "FT?F?", Vectorized},
-		{`a / b > 1`, "FF?F?", Vectorized},    // -7/0 = -Inf
-		{`b / 0 > 1`, "TTTF?", Vectorized},    // 2/0 = +Inf; 0/0 = NaN
-		{`a % b == 0`, "FT???", Vectorized},   // 4th row: b is 0
-		{`-a < 0`, "TT?FT", Vectorized},       // unary minus
-		{`a ** 2 == 25`, "FT?FF", Vectorized}, // float power
+		{`a / b > 1`, "FF?F?", Vectorized},                   // -7/0 = -Inf
+		{`b / 0 > 1`, "TTTF?", Vectorized},                   // 2/0 = +Inf; 0/0 = NaN
+		{`a % b == 0`, "FT???", Vectorized},                  // 4th row: b is 0
+		{`-a < 0`, "TT?FT", Vectorized},                      // unary minus
+		{`a + 9223372036854775807 < 0`, "TT?FT", Vectorized}, // int64 wraps around, as in expr
+		{`a ** 2 == 25`, "FT?FF", Vectorized},                // float power
 		{`x * 2 > 0.5`, "TFFT?", Vectorized},
 		// three-valued logic
 		{`a > 2 || p`, "TT?TT", Vectorized},
