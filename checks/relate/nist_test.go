@@ -91,6 +91,7 @@ func lre(est, cert float64) float64 {
 //	Norris   11.9 (b0, whose 0.26 is the difference of ȳ ≈ 429 and b1 x̄;
 //	              every other quantity 13.7 or more)   asserted 11.5
 //	Longley  13.9 (b1 and b5; the rest 14.5 or more)  asserted 13.5
+//	NoInt1   14.4, NoInt2 14.6 (no intercept; R² uncentred)  asserted 13.5
 //
 // Centring and scaling the columns before the QR makes Longley, whose raw
 // design [1 x1 .. x6] has condition number 6.2e9, as easy as Norris; plain
@@ -101,10 +102,13 @@ func TestNISTLeastSquares(t *testing.T) {
 	for _, c := range []struct {
 		dataset, file string
 		predictors    []string
+		intercept     bool
 		minLRE        float64
 	}{
-		{"Norris", "nist_strd_norris.csv", []string{"x"}, 11.5},
-		{"Longley", "nist_strd_longley.csv", []string{"x1", "x2", "x3", "x4", "x5", "x6"}, 13.5},
+		{"Norris", "nist_strd_norris.csv", []string{"x"}, true, 11.5},
+		{"Longley", "nist_strd_longley.csv", []string{"x1", "x2", "x3", "x4", "x5", "x6"}, true, 13.5},
+		{"NoInt1", "nist_strd_noint1.csv", []string{"x"}, false, 13.5},
+		{"NoInt2", "nist_strd_noint2.csv", []string{"x"}, false, 13.5},
 	} {
 		t.Run(c.dataset, func(t *testing.T) {
 			cols := readColumns(t, c.file)
@@ -113,7 +117,7 @@ func TestNISTLeastSquares(t *testing.T) {
 			for _, p := range c.predictors {
 				xs = append(xs, cols[p])
 			}
-			reg, err := LeastSquares(cols["y"], xs, true)
+			reg, err := LeastSquares(cols["y"], xs, c.intercept)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -126,9 +130,13 @@ func TestNISTLeastSquares(t *testing.T) {
 				"df_residual":   float64(reg.DFResidual),
 				"df_regression": float64(reg.DFRegression),
 			}
+			first := 0 // NIST numbers the coefficients from B1 without B0
+			if !c.intercept {
+				first = 1
+			}
 			for j := range reg.Coef {
-				got[fmt.Sprintf("B%d_estimate", j)] = reg.Coef[j]
-				got[fmt.Sprintf("B%d_std_error", j)] = reg.SE[j]
+				got[fmt.Sprintf("B%d_estimate", first+j)] = reg.Coef[j]
+				got[fmt.Sprintf("B%d_std_error", first+j)] = reg.SE[j]
 			}
 			checked, worst := 0, 15.0
 			for q, want := range cert {
@@ -148,5 +156,32 @@ func TestNISTLeastSquares(t *testing.T) {
 			}
 			t.Logf("%s: minimum LRE %.1f over %d certified values", c.dataset, worst, checked)
 		})
+	}
+}
+
+func TestLeastSquaresErrors(t *testing.T) {
+	x := []float64{1, 2, 3, 4, 5}
+	y := []float64{2, 4, 5, 4, 5}
+	for _, c := range []struct {
+		name       string
+		y          []float64
+		predictors [][]float64
+		intercept  bool
+		want       string
+	}{
+		{"no predictor", y, nil, true, "at least one predictor"},
+		{"too few rows", y[:2], [][]float64{x[:2]}, true, "with 2 coefficients needs more than 2 rows, got 2"},
+		{"lengths", y, [][]float64{x[:4]}, true, "predictor 1 has 4 values and y has 5"},
+		{"y NaN", []float64{1, 2, math.NaN(), 4, 5}, [][]float64{x}, true, "y in row 3 is NaN"},
+		{"x infinite", y, [][]float64{x, {1, 2, 3, math.Inf(-1), 5}}, true, "predictor 2 in row 4 is -Inf"},
+		{"constant", y, [][]float64{x, {7, 7, 7, 7, 7}}, true, "predictor 2 is constant"},
+		{"collinear", y, [][]float64{x, {2, 4, 6, 8, 10}}, true, "collinear"},
+		{"nearly collinear", y, [][]float64{x, {1, 2, 3, 4, 5 + 1e-15}}, true, "collinear"},
+		{"zero column without intercept", y, [][]float64{{0, 0, 0, 0, 0}}, false, "predictor 1 is constant"},
+		{"fits", y, [][]float64{x}, true, ""},
+		{"fits without intercept", y, [][]float64{x}, false, ""},
+	} {
+		_, err := LeastSquares(c.y, c.predictors, c.intercept)
+		wantErr(t, c.name, err, c.want)
 	}
 }
