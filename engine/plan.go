@@ -1,6 +1,7 @@
 package engine
 
 import (
+	"cmp"
 	"errors"
 	"fmt"
 	"slices"
@@ -46,7 +47,7 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 	}
 
 	pl := &plan{rank: make(map[string]int, len(p.Rules))}
-	var problems []string
+	var problems []problem
 	needed := map[string]bool{}
 	var bound []*rules.Rule
 	for i, r := range p.Rules {
@@ -82,7 +83,7 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 				if s := rules.Suggest(c, data); s != "" {
 					msg += fmt.Sprintf(" (did you mean %q?)", s)
 				}
-				problems = append(problems, msg)
+				problems = append(problems, problem{r.Pos, msg})
 			}
 		}
 	}
@@ -92,7 +93,7 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 			if s := rules.Suggest(c.Name, data); s != "" {
 				msg += fmt.Sprintf(" (did you mean %q?)", s)
 			}
-			problems = append(problems, msg)
+			problems = append(problems, problem{c.Pos, msg})
 		}
 	}
 
@@ -113,16 +114,28 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 	for _, r := range bound {
 		c, err := checks.Compile(r, env)
 		if err != nil {
-			problems = append(problems, err.Error())
+			problems = append(problems, problem{r.Pos, err.Error()})
 			continue
 		}
 		pl.checks = append(pl.checks, c)
 	}
 	if len(problems) > 0 {
-		problems = slices.Compact(problems)
-		return nil, &MismatchError{Policy: p.File, Problems: problems}
+		slices.SortStableFunc(problems, func(a, b problem) int {
+			return cmp.Or(cmp.Compare(a.pos.Line, b.pos.Line), cmp.Compare(a.pos.Col, b.pos.Col))
+		})
+		msgs := make([]string, len(problems))
+		for i, pr := range problems {
+			msgs[i] = pr.msg
+		}
+		return nil, &MismatchError{Policy: p.File, Problems: slices.Compact(msgs)}
 	}
 	return pl, nil
+}
+
+// problem is one way the policy does not fit the data, placed in the policy.
+type problem struct {
+	pos rules.Pos
+	msg string
 }
 
 // MismatchError lists every way a policy does not fit the data it was given.
