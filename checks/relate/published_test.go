@@ -45,20 +45,10 @@ func TestAnscombe(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			ts, err := TheilSen(x, y, TheilSenOptions{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			hu, err := Huber(x, y, HuberOptions{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, f := range []struct {
-				name string
-				a, b float64
-			}{{"theil-sen", ts.Intercept, ts.Slope}, {"huber", hu.Intercept, hu.Slope}} {
-				if math.Abs(f.a-rest.Coef[0]) > 0.02 || math.Abs(f.b-rest.Coef[1]) > 0.002 {
-					t.Errorf("set 3: %s line %.6g + %.6g x, want near %.6g + %.6g x", f.name, f.a, f.b, rest.Coef[0], rest.Coef[1])
+			ts, hu := robustFits(t, x, y)
+			for name, f := range map[string]RobustLine{"theil-sen": ts.RobustLine, "huber": hu.RobustLine} {
+				if math.Abs(f.Intercept-rest.Coef[0]) > 0.02 || math.Abs(f.Slope-rest.Coef[1]) > 0.002 {
+					t.Errorf("set 3: %s line %.6g + %.6g x, want near %.6g + %.6g x", name, f.Intercept, f.Slope, rest.Coef[0], rest.Coef[1])
 				}
 			}
 		case 4:

@@ -158,6 +158,20 @@ func TestTheilSenSampledTooFewPairs(t *testing.T) {
 	wantErr(t, "sampled", err, "fewer than 1 in 64 pairs have distinct x")
 }
 
+// robustFits fits both robust lines with default options.
+func robustFits(t *testing.T, x, y []float64) (TheilSenFit, HuberFit) {
+	t.Helper()
+	ts, err := TheilSen(x, y, TheilSenOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	hu, err := Huber(x, y, HuberOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ts, hu
+}
+
 // contaminated draws y = 1 + 2x + N(0, 1) for x ~ U(0, 10) and adds 50 to
 // y of a share of the rows with the largest x: vertical outliers that tilt
 // the least-squares line.
@@ -208,20 +222,10 @@ func TestRobustResistOutliers(t *testing.T) {
 		if math.Abs(ols.Slope-2) < 1 {
 			t.Errorf("seed %d: least-squares slope %v, want it tilted by more than 1", seed, ols.Slope)
 		}
-		ts, err := TheilSen(x, y, TheilSenOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		hu, err := Huber(x, y, HuberOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		for _, f := range []struct {
-			name string
-			a, b float64
-		}{{"theil-sen", ts.Intercept, ts.Slope}, {"huber", hu.Intercept, hu.Slope}} {
-			if math.Abs(f.b-2) > 0.35 || math.Abs(f.a-1) > 1.5 {
-				t.Errorf("seed %d: %s line %v + %v x, want near 1 + 2x", seed, f.name, f.a, f.b)
+		ts, hu := robustFits(t, x, y)
+		for name, f := range map[string]RobustLine{"theil-sen": ts.RobustLine, "huber": hu.RobustLine} {
+			if math.Abs(f.Slope-2) > 0.35 || math.Abs(f.Intercept-1) > 1.5 {
+				t.Errorf("seed %d: %s line %v + %v x, want near 1 + 2x", seed, name, f.Intercept, f.Slope)
 			}
 		}
 		if !hu.Converged {
