@@ -2,7 +2,6 @@ package engine
 
 import (
 	"cmp"
-	"errors"
 	"fmt"
 	"slices"
 	"sort"
@@ -156,12 +155,6 @@ func (e *MismatchError) Error() string {
 		b.WriteString(p)
 	}
 	return b.String()
-}
-
-// IsMismatch reports whether err says the policy does not fit the data.
-func IsMismatch(err error) bool {
-	var m *MismatchError
-	return errors.As(err, &m)
 }
 
 // order sorts results into the policy's rule order.
