@@ -148,7 +148,7 @@ func TestDependency(t *testing.T) {
 				b.Add(r[0], r[1])
 			}
 		}
-		b.Merge(&a)
+		b.Merge(a)
 		if got := b.Result(); !reflect.DeepEqual(got, want) {
 			t.Errorf("split at %d: got %+v", split, got)
 		}

@@ -52,7 +52,7 @@ func (d *Dependency) AddCount(a, b string, n int64) {
 }
 
 // Merge adds the rows summarised by o to d.
-func (d *Dependency) Merge(o *Dependency) {
+func (d *Dependency) Merge(o Dependency) {
 	for a, g := range o.groups {
 		d.AddCount(a, g.first, g.n)
 		for b, n := range g.others {
