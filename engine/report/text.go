@@ -147,7 +147,7 @@ func (p *printer) rows(res Result) {
 		for _, c := range cols {
 			cells = append(cells, formatValue(row.Values[c]))
 		}
-		cells = append(cells, strconv.FormatFloat(float64(row.Score), 'g', 4, 64))
+		cells = append(cells, strconv.FormatFloat(float64(row.Score), 'g', 6, 64))
 		fmt.Fprintf(tw, "  %s\t\n", strings.Join(cells, "\t"))
 	}
 	tw.Flush()
