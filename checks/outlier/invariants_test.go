@@ -498,6 +498,31 @@ func TestFastMCDRepeatsAndAlphaOne(t *testing.T) {
 	}
 }
 
+// TestKthWithGuess: the banded selection returns the exact k-th value
+// whether the previous one is a good guess, a bad one or absent, and leaves
+// the distances in place.
+func TestKthWithGuess(t *testing.T) {
+	rng := newRand(12)
+	r := &mcdRun{tmp: make([]float64, 500)}
+	for trial := range 400 {
+		n := 1 + rng.IntN(500)
+		d := make([]float64, n)
+		for i := range d {
+			d[i] = rng.ExpFloat64() * float64(1+trial%3)
+		}
+		orig := slices.Clone(d)
+		s := slices.Clone(d)
+		slices.Sort(s)
+		k := rng.IntN(n)
+		if trial%4 != 0 { // a guess near, far or at the answer
+			r.guess, r.guessM = s[k]*(0.9+0.2*rng.Float64())*float64(1+trial%7/6*9), n
+		}
+		if got := r.kth(d, k); got != s[k] || !slices.Equal(d, orig) {
+			t.Fatalf("n = %d, k = %d, guess %v: kth = %v, want %v", n, k, r.guess, got, s[k])
+		}
+	}
+}
+
 func TestSelectKth(t *testing.T) {
 	rng := newRand(11)
 	for trial := range 300 {

@@ -147,9 +147,14 @@ type MCD struct {
 // (drawn from a random sample of k·GroupSize rows when n is larger); the
 // starts are shared among the groups and run within them, with h scaled to
 // the group; the Keep best of each group are then improved by two C-steps
-// within the merged groups. Finally the Keep best solutions are iterated in
-// the full data until the determinant stops decreasing (at most MaxSteps
-// C-steps), and the best one is the raw estimate.
+// within the merged groups. Finally, in the full data: without groups the
+// Keep best solutions are each iterated until the determinant stops
+// decreasing; with groups the Keep best of the merged stage take two
+// C-steps and only the best of them is iterated on (an economy of ours:
+// at that size they share one basin, and a full-data step costs O(n p²)).
+// Iteration stops when ln det decreases by less than 1e-10, or after
+// MaxSteps C-steps; the best solution gives the h-subset of the raw
+// estimate.
 //
 // Consistency and reweighting follow robustbase's covMcd without its
 // small-sample correction (use.correction = FALSE): the raw covariance is
@@ -217,7 +222,7 @@ func FastMCD(cols [][]float64, opt MCDOptions, rng *rand.Rand) (MCD, error) {
 func (r *mcdRun) finish(best []int, q float64) (MCD, error) {
 	n, p, h := r.n, r.p, len(best)
 	res := MCD{N: n, H: h, Best: best, RawFactor: ConsistencyFactor(p, float64(h)/float64(n))}
-	raw, ok := r.fit(best, h)
+	raw, ok := r.fit(best)
 	if !ok {
 		return MCD{}, fmt.Errorf("the covariance of the %d rows is singular (a constant column or linearly dependent columns)", h)
 	}
@@ -237,7 +242,7 @@ func (r *mcdRun) finish(best []int, q float64) (MCD, error) {
 	}
 	res.Kept = len(kept)
 	res.Factor = ConsistencyFactor(p, float64(res.Kept)/float64(n))
-	rew, ok := r.fit(kept, len(kept))
+	rew, ok := r.fit(kept)
 	if !ok {
 		return MCD{}, fmt.Errorf("the %d rows kept by reweighting have a singular covariance", len(kept))
 	}
@@ -384,6 +389,9 @@ type mcdRun struct {
 	d2   []float64 // distances of the rows of the current set
 	tmp  []float64 // copy of d2 for selection
 	sel  []int     // rows selected by the last C-step
+	// guess is the last k-th distance found among guessM values (kth).
+	guess  float64
+	guessM int
 	// singular holds the first C-step subset found with a singular
 	// covariance, nil if none.
 	singular []int
@@ -395,34 +403,29 @@ func newMCDRun(cols [][]float64, n int, rng *rand.Rand) *mcdRun {
 		d2: make([]float64, n), tmp: make([]float64, n)}
 }
 
-// fit returns the mean and covariance (divisor m − 1) of the m rows listed
-// in rows (the first m rows when rows is nil), by two passes. It reports
-// false when the covariance is not positive definite.
-func (r *mcdRun) fit(rows []int, m int) (estimate, bool) {
-	p := r.p
+// fit returns the mean and covariance (divisor len(rows) − 1) of the rows
+// listed, by two passes. It reports false when the covariance is not
+// positive definite.
+func (r *mcdRun) fit(rows []int) (estimate, bool) {
+	p, m := r.p, len(rows)
 	e := estimate{mean: make([]float64, p), cov: make([]float64, p*p), linv: make([]float64, p*p)}
-	row := func(k int) int {
-		if rows == nil {
-			return k
-		}
-		return rows[k]
-	}
 	for j, c := range r.cols {
 		var s float64
-		for k := range m {
-			s += c[row(k)]
+		for _, i := range rows {
+			s += c[i]
 		}
 		e.mean[j] = s / float64(m)
 	}
 	u := rowBuf(p)
-	for k := range m {
-		i := row(k)
-		for j := range p {
-			u[j] = r.cols[j][i] - e.mean[j]
+	for _, i := range rows {
+		for j, c := range r.cols {
+			u[j] = c[i] - e.mean[j]
 		}
 		for j := range p {
+			uj := u[j]
+			c := e.cov[j*p : j*p+p]
 			for l := j; l < p; l++ {
-				e.cov[j*p+l] += u[j] * u[l]
+				c[l] += uj * u[l]
 			}
 		}
 	}
@@ -448,17 +451,18 @@ func (r *mcdRun) fit(rows []int, m int) (estimate, bool) {
 func (r *mcdRun) smallest(e estimate, rows []int, m, h int) []int {
 	d2 := r.d2[:m]
 	sqDistances(r.cols, e.mean, e.linv, rows, d2)
-	tmp := r.tmp[:m]
-	copy(tmp, d2)
-	t := selectKth(tmp, h-1)
+	t := r.kth(d2, h-1)
 	sel := r.sel[:0]
+	ties := 0
 	for k, d := range d2 {
 		if d < t {
 			sel = append(sel, k)
+		} else if d == t {
+			ties++
 		}
 	}
 	for k, d := range d2 {
-		if len(sel) == h {
+		if len(sel) == h || ties == 0 {
 			break
 		}
 		if d == t {
@@ -474,12 +478,41 @@ func (r *mcdRun) smallest(e estimate, rows []int, m, h int) []int {
 	return sel
 }
 
+// kth returns the k-th smallest of d2 (0-based) without reordering it. The
+// k-th distance moves little from one C-step to the next, so it first
+// counts the values below a band of ±5% around the previous one on a set
+// of the same size and selects within the band; only when the k-th value
+// has left the band does it select among all values.
+func (r *mcdRun) kth(d2 []float64, k int) float64 {
+	m := len(d2)
+	if r.guessM == m && r.guess > 0 {
+		lo, hi := 0.95*r.guess, 1.05*r.guess
+		below := 0
+		band := r.tmp[:0]
+		for _, d := range d2 {
+			if d < lo {
+				below++
+			} else if d <= hi {
+				band = append(band, d)
+			}
+		}
+		if below <= k && k < below+len(band) {
+			r.guess = selectKth(band, k-below)
+			return r.guess
+		}
+	}
+	tmp := r.tmp[:m]
+	copy(tmp, d2)
+	r.guess, r.guessM = selectKth(tmp, k), m
+	return r.guess
+}
+
 // cstep is one C-step in the set: the h rows closest to e, and their fit.
 // When their covariance is singular it keeps the first such subset for
 // the exact-fit check and reports false.
 func (r *mcdRun) cstep(e estimate, rows []int, m, h int) (estimate, bool) {
 	sel := r.smallest(e, rows, m, h)
-	next, ok := r.fit(sel, h)
+	next, ok := r.fit(sel)
 	if !ok && r.singular == nil {
 		r.singular = slices.Clone(sel)
 	}
@@ -514,23 +547,31 @@ func (r *mcdRun) search(h int, opt MCDOptions) (estimate, bool) {
 		}
 		cands = best.list
 	}
+	if groups != nil {
+		// Large data: the solutions from the merged groups take two C-steps
+		// in the full data and only the best goes on. At this size they
+		// share one basin (at n = 1e6 ten of them iterated to the end agree
+		// to 1e-9 in ln det), and each full step costs O(n p²).
+		var screened keepBest
+		for _, c := range cands {
+			if e, ok := r.iterate(c, nil, n, h, 2); ok {
+				screened.add(e, 1)
+			}
+		}
+		cands = screened.list
+	}
 	var final keepBest
 	var converged []estimate
-	for _, c := range cands {
-		// The first step moves the candidate from its subsample to the full
-		// data; determinants are comparable only from there on.
-		e, ok := r.cstep(c, nil, n, h)
-		if !ok {
-			continue
-		}
-		for range opt.MaxSteps - 1 {
+	for _, e := range cands {
+		for range opt.MaxSteps {
 			next, ok := r.cstep(e, nil, n, h)
 			if !ok || next.logDet >= e.logDet {
 				break
 			}
+			small := e.logDet-next.logDet < convergedLogDet
 			e = next
-			if slices.ContainsFunc(converged, e.same) {
-				break // on the path of a solution already iterated
+			if small || slices.ContainsFunc(converged, e.same) {
+				break // converged, or on the path of a solution already iterated
 			}
 		}
 		converged = append(converged, e)
@@ -541,6 +582,13 @@ func (r *mcdRun) search(h int, opt MCDOptions) (estimate, bool) {
 	}
 	return final.list[0], true
 }
+
+// convergedLogDet ends the C-steps in the full data when ln det decreases
+// by less: the determinant then changes by under 1e-10 relative. In large
+// data the decrease shrinks geometrically (by about half a step at
+// n = 1e6), so what is left is of the same order; in small data C-steps
+// reach their fixed point, where the decrease is exactly 0, much sooner.
+const convergedLogDet = 1e-10
 
 // starts runs count random starts in the set (rows, or all n rows when rows
 // is nil) of m rows with subset size h, three C-steps each, and returns the
@@ -562,7 +610,7 @@ func (r *mcdRun) starts(rows []int, m, h, count, keep int) []estimate {
 			in[k] = true
 			j = append(j, k)
 			if len(j) > r.p {
-				e, ok = r.fit(r.mapRows(rows, j), len(j))
+				e, ok = r.fit(r.mapRows(rows, j))
 			}
 		}
 		if !ok {
