@@ -27,37 +27,31 @@ func benchColumns() [][]float64 {
 	return cols
 }
 
-// BenchmarkTukey1e6 sorts a copy, fits the fences and scans every value.
-func BenchmarkTukey1e6(b *testing.B) {
+// BenchmarkUnivariate1e6 sorts a copy, fits the rule (Tukey fences;
+// median and MAD) and scans every value.
+func BenchmarkUnivariate1e6(b *testing.B) {
 	x := benchValues()
-	b.ReportAllocs()
-	for b.Loop() {
-		s := slices.Clone(x)
-		slices.Sort(s)
-		f, err := TukeyFences(s, DefaultTukeyK)
-		if err != nil {
-			b.Fatal(err)
-		}
-		if len(Scan(x, f)) < benchN/1000 {
-			b.Fatal("planted values missed")
-		}
-	}
-}
-
-// BenchmarkRobustZ1e6 sorts a copy, fits median and MAD and scans.
-func BenchmarkRobustZ1e6(b *testing.B) {
-	x := benchValues()
-	b.ReportAllocs()
-	for b.Loop() {
-		s := slices.Clone(x)
-		slices.Sort(s)
-		r, err := NewRobustZ(s, DefaultRobustZCutoff)
-		if err != nil {
-			b.Fatal(err)
-		}
-		if len(Scan(x, r)) < benchN/1000 {
-			b.Fatal("planted values missed")
-		}
+	for _, c := range []struct {
+		name string
+		fit  func(sorted []float64) (Rule, error)
+	}{
+		{"tukey", func(s []float64) (Rule, error) { return TukeyFences(s, DefaultTukeyK) }},
+		{"robust-z", func(s []float64) (Rule, error) { return NewRobustZ(s, DefaultRobustZCutoff) }},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				s := slices.Clone(x)
+				slices.Sort(s)
+				r, err := c.fit(s)
+				if err != nil {
+					b.Fatal(err)
+				}
+				if len(Scan(x, r)) < benchN/1000 {
+					b.Fatal("planted values missed")
+				}
+			}
+		})
 	}
 }
 

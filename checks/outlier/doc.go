@@ -6,18 +6,18 @@
 //
 // # Methods
 //
-//	method                   function             reference
-//	quantile                 Quantile7            Hyndman & Fan (1996), definition 7 (R's default)
-//	Tukey fences             TukeyFences          Tukey (1977); quartiles by definition 7
-//	z-score                  NewZScore            mean and sample sd; cutoff 3 is common practice
-//	modified z-score         NewRobustZ           Iglewicz & Hoaglin (1993), 0.6745 (x − median)/MAD, cutoff 3.5
-//	tail probability         NewTail              fitted family, Bonferroni level alpha/n split over both tails
-//	generalized ESD          GeneralizedESD       Rosner (1983)
-//	Grubbs' test             Grubbs               Grubbs (1950, 1969); critical value and p-value from Student's t
-//	moments, co-moments      CoMoments            Chan, Golub & LeVeque (1979); Pébay (2008) pairwise merge
-//	Mahalanobis, classical   Classical            mean and sample covariance
-//	Mahalanobis, robust      FastMCD              Rousseeuw & Van Driessen (1999); Croux & Haesbroeck (1999) factor
-//	contributions            Scatter.Contributions  c_j = (x − μ)_j [Σ⁻¹(x − μ)]_j, summing to d²
+//	method                   function                reference
+//	quantile                 Quantile7               Hyndman & Fan (1996), definition 7 (R's default)
+//	Tukey fences             TukeyFences             Tukey (1977); quartiles by definition 7
+//	z-score                  NewZScore               mean and sample sd; cutoff 3 is common practice
+//	modified z-score         NewRobustZ              Iglewicz & Hoaglin (1993), 0.6745 (x − median)/MAD, cutoff 3.5
+//	tail probability         NewTail                 fitted family, Bonferroni level alpha/n split over both tails
+//	generalized ESD          GeneralizedESD          Rosner (1983)
+//	Grubbs' test             Grubbs                  Grubbs (1950, 1969); critical value and p-value from Student's t
+//	moments, co-moments      CoMoments               Chan, Golub & LeVeque (1979); Pébay (2008) pairwise merge
+//	Mahalanobis, classical   Classical               mean and sample covariance
+//	Mahalanobis, robust      FastMCD                 Rousseeuw & Van Driessen (1999); Croux & Haesbroeck (1999) factor
+//	contributions            Scatter.Contributions   c_j = (x − μ)_j [Σ⁻¹(x − μ)]_j, summing to d²
 //
 // # Two passes
 //
@@ -39,7 +39,8 @@
 //
 //   - Chan, T. F., Golub, G. H. & LeVeque, R. J. (1979). Updating formulae and
 //     a pairwise algorithm for computing sample variances. Stanford CS report
-//     STAN-CS-79-773.
+//     STAN-CS-79-773; (1983) Algorithms for computing the sample variance:
+//     analysis and recommendations. The American Statistician 37(3):242-247.
 //   - Croux, C. & Haesbroeck, G. (1999). Influence function and efficiency of
 //     the minimum covariance determinant scatter matrix estimator. Journal of
 //     Multivariate Analysis 71:161-190.
@@ -60,5 +61,12 @@
 //     procedure. Technometrics 25(2):165-172.
 //   - Rousseeuw, P. J. & Van Driessen, K. (1999). A fast algorithm for the
 //     minimum covariance determinant estimator. Technometrics 41(3):212-223.
+//   - Rousseeuw, P. J. & Van Zomeren, B. C. (1990). Unmasking multivariate
+//     outliers and leverage points. JASA 85(411):633-639.
 //   - Tukey, J. W. (1977). Exploratory Data Analysis. Addison-Wesley.
+//   - Wichura, M. J. (1988). Algorithm AS 241: the percentage points of the
+//     normal distribution. Applied Statistics 37(3):477-484.
+//
+// Volume and page numbers not recorded in shared/reference/VALUES.md are
+// as remembered, not re-read.
 package outlier

@@ -94,7 +94,9 @@ func (f Fences) Score(x float64) float64 {
 }
 
 // ZScore is the classical rule |z| > Cutoff, z = (x − Mean)/SD, SD the
-// sample standard deviation (divisor n − 1).
+// sample standard deviation (divisor n − 1). Mean and SD may come from
+// anywhere, e.g. CoMoments over the one column streamed in batches:
+// Mean[0] and sqrt(C[0]/(N − 1)).
 type ZScore struct {
 	Mean, SD, Cutoff float64
 }
