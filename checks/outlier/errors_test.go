@@ -56,6 +56,10 @@ func TestBadInput(t *testing.T) {
 		{"mcd alpha", func() error { _, err := FastMCD(good, MCDOptions{Alpha: 0.3}, newRand(1)); return err }, "alpha is 0.3"},
 		{"mcd starts", func() error { _, err := FastMCD(good, MCDOptions{Starts: -1}, newRand(1)); return err }, "starts is -1"},
 		{"mcd reweight", func() error { _, err := FastMCD(good, MCDOptions{Reweight: 1}, newRand(1)); return err }, "reweighting quantile is 1"},
+		{"mcd constant column", func() error {
+			_, err := FastMCD([][]float64{{1, 2, 3, 4, 5, 6}, {7, 7, 7, 7, 7, 7}}, MCDOptions{}, newRand(1))
+			return err
+		}, "covariance of all rows is singular"},
 		{"mcd rand", func() error { _, err := FastMCD(good, MCDOptions{}, nil); return err }, "no random source"},
 		{"mcd NaN", func() error {
 			_, err := FastMCD([][]float64{{1, 2, 3, 4}, {1, nan, 3, 4}}, MCDOptions{}, newRand(1))

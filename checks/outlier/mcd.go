@@ -193,13 +193,15 @@ func FastMCD(cols [][]float64, opt MCDOptions, rng *rand.Rand) (MCD, error) {
 	}
 	h := SubsetSize(n, p, opt.Alpha)
 	r := newMCDRun(cols, n, rng)
-	var best []int
-	if h == n {
-		best = make([]int, n)
-		for i := range best {
-			best[i] = i
-		}
-	} else {
+	all := make([]int, n)
+	for i := range all {
+		all[i] = i
+	}
+	if _, ok := r.fit(all); !ok {
+		return MCD{}, fmt.Errorf("fast mcd: the covariance of all rows is singular (a constant column, or columns that are linear combinations of others)")
+	}
+	best := all
+	if h < n {
 		est, ok := r.search(h, opt)
 		if err := r.exactFit(h); err != nil {
 			return MCD{}, fmt.Errorf("fast mcd: %w", err)
@@ -389,6 +391,7 @@ type mcdRun struct {
 	d2   []float64 // distances of the rows of the current set
 	tmp  []float64 // copy of d2 for selection
 	sel  []int     // rows selected by the last C-step
+	eq   []int     // rows at the h-th distance in the last C-step
 	// guess is the last k-th distance found among guessM values (kth).
 	guess  float64
 	guessM int
@@ -445,36 +448,29 @@ func (r *mcdRun) fit(rows []int) (estimate, bool) {
 }
 
 // smallest returns the h rows of the set (rows, or the first m rows when
-// rows is nil) with the smallest squared distances to e, in set order with
-// ties at the h-th distance taken in set order. The slice is reused by the
-// next call.
+// rows is nil) with the smallest squared distances to e: those closer than
+// the h-th distance in set order, then as many rows at exactly that
+// distance as are needed, in set order. The slice is reused by the next
+// call.
 func (r *mcdRun) smallest(e estimate, rows []int, m, h int) []int {
 	d2 := r.d2[:m]
 	sqDistances(r.cols, e.mean, e.linv, rows, d2)
 	t := r.kth(d2, h-1)
-	sel := r.sel[:0]
-	ties := 0
+	sel, eq := r.sel[:0], r.eq[:0]
 	for k, d := range d2 {
 		if d < t {
 			sel = append(sel, k)
 		} else if d == t {
-			ties++
+			eq = append(eq, k)
 		}
 	}
-	for k, d := range d2 {
-		if len(sel) == h || ties == 0 {
-			break
-		}
-		if d == t {
-			sel = append(sel, k)
-		}
-	}
+	sel = append(sel, eq[:h-len(sel)]...)
 	if rows != nil {
 		for i, k := range sel {
 			sel[i] = rows[k]
 		}
 	}
-	r.sel = sel
+	r.sel, r.eq = sel, eq
 	return sel
 }
 
@@ -545,15 +541,12 @@ func (r *mcdRun) search(h int, opt MCDOptions) (estimate, bool) {
 				best.add(e, opt.Keep)
 			}
 		}
-		cands = best.list
-	}
-	if groups != nil {
 		// Large data: the solutions from the merged groups take two C-steps
 		// in the full data and only the best goes on. At this size they
 		// share one basin (at n = 1e6 ten of them iterated to the end agree
 		// to 1e-9 in ln det), and each full step costs O(n p²).
 		var screened keepBest
-		for _, c := range cands {
+		for _, c := range best.list {
 			if e, ok := r.iterate(c, nil, n, h, 2); ok {
 				screened.add(e, 1)
 			}
