@@ -117,12 +117,14 @@ func RowAt(env *Env, b *source.Batch, i int, cols []int) report.Row {
 	r := report.Row{
 		Row:    b.FirstRow + int64(i),
 		Line:   b.Line(i),
-		Values: make(map[string]any, len(cols)),
+		Values: make(map[string]any, len(cols)+len(env.Context)),
 	}
 	r.Source = sourceName(env, b.Source)
 	for _, c := range cols {
-		name := b.Record.ColumnName(c)
-		r.Values[name] = cellValue(b, c, i)
+		r.Values[b.Record.ColumnName(c)] = cellValue(b, c, i)
+	}
+	for _, c := range env.Context {
+		r.Values[b.Record.ColumnName(c)] = cellValue(b, c, i)
 	}
 	return r
 }

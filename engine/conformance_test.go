@@ -24,6 +24,12 @@ import (
 // for one result: its verdict (pass, warn, fail, error or skipped), the
 // exact offending count, and the listed offending rows in order. Rules the
 // file does not name are not checked, but every named rule must exist.
+// Distribution rules also take
+//
+//	fit RULE-ID FAMILY     the family judged (the best candidate)
+//	region RULE-ID VALUE   the first region where the data exceed the fit
+//	                       holds VALUE (a number in its range, or its label)
+//
 // Adding a case is adding a folder.
 func TestConformance(t *testing.T) {
 	dirs, err := filepath.Glob("../testdata/conformance/*")
@@ -34,6 +40,9 @@ func TestConformance(t *testing.T) {
 		t.Fatal("no conformance cases found")
 	}
 	for _, dir := range dirs {
+		if fi, err := os.Stat(dir); err != nil || !fi.IsDir() {
+			continue // a generator of a case's data
+		}
 		t.Run(filepath.Base(dir), func(t *testing.T) {
 			pol, err := rules.Load(filepath.Join(dir, "policy.yaml"))
 			if err != nil {
@@ -55,6 +64,15 @@ func TestConformance(t *testing.T) {
 				if f[0] == "verdict" {
 					if got := rep.Verdict.String(); got != f[1] {
 						t.Errorf("want.txt:%d: run verdict %s, want %s", n+1, got, f[1])
+					}
+					continue
+				}
+				if f[0] == "fit" || f[0] == "region" {
+					if len(f) != 3 {
+						t.Fatalf("want.txt:%d: want %s RULE-ID VALUE", n+1, f[0])
+					}
+					if msg := checkFit(find(rep, f[1]), f[0], f[2]); msg != "" {
+						t.Errorf("want.txt:%d: %s", n+1, msg)
 					}
 					continue
 				}
@@ -114,4 +132,44 @@ func offending(r *report.Result) (int64, string) {
 		rows[i] = fmt.Sprint(row.Row)
 	}
 	return r.Offending.Count, strings.Join(rows, ",")
+}
+
+// checkFit checks the family judged by a distribution result, or that its
+// first region holds a value; it returns what is wrong, or "".
+func checkFit(res *report.Result, what, want string) string {
+	switch {
+	case res == nil:
+		return "no such result"
+	case res.Fit == nil:
+		return fmt.Sprintf("%s has no fit (%s%s)", res.ID, res.Message, res.Error)
+	case what == "fit":
+		if res.Fit.Family != want {
+			return fmt.Sprintf("%s judged %s, want %s", res.ID, res.Fit.Family, want)
+		}
+		return ""
+	case len(res.Fit.Regions) == 0:
+		return fmt.Sprintf("%s has no region", res.ID)
+	}
+	g := res.Fit.Regions[0]
+	if g.Label != "" {
+		if g.Label != want {
+			return fmt.Sprintf("%s: first region %q, want %q", res.ID, g.Label, want)
+		}
+		return ""
+	}
+	v, err := strconv.ParseFloat(want, 64)
+	if err != nil {
+		return fmt.Sprintf("region value %q is not a number", want)
+	}
+	if (g.Lo != nil && !(v >= float64(*g.Lo))) || (g.Hi != nil && !(v <= float64(*g.Hi))) {
+		return fmt.Sprintf("%s: first region %v to %v does not hold %v", res.ID, bound(g.Lo), bound(g.Hi), v)
+	}
+	return ""
+}
+
+func bound(n *report.Number) string {
+	if n == nil {
+		return "open"
+	}
+	return fmt.Sprint(float64(*n))
 }

@@ -96,9 +96,21 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 		}
 	}
 
-	var fields []arrow.Field
+	context := keyColumns(p, present)
+	if len(needed) > 0 {
+		for _, c := range context {
+			needed[c] = true
+		}
+	}
+	var (
+		fields []arrow.Field
+		ctx    []int
+	)
 	for i, name := range data {
 		if needed[name] {
+			if slices.Contains(context, name) {
+				ctx = append(ctx, len(fields))
+			}
 			pl.columns = append(pl.columns, name)
 			fields = append(fields, schema.Field(i))
 		}
@@ -108,6 +120,7 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 		DataColumns:   data,
 		Sources:       sourceNames(set),
 		MaxRowsListed: maxRowsListed(opts.MaxRowsListed),
+		Context:       ctx,
 		Policy:        p,
 	}
 	for _, r := range bound {
@@ -160,6 +173,23 @@ func (e *MismatchError) Error() string {
 // order sorts results into the policy's rule order.
 func (pl *plan) order(results []report.Result) {
 	sort.SliceStable(results, func(i, j int) bool { return pl.rank[results[i].ID] < pl.rank[results[j].ID] })
+}
+
+// keyColumns returns the table key's columns that the data has: listed
+// offending rows show them so a person can find each row in their own terms.
+func keyColumns(p *rules.Policy, present map[string]bool) []string {
+	var out []string
+	for _, r := range p.Rules {
+		if r.Kind != rules.KindKey {
+			continue
+		}
+		for _, c := range r.Columns {
+			if present[c] {
+				out = append(out, c)
+			}
+		}
+	}
+	return out
 }
 
 func allRequired(cols []string, required map[string]bool) bool {
