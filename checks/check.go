@@ -28,6 +28,10 @@ type Env struct {
 	Sources []string
 	// MaxRowsListed caps the offending rows a result lists; counts stay exact.
 	MaxRowsListed int
+	// Context holds indices into Schema of columns shown beside every listed
+	// offending row (the table key's columns), so a person can find the row
+	// in their own terms.
+	Context []int
 	// Policy is the policy the rules come from.
 	Policy *rules.Policy
 }
@@ -54,7 +58,11 @@ type Accumulator interface {
 // time, to flag rows against what they learnt from all of it (duplicates
 // found by hash in the first pass, fences fitted on the whole column). After
 // the first pass the engine calls SecondPass and feeds every batch again to
-// the accumulator it returns; that one's Finish gives the result.
+// the accumulator it returns; that one's Finish gives the result. SecondPass
+// returns nil when what the first pass learnt shows that no row needs
+// listing (a distribution that fits); the receiver's own Finish then gives
+// the result, and the data is read a second time only if another check
+// asks for it.
 type Rescanner interface {
 	Accumulator
 	SecondPass() Accumulator
