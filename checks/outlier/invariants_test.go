@@ -555,3 +555,90 @@ func TestSelectKth(t *testing.T) {
 		}
 	}
 }
+
+// FuzzFastMCD: for any small data set (ties, huge and tiny values, few
+// rows) FastMCD either returns an error or an estimate whose h-subset is
+// valid and whose distances are finite; it never panics.
+func FuzzFastMCD(f *testing.F) {
+	f.Add([]byte{1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 20}, uint8(2))
+	f.Add([]byte{0, 0, 0, 0, 0, 0, 0, 0, 1, 2, 3, 250, 251, 252, 7, 7, 7, 7}, uint8(3))
+	f.Add([]byte{255, 254, 128, 0, 1, 64, 32, 16, 8, 4, 2, 1, 200, 100, 50, 25}, uint8(2))
+	values := []float64{0, 1, -1, 2.5, 1e-300, -1e-300, 1e300, -1e300, 3, 7, 0.1, 1e6, -1e6, 42, 5e-324, 12}
+	f.Fuzz(func(t *testing.T, data []byte, pp uint8) {
+		p := 2 + int(pp)%2
+		n := len(data) / p
+		if n == 0 || n > 60 {
+			return
+		}
+		cols := make([][]float64, p)
+		for j := range cols {
+			cols[j] = make([]float64, n)
+			for i := range n {
+				b := data[i*p+j]
+				cols[j][i] = values[b%16] + float64(b/16)
+			}
+		}
+		m, err := FastMCD(cols, MCDOptions{Starts: 20}, newRand(uint64(len(data))))
+		if err != nil {
+			return
+		}
+		if len(m.Best) != m.H || !slices.IsSorted(m.Best) || m.Best[0] < 0 || m.Best[m.H-1] >= n {
+			t.Fatalf("best subset %v for h = %d, n = %d", m.Best, m.H, n)
+		}
+		d, err := m.Final.Distances(cols, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i, v := range d {
+			if math.IsNaN(v) || v < 0 {
+				t.Fatalf("row %d: d² = %v", i, v)
+			}
+		}
+	})
+}
+
+// FuzzUnivariate: the univariate rules and tests never panic, and what
+// they flag has a non-negative score (NaN where overflow leaves no scale).
+func FuzzUnivariate(f *testing.F) {
+	f.Add([]byte{1, 2, 3, 4, 5, 6, 7, 200})
+	f.Add([]byte{9, 9, 9, 9, 9})
+	values := []float64{0, 1, -1, 2.5, 1e-300, -1e-300, 1e300, -1e300, 3, 7, 0.1, 1e6, -1e6, 42, 5e-324, math.MaxFloat64}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		x := make([]float64, len(data))
+		for i, b := range data {
+			x[i] = values[b%16] * float64(1+b/16)
+		}
+		if checkAll(x) != nil {
+			return // overflowed to ±Inf: refused with an error, tested elsewhere
+		}
+		s := slices.Clone(x)
+		slices.Sort(s)
+		var rules []Rule
+		if r, err := TukeyFences(s, DefaultTukeyK); err == nil {
+			rules = append(rules, r)
+		}
+		if r, err := NewRobustZ(s, DefaultRobustZCutoff); err == nil {
+			rules = append(rules, r)
+		}
+		if r, err := NewZScore(x, DefaultZCutoff); err == nil {
+			rules = append(rules, r)
+		}
+		for _, r := range rules {
+			for _, e := range Scan(x, r) {
+				if e.Score < 0 {
+					t.Fatalf("%T: %+v", r, e)
+				}
+			}
+		}
+		if len(x) >= 3 {
+			if _, err := GeneralizedESD(x, max(1, len(x)/3), 0.05); err != nil {
+				t.Fatal(err)
+			}
+			for _, alt := range []Alternative{TwoSided, Greater, Less} {
+				if _, err := Grubbs(x, 0.05, alt); err != nil {
+					t.Fatal(err)
+				}
+			}
+		}
+	})
+}
