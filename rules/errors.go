@@ -22,6 +22,7 @@ const (
 	CodeBadValue      Code = "bad-value"      // a value of the right kind that is not allowed there
 	CodeUnknownType   Code = "unknown-type"   // a column type the language does not define
 	CodeUnknownStat   Code = "unknown-stat"   // a summary statistic the language does not define
+	CodeUnknownFamily Code = "unknown-family" // a distribution family the language does not define
 	CodeTolerance     Code = "bad-tolerance"  // a malformed share, a share outside [0, 1], warn beyond fail
 	CodeEmptyRange    Code = "empty-range"    // bounds no value can meet: minimum above maximum and the like
 	CodeMixedEnum     Code = "mixed-enum"     // enum values of different kinds

@@ -96,6 +96,8 @@ func explainSpec(r *Rule) string {
 		return strings.Join(strings.Fields(s.Expr), " ")
 	case ClosedSpec:
 		return "only declared columns"
+	case DistributionSpec:
+		return explainDistribution(s)
 	}
 	return "-"
 }

@@ -105,6 +105,7 @@ type pending struct {
 	val    *yaml.Node // what the rule says: its value, list, expression or bounds
 	tol    *yaml.Node // the tolerance written for it; nil for the default
 	name   *yaml.Node // a row rule's name
+	dist   *distDraft // a distribution rule's keys
 	tolSet bool       // rule.Tolerance has been resolved
 }
 
@@ -124,7 +125,7 @@ func (r *resolver) errorList() ErrorList {
 var (
 	topKeys    = []string{"policy", "about", "data", "csv", "columns", "rows", "table"}
 	columnKeys = []string{"type", "unit", "description", "tolerance", "nulls", "unique", "minimum", "maximum",
-		"exclusiveMinimum", "exclusiveMaximum", "enum", "pattern", "minLength", "maxLength", "summary"}
+		"exclusiveMinimum", "exclusiveMaximum", "enum", "pattern", "minLength", "maxLength", "summary", "distribution"}
 	tableKeys = []string{"rows", "key", "closed", "required"}
 	rowKeys   = []string{"name", "expr", "tolerance"}
 )
@@ -352,6 +353,8 @@ func (r *resolver) decodeColumnKey(c *colDraft, f field) {
 		r.longFormRule(c, f, KindMinLength, "value")
 	case "maxLength":
 		r.longFormRule(c, f, KindMaxLength, "value")
+	case "distribution":
+		r.decodeDistribution(r.columnRule(c, f, KindDistribution, f.v, nil), f.v)
 	case "summary":
 		if !r.mapping(id, f.v) {
 			return

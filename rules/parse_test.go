@@ -46,6 +46,41 @@ var badFixtures = []struct {
 		{CodeWrongKind, 6, 11, `csv.header: expected true or false, got the text "yes"`},
 		{CodeWrongKind, 7, 10, `csv.nulls: expected a list, got the text "NA"`},
 	}},
+	{"distribution.yaml", false, []want{
+		{CodeNotApplicable, 5, 5, `columns.grade.distribution: lognormal applies to number and integer columns, not string columns`},
+		{CodeUnknownFamily, 8, 27, `columns.a.distribution.family: unknown family "gama"`},
+		{CodeDuplicate, 8, 33, `columns.a.distribution.family: family lognormal listed twice`},
+		{CodeBadValue, 9, 16, `columns.a.distribution.measure: unknown measure "pvalue"`},
+		{CodeMissing, 12, 28, `columns.b.distribution: binomial needs its parameter n (number of trials; must be given, it is not estimated)`},
+		{CodeUnknownKey, 12, 38, `columns.b.distribution: unknown key "trials"`},
+		{CodeMissing, 14, 28, `columns.c.distribution: categorical needs its expected shares`},
+		{CodeUnknownKey, 16, 59, `columns.d.distribution.parameters: normal has no parameter "sdd"`},
+		{CodeBadValue, 16, 80, `columns.d.distribution.resolution: resolution 0 is not above 0`},
+		{CodeBadValue, 18, 48, `columns.e.distribution.parameters: give all of mean, sd or none of them; mean cannot be given while the others are estimated`},
+		{CodeNotApplicable, 18, 96, `columns.e.distribution.resolution: anderson-darling has no form for values recorded at a resolution`},
+		{CodeNotApplicable, 20, 43, `columns.f.distribution.test: ks does not apply to poisson, whose values are k = 0, 1, 2, ...`},
+		{CodeTolerance, 20, 83, `columns.f.distribution.tolerance: warn 0.01 is below fail 0.05`},
+		{CodeBadValue, 22, 40, `columns.g.distribution.family: poisson cannot be ranked against lognormal: lognormal takes x > 0, poisson takes k = 0, 1, 2, ...`},
+		{CodeBadValue, 24, 55, `columns.h.distribution.parameters.shape: shape must be above 0, got -1`},
+		{CodeBadValue, 24, 78, `columns.h.distribution.sample: a sample of 10 values is too small to judge a family`},
+		{CodeNotApplicable, 24, 90, `columns.h.distribution.shares: shares belong to the categorical family, not gamma`},
+		{CodeNotApplicable, 26, 45, `columns.i.distribution.test: shapiro-wilk tests normality; it does not apply to lognormal`},
+		{CodeNotApplicable, 28, 72, `columns.j.distribution.test: shapiro-wilk estimates the mean and sd itself; it cannot test given parameters`},
+		{CodeBadValue, 28, 92, `columns.j.distribution.seed: -1 is not a whole number of 0 or more`},
+		{CodeBadValue, 30, 58, `columns.k.distribution.parameters: parameters apply to one family, and the rule ranks 2`},
+		{CodeNotApplicable, 32, 50, `columns.l.distribution.resolution: resolution applies to continuous families tested by ks or chi-square`},
+		{CodeNotApplicable, 32, 68, `columns.l.distribution.parameters: benford2 has no parameters`},
+		{CodeBadValue, 34, 49, `columns.m.distribution.shares: the shares are all 0`},
+		{CodeBadValue, 34, 72, `columns.m.distribution.test: unknown test "kolmogorov"`},
+		{CodeBadValue, 36, 42, `columns.n.distribution.family: categorical cannot be ranked against other families`},
+		{CodeBadValue, 38, 49, `columns.o.distribution.parameters: min must be below max`},
+		{CodeBadValue, 38, 79, `columns.o.distribution.resolution: unknown resolution "fine"`},
+		{CodeTolerance, 40, 65, `columns.p.distribution.tolerance.fail: share 1.5 is outside [0, 1]`},
+		{CodeUnknownFamily, 42, 19, `columns.q.distribution.family: unknown family "0.5"`},
+		{CodeBadValue, 44, 28, `columns.r.distribution.family: the list of candidate families is empty`},
+		{CodeMissing, 46, 19, `columns.s.distribution: missing key "family"`},
+		{CodeUnknownKey, 46, 30, `columns.s.distribution: unknown key "fit"`},
+	}},
 	{"duplicates.yaml", false, []want{
 		{CodeDuplicate, 5, 5, `columns.weight_kg: key "type" written twice (first at line 4)`},
 		{CodeDuplicate, 6, 18, "columns.weight_kg.enum: enum value 2.0 listed twice"},
@@ -137,7 +172,7 @@ var badFixtures = []struct {
 		{CodeUnknownKey, 2, 1, `unknown-keys.yaml:2:1: unknown key "colums" (did you mean "columns"?)`},
 		{CodeUnknownKey, 7, 5, `unknown-keys.yaml:7:5: columns.weight_kg: unknown key "maximun" (did you mean "maximum"?)`},
 		{CodeUnknownKey, 8, 5, `columns.weight_kg: unknown key "mean" (summary statistics go under "summary")`},
-		{CodeUnknownKey, 9, 5, `columns.weight_kg: unknown key "distribution"`},
+		{CodeUnknownKey, 9, 5, `columns.weight_kg: unknown key "distrbution" (did you mean "distribution"?)`},
 		{CodeUnknownKey, 11, 3, `csv: unknown key "delimeter" (did you mean "delimiter"?)`},
 		{CodeUnknownKey, 13, 3, `table: unknown key "closd" (did you mean "closed"?)`},
 		{CodeUnknownKey, 16, 5, `rows: unknown key "expresion" (did you mean "expr"?)`},
@@ -583,11 +618,12 @@ func TestSuggest(t *testing.T) {
 		{"Maximum", columnKeys, "maximum"},
 		{"minimun", columnKeys, "minimum"},
 		{"exclusiveMaximun", columnKeys, "exclusiveMaximum"},
-		{"tpye", columnKeys, "type"},     // a swap is one edit
-		{"nul", columnKeys, ""},          // two edits in three letters is too far...
-		{"nulss", columnKeys, "nulls"},   // ...one is close
-		{"distribution", columnKeys, ""}, // four edits from description
-		{"mean", columnKeys, ""},         // nothing near
+		{"tpye", columnKeys, "type"},   // a swap is one edit
+		{"nul", columnKeys, ""},        // two edits in three letters is too far...
+		{"nulss", columnKeys, "nulls"}, // ...one is close
+		{"distrbution", columnKeys, "distribution"},
+		{"extremes", columnKeys, ""}, // nothing near
+		{"mean", columnKeys, ""},     // nothing near
 		{"weight_kg", []string{"weight_kg", "Weight_kg"}, "weight_kg"},
 		{"WEIGHT_KG", []string{"weight_lb", "weight_kg"}, "weight_kg"},
 		{"weight_lg", []string{"weight_kg", "height_kg"}, "weight_kg"}, // ties go to the first

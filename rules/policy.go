@@ -91,12 +91,14 @@ const (
 	KindKey       Kind = "key"       // share of rows whose key combination occurs more than once
 	KindClosed    Kind = "closed"    // data columns the policy does not declare
 	KindRequired  Kind = "required"  // required columns absent from the data
+
+	KindDistribution Kind = "distribution" // how far a column's values are from a distribution family
 )
 
 // Kinds lists every declared kind, in the order reports list them.
 func Kinds() []Kind {
 	return []Kind{KindRequired, KindClosed, KindRowCount, KindKey, KindType, KindNulls, KindUnique,
-		KindMinimum, KindMaximum, KindEnum, KindPattern, KindMinLength, KindMaxLength, KindSummary, KindRow}
+		KindMinimum, KindMaximum, KindEnum, KindPattern, KindMinLength, KindMaxLength, KindSummary, KindDistribution, KindRow}
 }
 
 // Limit is the closed interval of measure values a threshold allows. An open
@@ -282,6 +284,64 @@ func (RowCountSpec) Kind() Kind { return KindRowCount }
 func (KeySpec) Kind() Kind      { return KindKey }
 func (ClosedSpec) Kind() Kind   { return KindClosed }
 func (RequiredSpec) Kind() Kind { return KindRequired }
+
+// DistTest names a goodness-of-fit test of a distribution rule.
+type DistTest string
+
+// The tests a distribution rule may name.
+const (
+	TestKS        DistTest = "ks"               // Kolmogorov-Smirnov
+	TestAD        DistTest = "anderson-darling" // Anderson-Darling
+	TestCvM       DistTest = "cramer-von-mises" // Cramér-von Mises
+	TestSW        DistTest = "shapiro-wilk"     // Shapiro-Wilk, normal family only
+	TestChiSquare DistTest = "chi-square"       // Pearson's chi-square
+)
+
+// DistMeasure names what a distribution rule is judged on.
+type DistMeasure string
+
+// The measures of a distribution rule.
+const (
+	// MeasureDistance is an effect size that does not grow with n: the
+	// Kolmogorov-Smirnov distance between the empirical and the fitted CDF,
+	// or for chi-square the total variation distance between the observed
+	// and the expected shares of its cells. Higher is worse.
+	MeasureDistance DistMeasure = "distance"
+	// MeasurePValue is the test's p-value. Lower is worse.
+	MeasurePValue DistMeasure = "p-value"
+)
+
+// DistributionSpec: the column's values follow a distribution family (of
+// package checks/dist), or the best of several candidates ranked by AIC then
+// BIC; the measure says how far they are from it.
+type DistributionSpec struct {
+	// Families are the candidate families by name, in the order written;
+	// one for a rule on a single family.
+	Families []string
+	// Parameters are given values of a single family's parameters; the
+	// others (all of them when nil) are estimated by maximum likelihood.
+	Parameters map[string]float64
+	// Categories and Weights are the categorical family's categories, in
+	// the order written, and their expected shares or weights (divided by
+	// their sum).
+	Categories []string
+	Weights    []float64
+	Test       DistTest
+	Measure    DistMeasure
+	// AutoResolution asks to detect the step values are recorded at;
+	// otherwise Resolution is that step, 0 for none. The continuous family
+	// is then compared at the step's cell boundaries, which rounding
+	// cannot move.
+	AutoResolution bool
+	Resolution     float64
+	// Sample is how many values are kept: beyond it the fit and the test
+	// run on a seeded reservoir sample of that size.
+	Sample int
+	// Seed seeds the reservoir sample and any bootstrap.
+	Seed uint64
+}
+
+func (DistributionSpec) Kind() Kind { return KindDistribution }
 
 // Column is a column as the policy declares it.
 type Column struct {

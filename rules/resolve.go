@@ -118,6 +118,8 @@ func (r *resolver) names() {
 			r.stat(p, quantiles)
 		case KindRow:
 			r.rowName(p, seen)
+		case KindDistribution:
+			r.distNames(p)
 		}
 	}
 	closed := r.closed()
@@ -267,6 +269,8 @@ func (r *resolver) tolerances() {
 				continue
 			}
 			t, ok = r.bounds(path, p.val, r.statValue(r.column(p.col).Type, spec.Stat))
+		case p.rule.Kind == KindDistribution:
+			t, ok = r.distTolerance(p)
 		case p.tol != nil:
 			t, ok = r.shareTolerance(path, p.tol)
 		}
@@ -310,14 +314,27 @@ func (r *resolver) timeText(path string, n *yaml.Node, t Type) (float64, bool) {
 // shareTolerance reads a tolerance on a share: a share alone is the fail
 // threshold; a mapping sets warn, fail or both, warn at most fail.
 func (r *resolver) shareTolerance(path string, n *yaml.Node) (Tolerance, bool) {
-	t := Tolerance{Direction: HigherIsWorse, Pos: r.pos(n)}
+	return r.unitTolerance(path, n, HigherIsWorse)
+}
+
+// unitTolerance reads thresholds in [0, 1], written as fractions or
+// percents, on a measure that gets worse in direction d: a value alone is
+// the fail threshold; a mapping sets warn, fail or both, warn no stricter
+// than fail. Shares and distances get worse upwards (warn at most fail),
+// p-values downwards (warn at least fail).
+func (r *resolver) unitTolerance(path string, n *yaml.Node, d Direction) (Tolerance, bool) {
+	t := Tolerance{Direction: d, Pos: r.pos(n)}
+	limit, what := AtMost, "a share"
+	if d == LowerIsWorse {
+		limit, what = AtLeast, "a p-value"
+	}
 	if n.Kind == yaml.ScalarNode {
 		f, ok := r.share(path, n)
-		t.Fail = AtMost(f)
+		t.Fail = limit(f)
 		return t, ok
 	}
 	if n.Kind != yaml.MappingNode {
-		r.wrongKind(n, path, "a share or a mapping of warn and fail")
+		r.wrongKind(n, path, what+" or a mapping of warn and fail")
 		return t, false
 	}
 	fs := r.fields(path, n, []string{"warn", "fail"}, nil)
@@ -327,18 +344,23 @@ func (r *resolver) shareTolerance(path string, n *yaml.Node) (Tolerance, bool) {
 		v, good := r.share(path+"."+f.key, f.v)
 		ok = ok && good
 		if f.key == "warn" {
-			t.Warn, warnNode = AtMost(v), f.v
+			t.Warn, warnNode = limit(v), f.v
 		} else {
-			t.Fail = AtMost(v)
+			t.Fail = limit(v)
 		}
 	}
 	switch {
 	case len(fs) == 0:
 		r.fail(n, CodeTolerance, path, "the tolerance sets neither warn nor fail")
 		return t, false
-	case ok && t.Warn != nil && t.Fail != nil && t.Warn.Hi > t.Fail.Hi:
+	case !ok || t.Warn == nil || t.Fail == nil:
+	case d == HigherIsWorse && t.Warn.Hi > t.Fail.Hi:
 		r.fail(warnNode, CodeTolerance, path, "warn %s is above fail %s", formatPercent(t.Warn.Hi), formatPercent(t.Fail.Hi)).Hint =
 			"warn is the smaller threshold"
+		return t, false
+	case d == LowerIsWorse && t.Warn.Lo < t.Fail.Lo:
+		r.fail(warnNode, CodeTolerance, path, "warn %s is below fail %s", formatNumber(t.Warn.Lo), formatNumber(t.Fail.Lo)).Hint =
+			"on a p-value warn is the larger threshold: p below fail fails, below warn warns"
 		return t, false
 	}
 	return t, ok
@@ -476,6 +498,8 @@ func (r *resolver) values() {
 			}
 		case KindEnum:
 			r.enumSpec(p, t)
+		case KindDistribution:
+			r.distributionSpec(p, t)
 		}
 		if !applies {
 			r.failAt(p.rule.Pos, CodeNotApplicable, id, "%s does not apply to %s", key, plural(t))
@@ -661,7 +685,9 @@ func (r *resolver) defaults() {
 		r.fail(r.root, CodeEmpty, "", "the policy has no rules").Hint = "add columns, rows or table"
 	}
 	for _, p := range all {
-		if !p.tolSet {
+		if s, ok := p.rule.Spec.(DistributionSpec); ok && !p.tolSet {
+			p.rule.Tolerance = defaultDistTolerance(s)
+		} else if !p.tolSet {
 			p.rule.Tolerance = Tolerance{Direction: HigherIsWorse, Fail: AtMost(0)}
 			if p.col != nil && p.col.def != nil && p.rule.Kind != KindNulls {
 				d := *p.col.def
@@ -700,6 +726,8 @@ func measure(r *Rule) Measure {
 			return Measure{Name: "at or above maximum share"}
 		}
 		return Measure{Name: "above maximum share"}
+	case DistributionSpec:
+		return distributionMeasure(s)
 	}
 	switch r.Kind {
 	case KindRowCount:

@@ -11,6 +11,8 @@ import (
 
 	"github.com/santhosh-tekuri/jsonschema/v6"
 	"go.yaml.in/yaml/v3"
+
+	"github.com/assay-project/assay/checks/dist"
 )
 
 // policySchema compiles JSONSchema; compiling also checks it against the
@@ -143,6 +145,14 @@ func TestSchemaRejectsShapeProblems(t *testing.T) {
 		"policy: p\ntable: {closed: \"true\"}\n",
 		"policy: p\ntable: {key: []}\n",
 		"policy: p\ncsv: {quote: \"ab\"}\n",
+		"policy: p\ncolumns: {a: {distribution: gausian}}\n",
+		"policy: p\ncolumns: {a: {distribution: {family: normal, test: kolmogorov}}}\n",
+		"policy: p\ncolumns: {a: {distribution: {family: normal, measure: pvalue}}}\n",
+		"policy: p\ncolumns: {a: {distribution: {family: poisson, trials: 3}}}\n",
+		"policy: p\ncolumns: {a: {distribution: {family: normal, resolution: fine}}}\n",
+		"policy: p\ncolumns: {a: {distribution: {family: normal, sample: 10}}}\n",
+		"policy: p\ncolumns: {a: {distribution: {test: ks}}}\n",
+		"policy: p\ncolumns: {a: {distribution: {family: categorical, shares: {A: -1}}}}\n",
 	} {
 		f := filepath.Join(t.TempDir(), "p.yaml")
 		writeFile(t, f, src)
@@ -183,6 +193,15 @@ func TestSchemaInStep(t *testing.T) {
 	for _, v := range column["type"].(map[string]any)["enum"].([]any) {
 		types = append(types, v.(string))
 	}
+	enum := func(m any) []string {
+		var out []string
+		for _, v := range m.(map[string]any)["enum"].([]any) {
+			out = append(out, v.(string))
+		}
+		sort.Strings(out)
+		return out
+	}
+	distRule := defs["distributionRule"].(map[string]any)["properties"].(map[string]any)
 	for _, c := range []struct {
 		name         string
 		schema, code []string
@@ -193,6 +212,10 @@ func TestSchemaInStep(t *testing.T) {
 		{"row", props(defs["rowRule"]), rowKeys},
 		{"summary", props(column["summary"]), statNames},
 		{"type", sorted(types), TypeNames()},
+		{"distribution", props(defs["distributionRule"]), distributionKeys},
+		{"family", enum(defs["familyName"]), dist.Names()},
+		{"test", enum(distRule["test"]), DistTestNames()},
+		{"measure", enum(distRule["measure"]), DistMeasureNames()},
 	} {
 		if got, want := strings.Join(c.schema, " "), strings.Join(sorted(c.code), " "); got != want {
 			t.Errorf("%s keys: the schema has %s, the parser %s", c.name, got, want)
