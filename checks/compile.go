@@ -41,6 +41,8 @@ func Compile(r *rules.Rule, env *Env) (Check, error) {
 		c, err = newClosedCheck(r, s, env)
 	case rules.RequiredSpec:
 		c, err = newRequiredCheck(r, env)
+	case rules.DistributionSpec:
+		c, err = newDistributionCheck(r, s, env)
 	default:
 		return nil, fmt.Errorf("%s: rule %s: no check implements kind %q", r.Pos, r.ID, r.Kind)
 	}

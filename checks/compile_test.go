@@ -30,6 +30,8 @@ func TestEveryKindCompiles(t *testing.T) {
 		rules.KindKey:       newRule(rules.KeySpec{}, atMost(0), "x", "s"),
 		rules.KindClosed:    newRule(rules.ClosedSpec{Allowed: []string{"x", "s"}}, atMost(0)),
 		rules.KindRequired:  newRule(rules.RequiredSpec{}, atMost(0), "x"),
+		rules.KindDistribution: newRule(rules.DistributionSpec{Families: []string{"normal"}, Test: rules.TestKS,
+			Measure: rules.MeasureDistance, Sample: 1000, Seed: 1}, atMost(0.1), "x"),
 	}
 	schema := arrow.NewSchema([]arrow.Field{{Name: "x", Type: tFloat}, {Name: "s", Type: tString}}, nil)
 	env := &Env{Schema: schema, DataColumns: []string{"x", "s"}, MaxRowsListed: 5}

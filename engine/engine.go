@@ -151,19 +151,16 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, workers int) ([]re
 		return nil, err
 	}
 	second := false
+	pass2 := make([]checks.Accumulator, len(accs))
 	for i, a := range accs {
 		if r, ok := a.(checks.Rescanner); ok && broken[i] == nil {
-			accs[i] = r.SecondPass()
-			second = true
+			if next := r.SecondPass(); next != nil {
+				accs[i], pass2[i] = next, next
+				second = true
+			}
 		}
 	}
 	if second {
-		pass2 := make([]checks.Accumulator, len(accs))
-		for i, a := range accs {
-			if _, ok := pl.checks[i].NewAccumulator().(checks.Rescanner); ok && broken[i] == nil {
-				pass2[i] = a
-			}
-		}
 		if err := scan(ctx, set, pl.columns, pass2, broken, workers); err != nil {
 			return nil, fmt.Errorf("second pass: %w", err)
 		}

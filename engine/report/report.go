@@ -153,6 +153,128 @@ type Result struct {
 	Error     string             `json:"error,omitempty"`
 	Offending *Offending         `json:"offending,omitempty"`
 	Policy    string             `json:"policy_position,omitempty"` // file:line:col of the rule
+	// Fit is set by distribution rules: the family judged, how it was
+	// fitted and tested, the candidates, where the data depart from it, and
+	// what a plot needs. Statistic, PValue and Estimates then hold the
+	// test's statistic (with the n it used), its p-value, and the
+	// parameters of the family judged, given or estimated.
+	Fit *Fit `json:"fit,omitempty"`
+}
+
+// Fit is what a distribution rule found.
+type Fit struct {
+	// Family is the family judged, e.g. "lognormal": the only one written,
+	// or the best candidate.
+	Family string `json:"family"`
+	// Estimated is how many of its parameters were estimated from the
+	// data (by maximum likelihood); the others were given by the policy.
+	Estimated int `json:"estimated"`
+	// N is the number of values in the column (non-null), counted exactly.
+	N int64 `json:"n"`
+	// Sampled says the fit and the test ran on a seeded reservoir sample of
+	// SampleSize of the N values; otherwise SampleSize is N.
+	Sampled    bool   `json:"sampled"`
+	SampleSize int64  `json:"sample_size"`
+	Seed       uint64 `json:"seed"`
+	// Resolution is the step the family was compared at (its cells'
+	// boundaries), detected or given; absent when the values were compared
+	// as they are.
+	Resolution *Number `json:"resolution,omitempty"`
+	// Test names the goodness-of-fit test (ks, anderson-darling,
+	// cramer-von-mises, shapiro-wilk, chi-square); Method says how its
+	// p-value was obtained; DF is the chi-square degrees of freedom.
+	Test   string     `json:"test"`
+	Method TestMethod `json:"method"`
+	DF     int        `json:"df,omitempty"`
+	// Distance is the KS distance (largest gap between the empirical and
+	// the fitted CDF) or, for chi-square, the total variation distance
+	// between observed and expected cell shares, whichever measure the
+	// rule judges.
+	Distance Number `json:"distance"`
+	// Candidates lists every family tried, the judged one first, ranked by
+	// AIC then BIC; those that could not be fitted follow with the reason.
+	Candidates []Candidate `json:"candidates"`
+	// Regions are the value ranges (or categories, or leading digits)
+	// whose observed share exceeds the fitted share the most, worst first;
+	// set when the verdict is not pass.
+	Regions []Region `json:"regions,omitempty"`
+	// QQ holds up to 200 quantile pairs for a Q-Q plot (numeric families).
+	QQ *QQ `json:"qq,omitempty"`
+	// Histogram holds the sample's histogram with the fitted density
+	// (numeric families).
+	Histogram *Histogram `json:"histogram,omitempty"`
+	// Cells holds, for categorical and Benford rules, every category (or
+	// leading digit) with its observed count and expected share.
+	Cells []Cell `json:"cells,omitempty"`
+}
+
+// TestMethod describes how a p-value was obtained.
+type TestMethod struct {
+	// Kind is exact, asymptotic, approximation or bootstrap.
+	Kind string `json:"kind"`
+	// Source names the publication or procedure followed.
+	Source string `json:"source"`
+	// Replicates is the number of parametric bootstrap replicates (0 when
+	// no bootstrap was run).
+	Replicates int `json:"replicates,omitempty"`
+	// Conservative says the p-value is an upper bound of the true one.
+	Conservative bool `json:"conservative,omitempty"`
+}
+
+// Candidate is one family a distribution rule tried.
+type Candidate struct {
+	Family string `json:"family"`
+	// Estimates are its parameters, given or fitted.
+	Estimates map[string]float64 `json:"estimates,omitempty"`
+	// LogLik is the maximised log-likelihood; AIC = 2k - 2 LogLik and
+	// BIC = k ln n - 2 LogLik, k the parameters estimated, n the values
+	// fitted.
+	LogLik Number `json:"log_likelihood"`
+	AIC    Number `json:"aic"`
+	BIC    Number `json:"bic"`
+	// Skipped says why the family could not be fitted; the numbers are
+	// then null.
+	Skipped string `json:"skipped,omitempty"`
+}
+
+// Region is a range of values where the data hold more than the fitted
+// family expects. Lo and Hi bound it (Lo <= x < Hi for continuous
+// families, whole numbers Lo..Hi for discrete ones); Label names a
+// category or leading digits instead. Observed and Expected are shares of
+// the values, Count the values of the sample in it.
+type Region struct {
+	Lo       *Number `json:"lo,omitempty"`
+	Hi       *Number `json:"hi,omitempty"`
+	Label    string  `json:"label,omitempty"`
+	Count    int64   `json:"count"`
+	Observed Number  `json:"observed"`
+	Expected Number  `json:"expected"`
+}
+
+// QQ is a Q-Q plot: Sample[i] is the sample quantile and Fitted[i] the
+// fitted family's quantile at probability (i + 1/2)/len.
+type QQ struct {
+	Fitted []Number `json:"fitted"`
+	Sample []Number `json:"sample"`
+}
+
+// Histogram counts the sample in bins Edges[i] <= x < Edges[i+1] (the last
+// bin includes its upper edge). Density[i] is the fitted probability per
+// unit of x in bin i: the density at its centre for continuous families,
+// the bin's probability over its width for discrete ones; Counts[i]/(n
+// width) is the sample's counterpart.
+type Histogram struct {
+	Edges   []Number `json:"edges"`
+	Counts  []int64  `json:"counts"`
+	Density []Number `json:"density"`
+}
+
+// Cell is one category (or leading digits) of a categorical or Benford
+// rule: its observed count and its expected share.
+type Cell struct {
+	Label    string `json:"label"`
+	Count    int64  `json:"count"`
+	Expected Number `json:"expected"`
 }
 
 // Measure is the one number a rule is judged on. Value is NaN when the

@@ -29,6 +29,9 @@ func WriteText(w io.Writer, r *Report, o TextOptions) error {
 	for _, res := range r.Results {
 		label := p.label(res)
 		measure := res.Measure.Name + " " + formatMeasure(res.Measure.Unit, float64(res.Measure.Value))
+		if res.Fit != nil {
+			measure = res.Fit.Family + " · " + measure
+		}
 		limits := thresholds(res.Measure.Unit, res.Tolerance)
 		switch res.Status {
 		case Error:
@@ -51,6 +54,9 @@ func WriteText(w io.Writer, r *Report, o TextOptions) error {
 			p.printf(": %s", res.Message)
 		}
 		p.printf("\n")
+		if res.Fit != nil {
+			p.fit(res)
+		}
 		if res.Offending != nil && len(res.Offending.Rows) > 0 {
 			p.rows(res)
 		}
@@ -283,3 +289,118 @@ func groupDigits(n int64) string {
 	}
 	return b.String()
 }
+
+// fit prints what a distribution rule found: the family and its
+// parameters, the test, the sample, the candidates and where the data
+// exceed the fit.
+func (p *printer) fit(res Result) {
+	f := res.Fit
+	if len(res.Estimates) > 0 {
+		how := "estimated by maximum likelihood"
+		switch {
+		case f.Estimated == 0:
+			how = "given"
+		case f.Estimated < len(res.Estimates):
+			how = "partly given, the rest estimated by maximum likelihood"
+		}
+		p.printf("  %s: %s (%s)\n", f.Family, estimates(res.Estimates), how)
+	}
+	if res.Statistic != nil && res.PValue != nil {
+		p.printf("  test: %s %s = %s, p-value %s, n = %s", f.Test, res.Statistic.Name, sig4(float64(res.Statistic.Value)),
+			sig4(*res.PValue), groupDigits(res.Statistic.N))
+		if f.DF > 0 {
+			p.printf(", %d degrees of freedom", f.DF)
+		}
+		p.printf(" (%s", f.Method.Kind)
+		if f.Method.Replicates > 0 {
+			p.printf(", %s replicates, seed %d", groupDigits(int64(f.Method.Replicates)), f.Seed)
+		}
+		if f.Method.Conservative {
+			p.printf(", conservative")
+		}
+		p.printf(": %s)\n", f.Method.Source)
+	}
+	if f.Sampled {
+		p.printf("  sample of %s of %s values (seeded reservoir, seed %d)\n", groupDigits(f.SampleSize), groupDigits(f.N), f.Seed)
+	}
+	if len(f.Candidates) > 1 {
+		p.printf("  candidates, best first by AIC then BIC:\n")
+		var b strings.Builder
+		tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', 0)
+		for i, c := range f.Candidates {
+			if c.Skipped != "" {
+				fmt.Fprintf(tw, "    -\t%s\tskipped: %s\n", c.Family, c.Skipped)
+				continue
+			}
+			fmt.Fprintf(tw, "    %d\t%s\tAIC %s\tBIC %s\tlog-likelihood %s\t%s\n", i+1, c.Family, fixed1(float64(c.AIC)),
+				fixed1(float64(c.BIC)), fixed1(float64(c.LogLik)), estimates(c.Estimates))
+		}
+		tw.Flush()
+		p.printf("%s", b.String())
+	}
+	if len(f.Regions) > 0 {
+		p.printf("  where the data exceed the fit most:\n")
+		var b strings.Builder
+		tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', 0)
+		for _, g := range f.Regions {
+			count := groupDigits(g.Count) + " values"
+			if f.Sampled {
+				count = groupDigits(g.Count) + " in the sample"
+			}
+			fmt.Fprintf(tw, "    %s\t%s of values\t%s expected\t(%s)\n", regionText(g),
+				formatPercent(float64(g.Observed)), formatPercent(float64(g.Expected)), count)
+		}
+		tw.Flush()
+		p.printf("%s", b.String())
+		switch {
+		case res.Offending == nil || len(res.Offending.Rows) == 0:
+		case len(f.Cells) > 0:
+			p.printf("  rows there (score: the excess share of the row's cell):\n")
+		default:
+			p.printf("  rows there, most extreme first (score: -log10 of the value's two-sided tail probability):\n")
+		}
+	}
+}
+
+// estimates writes parameters in name order: "mean 3.132, sd 1.65".
+func estimates(m map[string]float64) string {
+	names := make([]string, 0, len(m))
+	for k := range m {
+		names = append(names, k)
+	}
+	slices.Sort(names)
+	parts := make([]string, len(names))
+	for i, k := range names {
+		parts[i] = k + " " + sig4(m[k])
+	}
+	return strings.Join(parts, ", ")
+}
+
+// regionText writes a region: "1.017 to 2.924", "above 5.846", "up to 0",
+// "3 to 6" (whole numbers), or a category.
+func regionText(g Region) string {
+	switch {
+	case g.Label != "":
+		return strconv.Quote(g.Label)
+	case g.Lo != nil && g.Hi != nil && *g.Lo == *g.Hi:
+		return sig4(float64(*g.Lo))
+	case g.Lo != nil && g.Hi != nil:
+		return sig4(float64(*g.Lo)) + " to " + sig4(float64(*g.Hi))
+	case g.Lo != nil:
+		return "above " + sig4(float64(*g.Lo))
+	case g.Hi != nil:
+		return "up to " + sig4(float64(*g.Hi))
+	}
+	return "everywhere"
+}
+
+// sig4 writes v with four significant digits.
+func sig4(v float64) string {
+	if math.IsNaN(v) {
+		return "undefined"
+	}
+	return strconv.FormatFloat(v, 'g', 4, 64)
+}
+
+// fixed1 writes v with one decimal.
+func fixed1(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }

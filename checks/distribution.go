@@ -1,0 +1,447 @@
+package checks
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+
+	"github.com/assay-project/assay/checks/dist"
+	"github.com/assay-project/assay/checks/gof"
+	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
+	"github.com/assay-project/assay/rules"
+)
+
+// distributionCheck judges how far a column's values are from a family of
+// package dist: one family, with given parameters or fitted by maximum
+// likelihood, or the best of several candidates ranked by AIC, then BIC
+// (dist.Rank).
+//
+// First pass. Every non-null value is counted, and tested against the
+// support of each candidate (dist.Family.InSupport), so values a family
+// cannot produce (a negative value for a lognormal, a fraction for a
+// Poisson) are counted exactly however many rows there are. The values
+// themselves are kept up to the rule's sample size; beyond it a seeded
+// reservoir sample of that size is kept instead (gof.Reservoir, Li 1994),
+// and the fit and the test run on it. Categorical rules count each listed
+// category exactly instead.
+//
+// Finish. A candidate with values outside its support is skipped; when
+// none is left the rule fails with its measure undefined and a second pass
+// lists the values outside, each scored 1. Otherwise the candidates are
+// fitted, the best is tested:
+//
+//   - ks, anderson-darling, cramer-von-mises on continuous families: with
+//     every parameter given, gof.Specified. With parameters estimated:
+//     gof.Normal (Lilliefors KS with Dallal & Wilkinson's p-values;
+//     Stephens' AD and CvM) and gof.Exponential for those families, and a
+//     seeded parametric bootstrap (gof.Estimated) for the others, on
+//     samples of at most bootstrapMax values; above that, the fully
+//     specified p-value at the fitted distribution, which is an upper bound
+//     of the true one (the estimated parameters bring the fit closer to the
+//     data than the true ones would: Lilliefors 1967, Durbin 1973) and is
+//     reported as conservative.
+//   - resolution. Values recorded at a step h (0.01 °C) are tied, and at
+//     millions of rows the ties alone move the KS test. With a step
+//     detected (gof.DetectResolution) or given, ks compares the empirical
+//     and the fitted CDF only at the boundaries of the recording cells
+//     (gof.KSAtResolution), which rounding cannot move; with parameters
+//     estimated its p-value comes from a parametric bootstrap of the same
+//     statistic on draws rounded to the step (up to bootstrapMax values),
+//     and chi-square puts its bin edges on cell boundaries.
+//   - shapiro-wilk (normal): gof.ShapiroWilk on up to 5000 values, the
+//     range of Royston's approximation; a larger sample is sub-sampled
+//     (seeded) to 5000 and the result says so.
+//   - chi-square: Pearson's test (gof.ChiSquare, cells pooled to expected
+//     counts of at least 5, one degree of freedom less per estimated
+//     parameter) over binsFor(n) bins of equal probability under the fitted
+//     continuous family (Mann & Wald 1942), over whole numbers for discrete
+//     families (gof.IntegerCells), over leading digits for Benford and over
+//     the listed categories for the categorical family.
+//
+// The measure is the distance (the KS distance D = sup |F_n − F| between
+// the empirical and the fitted CDF, at cell boundaries when a resolution
+// applies; for chi-square the total variation distance ½ Σ |O_i/n − p_i|
+// between observed and expected cell shares, before pooling) or the test's
+// p-value.
+//
+// Where it is off. When the verdict is not pass, the cells of the
+// chi-square partition (bins, whole numbers, digits or categories) are
+// compared: runs of adjacent cells whose observed share exceeds the
+// expected share are merged into regions, and the maxRegions with the
+// largest excess are reported. A second pass then lists the rows whose
+// value lies in a region, scored by −log10 of the two-sided tail
+// probability of the value under the fitted family, min(1, 2 min(P(X ≤ x),
+// P(X ≥ x))), so the most extreme of them come first; rows of categories
+// and leading digits are scored by their cell's excess share.
+type distributionCheck struct {
+	rule     *rules.Rule
+	env      *Env
+	col      column
+	spec     rules.DistributionSpec
+	families []dist.Family          // candidates, with given parameters
+	inside   []func(x float64) bool // each candidate's support test
+	needs    []string               // what each candidate needs, in words
+	shares   dist.Shares            // the categorical family's shares
+	category map[string]int         // index of each listed category
+	// replicates is the number of bootstrap replicates (gof.DefaultB);
+	// bootstrapMax is the largest sample a bootstrap p-value runs on.
+	replicates, bootstrapMax int
+}
+
+// Bootstrap limits. A parametric bootstrap refits the family B times; at
+// 2000 values and 999 replicates that takes about a second for the
+// families fitted in closed form and several for those fitted by BFGS
+// (see BenchmarkDistribution). Beyond it the p-value of a test with
+// estimated parameters is the conservative one described above.
+const (
+	bootstrapMax  = 2000
+	shapiroMax    = 5000 // Royston's (1995) approximation covers 3 <= n <= 5000
+	maxRegions    = 3
+	maxQQ         = 200
+	maxListedVals = 5
+	maxRedraws    = 1000 // draws of one bootstrap value before a rounded family is taken to leave its support
+)
+
+func newDistributionCheck(r *rules.Rule, s rules.DistributionSpec, env *Env) (Check, error) {
+	c := &distributionCheck{rule: r, env: env, spec: s, replicates: gof.DefaultB, bootstrapMax: bootstrapMax}
+	if len(s.Families) == 0 {
+		return nil, fmt.Errorf("the distribution rule names no family")
+	}
+	for _, name := range s.Families {
+		f, err := dist.Lookup(name)
+		if err != nil {
+			return nil, err
+		}
+		if f.Kind() != dist.Categorical {
+			if f, err = f.Fix(s.Parameters); err != nil {
+				return nil, err
+			}
+			ok, need := f.InSupport()
+			c.inside, c.needs = append(c.inside, ok), append(c.needs, need)
+		}
+		c.families = append(c.families, f)
+	}
+	var err error
+	if c.families[0].Kind() == dist.Categorical {
+		if c.shares, err = dist.NewShares(s.Categories, s.Weights); err != nil {
+			return nil, err
+		}
+		c.category = make(map[string]int, len(s.Categories))
+		for i, l := range s.Categories {
+			c.category[l] = i
+		}
+		c.col, err = bindColumnOf(r, env, "distribution categorical", classString, classInteger, classBoolean)
+	} else {
+		c.col, err = bindColumnOf(r, env, "distribution "+c.families[0].Name(), classInteger, classNumber)
+	}
+	if err != nil {
+		return nil, err
+	}
+	if s.Sample < 1 {
+		return nil, fmt.Errorf("sample size %d is below 1", s.Sample)
+	}
+	return c, nil
+}
+
+func (c *distributionCheck) Rule() *rules.Rule { return c.rule }
+
+func (c *distributionCheck) categorical() bool { return c.families[0].Kind() == dist.Categorical }
+
+func (c *distributionCheck) NewAccumulator() Accumulator {
+	a := &DistributionAccumulator{check: c}
+	a.Min, a.Max = math.Inf(1), math.Inf(-1)
+	if c.categorical() {
+		a.Counts = make([]int64, len(c.spec.Categories))
+	} else {
+		a.Outside = make([]OutsideValues, len(c.families))
+	}
+	return a
+}
+
+// DistributionState is the first-pass state of a distribution rule.
+type DistributionState struct {
+	N        int64   // non-null values
+	Min, Max float64 // smallest and largest finite value (numeric families)
+	// Sample is a uniform sample of at most the rule's sample size of the
+	// finite values, all of them while there are no more (nil before the
+	// first value).
+	Sample *gof.Reservoir
+	// Outside counts, per candidate, the values it cannot produce.
+	Outside []OutsideValues
+	// Counts counts each listed category, in the policy's order, and
+	// Unlisted the values of no listed category, of which UnlistedValues
+	// keeps the first few (categorical rules).
+	Counts         []int64
+	Unlisted       int64
+	UnlistedValues []string
+}
+
+// OutsideValues counts the values outside a family's support and keeps
+// the first few.
+type OutsideValues struct {
+	Count  int64
+	Values []float64
+}
+
+// DistributionAccumulator is the first pass of a distribution rule.
+type DistributionAccumulator struct {
+	DistributionState
+	check   *distributionCheck
+	scratch scratch
+	vals    []float64
+	found   *distFinding // the analysis, once made
+}
+
+// Observe counts the batch's values, tests them against each candidate's
+// support and offers the finite ones to the sample.
+func (a *DistributionAccumulator) Observe(b *source.Batch) error {
+	arr, err := a.check.col.in(b)
+	if err != nil {
+		return err
+	}
+	if a.check.categorical() {
+		eachText(arr, func(_ int, s string) { a.count(s) })
+		return nil
+	}
+	a.vals = numbers(arr, &a.scratch, a.vals[:0])
+	a.N += int64(len(a.vals))
+	finite := a.vals[:0] // compacted in place: it never overtakes the loop
+	for _, v := range a.vals {
+		for i, in := range a.check.inside {
+			if !in(v) {
+				o := &a.Outside[i]
+				o.Count++
+				if len(o.Values) < maxListedVals {
+					o.Values = append(o.Values, v)
+				}
+			}
+		}
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			continue
+		}
+		a.Min, a.Max = min(a.Min, v), max(a.Max, v)
+		finite = append(finite, v)
+	}
+	if len(finite) == 0 {
+		return nil
+	}
+	if a.Sample == nil {
+		// Each accumulator seeds its reservoir with the rule's seed and
+		// where its data begin, so shards merged later sample independently
+		// and a run repeats for the same seed and the same batches.
+		if a.Sample, err = gof.NewReservoir(a.check.spec.Sample, a.check.spec.Seed^splitmix(uint64(b.FirstRow))); err != nil {
+			return err
+		}
+	}
+	a.Sample.AddAll(finite)
+	return nil
+}
+
+// count adds one categorical value.
+func (a *DistributionAccumulator) count(s string) {
+	a.N++
+	if i, ok := a.check.category[s]; ok {
+		a.Counts[i]++
+		return
+	}
+	a.Unlisted++
+	if len(a.UnlistedValues) < maxListedVals && !slices.Contains(a.UnlistedValues, s) {
+		a.UnlistedValues = append(a.UnlistedValues, strings.Clone(s))
+	}
+}
+
+// splitmix is the finaliser of SplitMix64 (Steele, Lea & Flood 2014): it
+// spreads a row number over all 64 bits for use in a seed.
+func splitmix(x uint64) uint64 {
+	x += 0x9e3779b97f4a7c15
+	x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9
+	x = (x ^ (x >> 27)) * 0x94d049bb133111eb
+	return x ^ (x >> 31)
+}
+
+// numbers appends the non-null values of an integer or float array to dst
+// as float64.
+func numbers(a arrow.Array, s *scratch, dst []float64) []float64 {
+	v := validOf(a)
+	if classOf(a.DataType()) == classNumber {
+		for i, x := range float64s(a, &s.floats) {
+			if v.at(i) {
+				dst = append(dst, x)
+			}
+		}
+		return dst
+	}
+	for i, x := range int64s(a, &s.ints) {
+		if v.at(i) {
+			dst = append(dst, float64(x))
+		}
+	}
+	return dst
+}
+
+// eachText calls f with the text of every non-null value of a string,
+// integer or boolean array, as a categorical rule names its categories.
+func eachText(arr arrow.Array, f func(i int, s string)) {
+	switch classOf(arr.DataType()) {
+	case classString:
+		eachString(arr, f)
+	case classBoolean:
+		bs := arr.(*array.Boolean)
+		v := validOf(arr)
+		for i := range bs.Len() {
+			if v.at(i) {
+				f(i, strconv.FormatBool(bs.Value(i)))
+			}
+		}
+	default:
+		var buf []int64
+		v := validOf(arr)
+		for i, x := range int64s(arr, &buf) {
+			if v.at(i) {
+				f(i, strconv.FormatInt(x, 10))
+			}
+		}
+	}
+}
+
+// Merge folds other's counts and sample into a.
+func (a *DistributionAccumulator) Merge(other Accumulator) error {
+	o, ok := other.(*DistributionAccumulator)
+	if !ok || o.check != a.check {
+		return errMerge(a.check.rule, a, other)
+	}
+	a.N += o.N
+	a.Min, a.Max = min(a.Min, o.Min), max(a.Max, o.Max)
+	for i := range a.Outside {
+		a.Outside[i].Count += o.Outside[i].Count
+		for _, v := range o.Outside[i].Values {
+			if len(a.Outside[i].Values) < maxListedVals {
+				a.Outside[i].Values = append(a.Outside[i].Values, v)
+			}
+		}
+	}
+	for i := range a.Counts {
+		a.Counts[i] += o.Counts[i]
+	}
+	a.Unlisted += o.Unlisted
+	for _, s := range o.UnlistedValues {
+		if len(a.UnlistedValues) < maxListedVals && !slices.Contains(a.UnlistedValues, s) {
+			a.UnlistedValues = append(a.UnlistedValues, s)
+		}
+	}
+	if o.Sample == nil {
+		return nil
+	}
+	if a.Sample == nil {
+		r, err := gof.NewReservoir(o.Sample.Size(), a.check.spec.Seed^splitmix(uint64(o.Sample.Seen())))
+		if err != nil {
+			return err
+		}
+		a.Sample = r
+	}
+	return a.Sample.Merge(o.Sample)
+}
+
+// Finish fits, tests and judges; rows are listed only after a second pass.
+func (a *DistributionAccumulator) Finish() report.Result {
+	return a.finding().result
+}
+
+// SecondPass returns the accumulator that lists the rows where the data
+// depart from the family, or nil when there are none to list.
+func (a *DistributionAccumulator) SecondPass() Accumulator {
+	f := a.finding()
+	if f.match == nil && f.matchText == nil {
+		return nil
+	}
+	return &distributionLister{check: a.check, found: f, listing: Offenders{Limit: a.check.env.MaxRowsListed}}
+}
+
+func (a *DistributionAccumulator) finding() *distFinding {
+	if a.found == nil {
+		if a.check.categorical() {
+			a.found = a.check.analyseCategories(&a.DistributionState)
+		} else {
+			a.found = a.check.analyse(&a.DistributionState)
+		}
+	}
+	return a.found
+}
+
+// distFinding is what Finish learnt: the result without rows, and which
+// rows a second pass lists, with their scores.
+type distFinding struct {
+	result    report.Result
+	match     func(x float64) (bool, float64)
+	matchText func(s string) (bool, float64)
+}
+
+// distributionLister is the second pass of a distribution rule: it lists
+// the rows that match the finding.
+type distributionLister struct {
+	check   *distributionCheck
+	found   *distFinding
+	listing Offenders
+	scratch scratch
+}
+
+// Observe lists the batch's rows that match.
+func (l *distributionLister) Observe(b *source.Batch) error {
+	arr, err := l.check.col.in(b)
+	if err != nil {
+		return err
+	}
+	cols := []int{l.check.col.index}
+	add := func(i int, hit bool, score float64) {
+		if hit {
+			l.listing.Add(score, b.FirstRow+int64(i), func() report.Row { return RowAt(l.check.env, b, i, cols) })
+		}
+	}
+	if l.found.matchText != nil {
+		eachText(arr, func(i int, s string) {
+			hit, score := l.found.matchText(s)
+			add(i, hit, score)
+		})
+		return nil
+	}
+	v := validOf(arr)
+	if l.check.col.class == classNumber {
+		for i, x := range float64s(arr, &l.scratch.floats) {
+			if v.at(i) {
+				hit, score := l.found.match(x)
+				add(i, hit, score)
+			}
+		}
+		return nil
+	}
+	for i, x := range int64s(arr, &l.scratch.ints) {
+		if v.at(i) {
+			hit, score := l.found.match(float64(x))
+			add(i, hit, score)
+		}
+	}
+	return nil
+}
+
+// Merge adds other's listing to l.
+func (l *distributionLister) Merge(other Accumulator) error {
+	o, ok := other.(*distributionLister)
+	if !ok || o.check != l.check {
+		return errMerge(l.check.rule, l, other)
+	}
+	l.listing.Merge(&o.listing)
+	return nil
+}
+
+// Finish adds the listed rows to the finding's result.
+func (l *distributionLister) Finish() report.Result {
+	res := l.found.result
+	res.Offending = offending(l.listing.Count, &l.listing)
+	return res
+}
