@@ -13,6 +13,9 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"path/filepath"
+	"slices"
+	"strings"
 
 	"github.com/assay-project/assay/engine"
 	"github.com/assay-project/assay/engine/report"
@@ -103,17 +106,47 @@ func runExplain(args []string, stdout, stderr io.Writer) int {
 type checkFlags struct {
 	format        string
 	output        string
+	reports       reportList
 	strict        bool
 	maxRowsListed int
 	color         string
+}
+
+// formats are the report formats --format and --report take.
+var formats = []string{"text", "json", "junit", "markdown"}
+
+// reportSpec is one --report FORMAT=PATH.
+type reportSpec struct {
+	format, path string
+}
+
+// reportList collects the --report flags.
+type reportList []reportSpec
+
+func (l *reportList) String() string {
+	var parts []string
+	for _, r := range *l {
+		parts = append(parts, r.format+"="+r.path)
+	}
+	return strings.Join(parts, " ")
+}
+
+func (l *reportList) Set(s string) error {
+	format, path, ok := strings.Cut(s, "=")
+	if !ok || format == "" || path == "" {
+		return fmt.Errorf("want FORMAT=PATH, such as junit=assay.xml")
+	}
+	*l = append(*l, reportSpec{format: format, path: path})
+	return nil
 }
 
 func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	var f checkFlags
 	fs := flag.NewFlagSet("check", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	fs.StringVar(&f.format, "format", "text", "report format: text or json")
+	fs.StringVar(&f.format, "format", "text", "report format on standard output (or --output): "+orList(formats))
 	fs.StringVar(&f.output, "output", "", "write the report to this file (atomically) instead of standard output")
+	fs.Var(&f.reports, "report", "also write a report in FORMAT to PATH (atomically), as FORMAT=PATH; repeatable")
 	fs.BoolVar(&f.strict, "strict", false, "count a warning as a failure in the exit code")
 	fs.IntVar(&f.maxRowsListed, "max-rows-listed", engine.DefaultMaxRowsListed, "offending rows listed per rule (counts stay exact)")
 	fs.StringVar(&f.color, "color", "auto", "colour in text reports: auto (terminal, unless NO_COLOR is set), always or never")
@@ -129,14 +162,8 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 		fs.Usage()
 		return exitTrouble
 	}
-	if f.format != "text" && f.format != "json" {
-		return trouble(stderr, fmt.Errorf("unknown --format %q: use text or json", f.format))
-	}
-	if f.color != "auto" && f.color != "always" && f.color != "never" {
-		return trouble(stderr, fmt.Errorf("unknown --color %q: use auto, always or never", f.color))
-	}
-	if f.maxRowsListed < 0 {
-		return trouble(stderr, fmt.Errorf("--max-rows-listed must be 0 or more, not %d", f.maxRowsListed))
+	if err := f.validate(); err != nil {
+		return trouble(stderr, err)
 	}
 
 	pol, err := rules.Load(pos[0])
@@ -153,21 +180,87 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 		return trouble(stderr, err)
 	}
 
-	render := func(w io.Writer) error {
-		if f.format == "json" {
-			return report.WriteJSON(w, rep)
+	var out outputs
+	for _, r := range f.reports {
+		err := out.write(r.path, func(file *os.File) error { return render(file, r.format, rep, f, false) })
+		if err != nil {
+			out.discard()
+			return trouble(stderr, err)
 		}
-		return report.WriteText(w, rep, report.TextOptions{Color: wantColor(f.color, f.output, stdout)})
 	}
 	if f.output != "" {
-		err = writeAtomic(f.output, func(file *os.File) error { return render(file) })
-	} else {
-		err = render(stdout)
+		if err := out.write(f.output, func(file *os.File) error { return render(file, f.format, rep, f, false) }); err != nil {
+			out.discard()
+			return trouble(stderr, err)
+		}
 	}
-	if err != nil {
+	if err := out.commit(); err != nil {
 		return trouble(stderr, err)
 	}
+	if f.output == "" {
+		if err := render(stdout, f.format, rep, f, wantColor(f.color, stdout)); err != nil {
+			return trouble(stderr, err)
+		}
+	}
 	return exitCode(rep, f.strict)
+}
+
+// validate checks the flags that need no data, so that a mistake costs no
+// run.
+func (f *checkFlags) validate() error {
+	if !slices.Contains(formats, f.format) {
+		return fmt.Errorf("unknown --format %q: use %s", f.format, orList(formats))
+	}
+	if f.color != "auto" && f.color != "always" && f.color != "never" {
+		return fmt.Errorf("unknown --color %q: use auto, always or never", f.color)
+	}
+	if f.maxRowsListed < 0 {
+		return fmt.Errorf("--max-rows-listed must be 0 or more, not %d", f.maxRowsListed)
+	}
+	paths := map[string]string{} // cleaned path -> the flag that names it
+	claim := func(flagText, path string) error {
+		key := filepath.Clean(path)
+		if other, ok := paths[key]; ok {
+			return fmt.Errorf("%s and %s name the same file: give each output its own path", other, flagText)
+		}
+		paths[key] = flagText
+		return nil
+	}
+	if f.output != "" {
+		if err := claim("--output "+f.output, f.output); err != nil {
+			return err
+		}
+	}
+	for _, r := range f.reports {
+		if !slices.Contains(formats, r.format) {
+			return fmt.Errorf("unknown report format %q in --report %s=%s: use %s", r.format, r.format, r.path, orList(formats))
+		}
+		if err := claim("--report "+r.format+"="+r.path, r.path); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// render writes the report in format to w.
+func render(w io.Writer, format string, rep *report.Report, f checkFlags, color bool) error {
+	switch format {
+	case "json":
+		return report.WriteJSON(w, rep)
+	case "junit":
+		return report.WriteJUnit(w, rep, report.JUnitOptions{Strict: f.strict})
+	case "markdown":
+		return report.WriteMarkdown(w, rep)
+	}
+	return report.WriteText(w, rep, report.TextOptions{Color: color})
+}
+
+// orList writes "a, b or c".
+func orList(words []string) string {
+	if len(words) == 1 {
+		return words[0]
+	}
+	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
 }
 
 // exitCode maps a report to the process's exit code.
@@ -183,12 +276,12 @@ func exitCode(rep *report.Report, strict bool) int {
 	return exitPass
 }
 
-// wantColor decides whether a text report gets colour: never into a file,
+// wantColor decides whether a text report on standard output gets colour:
 // never when NO_COLOR is set (https://no-color.org), and with "auto" only
-// on a terminal.
-func wantColor(mode, output string, stdout io.Writer) bool {
+// on a terminal. Reports written to files never get colour.
+func wantColor(mode string, stdout io.Writer) bool {
 	switch {
-	case mode == "never" || output != "":
+	case mode == "never":
 		return false
 	case mode == "always":
 		return true

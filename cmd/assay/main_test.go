@@ -4,10 +4,12 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"encoding/xml"
 	"flag"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -211,11 +213,11 @@ func TestBinaryFormats(t *testing.T) {
 	}
 }
 
-// TestGolden compares the text and JSON reports of the failing fixture
+// TestGolden compares the reports of the failing fixture in every format
 // with golden files (run with -update to rewrite them). The start time and
 // duration are blanked, as they change with every run.
 func TestGolden(t *testing.T) {
-	for _, format := range []string{"text", "json"} {
+	for _, format := range formats {
 		t.Run(format, func(t *testing.T) {
 			var out, errb bytes.Buffer
 			code := run(context.Background(), []string{"check", pol, "testdata/soil/bad.csv", "--format", format}, nil, &out, &errb)
@@ -223,8 +225,11 @@ func TestGolden(t *testing.T) {
 				t.Fatalf("exit code %d, stderr %s", code, errb.String())
 			}
 			got := out.Bytes()
-			if format == "json" {
+			switch format {
+			case "json":
 				got = blankTimes(t, got)
+			case "junit":
+				got = xmlTimes.ReplaceAll(got, []byte(`$1="(blanked)"`))
 			}
 			golden := filepath.Join("testdata", "soil", "bad."+format+".golden")
 			if *update {
@@ -242,6 +247,9 @@ func TestGolden(t *testing.T) {
 		})
 	}
 }
+
+// xmlTimes matches the time attributes of a JUnit report.
+var xmlTimes = regexp.MustCompile(`\b(time|timestamp)="[^"]*"`)
 
 func blankTimes(t *testing.T, data []byte) []byte {
 	t.Helper()
@@ -332,4 +340,97 @@ func writeIPC(t *testing.T, filePath, streamPath string) {
 		t.Fatal(err)
 	}
 	s.Close()
+}
+
+// TestReports writes every format in one run with --report, beside the
+// report on standard output, and checks each file's content.
+func TestReports(t *testing.T) {
+	dir := t.TempDir()
+	path := func(name string) string { return filepath.Join(dir, name) }
+	got := assay(t, "", "check", pol, "testdata/soil/bad.csv",
+		"--report", "junit="+path("assay.xml"), "--report", "markdown="+path("summary.md"),
+		"--report", "json="+path("report.json"), "--report", "text="+path("report.txt"),
+		"--format", "json", "--output", path("out.json"))
+	if got.code != 1 || got.stdout != "" {
+		t.Fatalf("exit code %d, stdout %q, stderr %s", got.code, got.stdout, got.stderr)
+	}
+	read := func(name string) []byte {
+		t.Helper()
+		data, err := os.ReadFile(path(name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return data
+	}
+	var doc struct {
+		Failures int `xml:"failures,attr"`
+	}
+	if err := xml.Unmarshal(read("assay.xml"), &doc); err != nil || doc.Failures != 6 {
+		t.Errorf("assay.xml: %d failures (error %v), want 6", doc.Failures, err)
+	}
+	if md := string(read("summary.md")); !strings.HasPrefix(md, "### assay: FAIL") {
+		t.Errorf("summary.md starts %.40q", md)
+	}
+	for _, name := range []string{"report.json", "out.json"} {
+		var rep struct{ Verdict string }
+		if err := json.Unmarshal(read(name), &rep); err != nil || rep.Verdict != "fail" {
+			t.Errorf("%s: verdict %q (error %v), want fail", name, rep.Verdict, err)
+		}
+	}
+	if txt := string(read("report.txt")); !strings.Contains(txt, "verdict: FAIL") || strings.Contains(txt, "\x1b[") {
+		t.Errorf("report.txt lacks the verdict or has colour:\n%s", txt)
+	}
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(entries) != 5 {
+		t.Errorf("folder holds %d files, want the 5 reports and no temporary file", len(entries))
+	}
+
+	// Standard output keeps its report when --report writes files.
+	got = assay(t, "", "check", pol, "testdata/soil/warn.csv", "--report", "markdown="+path("warn.md"))
+	if got.code != 0 || !strings.Contains(got.stdout, "verdict: WARN") {
+		t.Errorf("exit code %d, stdout:\n%s", got.code, got.stdout)
+	}
+	if md := string(read("warn.md")); !strings.Contains(md, "| WARN | `columns.moisture_pct.nulls` |") {
+		t.Errorf("warn.md:\n%s", md)
+	}
+}
+
+// TestReportTrouble checks that bad --report flags and runs that end in
+// trouble exit 2 and write no file at all.
+func TestReportTrouble(t *testing.T) {
+	dir := t.TempDir()
+	xmlPath := filepath.Join(dir, "assay.xml")
+	tests := []struct {
+		name string
+		args []string
+		want string // in stderr
+	}{
+		{"unknown format", []string{"--report", "html=" + filepath.Join(dir, "out.html")}, `unknown report format "html"`},
+		{"no path", []string{"--report", "junit"}, "FORMAT=PATH"},
+		{"same path twice", []string{"--report", "junit=" + xmlPath, "--output", xmlPath}, "name the same file"},
+		{"unreadable data", []string{"--report", "junit=" + xmlPath, "--report", "markdown=" + filepath.Join(dir, "s.md"), "testdata/soil/ragged.csv"}, "ragged.csv:3"},
+		{"missing folder", []string{"--report", "junit=" + xmlPath, "--report", "markdown=" + filepath.Join(dir, "no", "s.md")}, "s.md"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			args := append([]string{"check", pol}, tt.args...)
+			if !strings.HasSuffix(args[len(args)-1], ".csv") {
+				args = append(args, "testdata/soil/bad.csv")
+			}
+			got := assay(t, "", args...)
+			if got.code != 2 || !strings.Contains(got.stderr, tt.want) {
+				t.Errorf("exit code %d, stderr %q; want 2 and %q", got.code, got.stderr, tt.want)
+			}
+			entries, err := os.ReadDir(dir)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, e := range entries {
+				t.Errorf("%s was written", e.Name())
+			}
+		})
+	}
 }
