@@ -2,7 +2,10 @@
 // Arrow record batches that keep each row's data-row number and origin.
 package source
 
-import "github.com/apache/arrow-go/v18/arrow"
+import (
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+)
 
 // Batch is a slice of rows from one input file.
 //
@@ -24,6 +27,14 @@ type Batch struct {
 	// parse as the column's type. Such cells are null in Record; Invalid
 	// tells them apart from cells that were missing. Nil when there are none.
 	Invalid map[int][]InvalidCell
+	// Text holds, for CSV inputs read by Set.ScanText, every cell as written
+	// in the file (unquoted, before null tokens and parsing): Text[k] belongs
+	// to Record.Column(k). Nil otherwise.
+	Text []*array.String
+	// Offset is how many bytes of the batch's file the reader had consumed
+	// when it made the batch, as stored (compressed bytes for gzip), for
+	// progress displays; 0 for Parquet and Arrow inputs.
+	Offset int64
 }
 
 // InvalidCell is a cell that did not parse as its column's type.
@@ -32,12 +43,16 @@ type InvalidCell struct {
 	Text string // the text as read
 }
 
-// Release drops the batch's reference to its record.
+// Release drops the batch's reference to its record and texts.
 func (b *Batch) Release() {
 	if b.Record != nil {
 		b.Record.Release()
 		b.Record = nil
 	}
+	for _, t := range b.Text {
+		t.Release()
+	}
+	b.Text = nil
 }
 
 // Line returns the file line of row i of the batch, or 0 when unknown.

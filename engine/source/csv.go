@@ -24,6 +24,19 @@ type csvFile struct {
 	sp   *splitter
 	rows int64 // data rows read so far
 	size int64 // bytes in the file
+	read *counter
+}
+
+// counter counts the bytes read through it.
+type counter struct {
+	r io.Reader
+	n int64
+}
+
+func (c *counter) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	c.n += int64(n)
+	return n, err
 }
 
 // openCSV opens in, ready to read its first record.
@@ -32,14 +45,14 @@ func (s *Set) openCSV(in *input) (*csvFile, error) {
 	if err != nil {
 		return nil, err
 	}
-	c := &csvFile{in: in, f: f, size: size}
-	var r io.Reader = f
+	c := &csvFile{in: in, f: f, size: size, read: &counter{r: f}}
+	var r io.Reader = c.read
 	bufSize := s.opts.bufferSize
 	if bufSize == 0 {
 		bufSize = defaultBufferSize
 	}
 	if in.Gzip {
-		c.gz, err = gzip.NewReader(f)
+		c.gz, err = gzip.NewReader(c.read)
 		if err != nil {
 			c.close()
 			return nil, &Error{Path: in.name, Err: err,
@@ -231,6 +244,18 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 			texts = append(texts, cols[k])
 		}
 	}
+	// With ScanText, raw[k] keeps the cells of cols[k] as written: a string
+	// column with no null token.
+	var raw, rawSlots []*column
+	if s.text {
+		raw, rawSlots = make([]*column, len(proj)), make([]*column, width)
+		verbatim := newNullSet(nil)
+		for k, sc := range proj {
+			raw[k] = newColumn(kString, verbatim, s.opts.Allocator)
+			rawSlots[in.pos[sc]] = raw[k]
+		}
+		texts = append(texts, raw...)
+	}
 	batchRows := s.opts.BatchRows
 	capRows := batchRows // room for rows in a batch's buffers
 	if !in.Gzip {
@@ -245,12 +270,15 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 		for _, col := range cols {
 			col.start(capRows)
 		}
+		for _, col := range raw {
+			col.start(capRows)
+		}
 		lines := make([]int64, 0, capRows)
 		for len(lines) < capRows {
 			if !pending {
 				ok, err := c.record(width, noHeader)
 				if err != nil {
-					for _, col := range cols {
+					for _, col := range append(cols, raw...) {
 						col.release()
 					}
 					return c.rows, err
@@ -265,6 +293,9 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 				if col := slots[j]; col != nil {
 					col.append(c.sp.field(f))
 				}
+				if raw != nil && rawSlots[j] != nil {
+					rawSlots[j].append(c.sp.field(f))
+				}
 			}
 			lines = append(lines, c.sp.recLine)
 			if full(texts) {
@@ -273,7 +304,7 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 		}
 		n := len(lines)
 		if n == 0 {
-			for _, col := range cols {
+			for _, col := range append(cols, raw...) {
 				col.release()
 			}
 			break
@@ -295,6 +326,10 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 			FirstRow: first + c.rows - int64(n),
 			Lines:    lines,
 			Invalid:  invalid,
+			Offset:   c.read.n,
+		}
+		for _, col := range raw {
+			b.Text = append(b.Text, col.finish().(*array.String))
 		}
 		for _, a := range arrs {
 			a.Release()

@@ -61,6 +61,7 @@ type File struct {
 	Format Format
 	Gzip   bool  // gzip-compressed CSV
 	Rows   int64 // data rows; -1 until known (Parquet knows at Open, others after a full Scan)
+	Size   int64 // bytes as stored (for standard input, of its temporary copy)
 }
 
 // Set is a list of input files read as one table: the same columns in every
@@ -72,6 +73,7 @@ type Set struct {
 	inputs []*input
 	schema *arrow.Schema
 	spool  string // the copy of standard input, removed by Close
+	text   bool   // the scan under way keeps CSV cell texts (ScanText)
 }
 
 // input is one file of a Set and how to read it.
@@ -291,6 +293,7 @@ func (s *Set) inspect(in *input) error {
 		return err
 	}
 	defer f.Close()
+	in.Size = size
 	if size == 0 {
 		return errorf(in.name, "the file is empty (0 bytes); expected CSV with a header line, Parquet or Arrow")
 	}
@@ -535,6 +538,15 @@ func (s *Set) Scan(ctx context.Context, columns []string, fn func(*Batch) error)
 		first += rows
 	}
 	return nil
+}
+
+// ScanText is Scan with the cells of CSV inputs also kept as written, in
+// Batch.Text, for a caller that copies rows out as they were (at the cost
+// of a second copy of their text).
+func (s *Set) ScanText(ctx context.Context, columns []string, fn func(*Batch) error) error {
+	s.text = true
+	defer func() { s.text = false }()
+	return s.Scan(ctx, columns, fn)
 }
 
 // project maps column names to their indices in the schema and returns the
