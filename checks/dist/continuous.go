@@ -27,10 +27,15 @@ type model interface {
 }
 
 // normal wraps distuv.Normal: density exp(−(x−μ)²/(2σ²)) / (σ√(2π)).
+// distuv's survival is ½(1 − erf(z/√2)), which loses the upper tail to
+// cancellation (0 beyond about 8.3 sd); it is taken here as ½ erfc(z/√2),
+// the mirror of distuv's CDF.
 type normal struct{ d distuv.Normal }
 
-func (m normal) CDF(x float64) float64      { return m.d.CDF(x) }
-func (m normal) Survival(x float64) float64 { return m.d.Survival(x) }
+func (m normal) CDF(x float64) float64 { return m.d.CDF(x) }
+func (m normal) Survival(x float64) float64 {
+	return 0.5 * math.Erfc((x-m.d.Mu)/(m.d.Sigma*math.Sqrt2))
+}
 func (m normal) Quantile(p float64) float64 { return m.d.Quantile(p) }
 func (m normal) LogProb(x float64) float64  { return m.d.LogProb(x) }
 func (m normal) Rand(r *rand.Rand) float64  { return m.d.Mu + m.d.Sigma*r.NormFloat64() }

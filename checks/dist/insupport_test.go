@@ -56,3 +56,20 @@ func TestInSupportAgreesWithCheck(t *testing.T) {
 		t.Errorf("categorical: InSupport gives a test (%q)", need)
 	}
 }
+
+// TestNormalUpperTail: the normal survival keeps its digits far in the
+// upper tail, where 1 − CDF is 0. The reference is R 4.2.2,
+// pnorm(9, lower.tail = FALSE) = 1.1285884059538408e-19.
+func TestNormalUpperTail(t *testing.T) {
+	d, err := mustLookup(t, "normal").New(map[string]float64{"mean": 2, "sd": 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	const want = 1.1285884059538408e-19
+	if got := d.Survival(2 + 9*3); math.Abs(got-want) > 1e-12*want {
+		t.Errorf("Survival(mean + 9 sd) = %v, want %v", got, want)
+	}
+	if got := d.CDF(2 - 9*3); math.Abs(got-want) > 1e-12*want {
+		t.Errorf("CDF(mean − 9 sd) = %v, want %v", got, want)
+	}
+}
