@@ -170,12 +170,35 @@ func (ft *fitting) test() error {
 // chiSquare tests counts against cell probabilities; the distance is the
 // total variation distance.
 func (ft *fitting) chiSquare(obs []int64, probs []float64) error {
-	cs, err := gof.ChiSquare(obs, probs, gof.ChiSquareOptions{Estimated: ft.best.K})
-	if err != nil {
-		return err
+	var err error
+	ft.res, ft.df, ft.dist, ft.note, err = chiSquare(obs, probs, ft.best.K, ft.check.spec.Measure)
+	return err
+}
+
+// chiSquare runs Pearson's test of counts against cell probabilities, k
+// parameters estimated, and gives the total variation distance. When the
+// test cannot run (too few values to leave a degree of freedom after
+// pooling) and the rule judges the distance, the distance is still given,
+// the p-value is NaN, and note says why.
+func chiSquare(obs []int64, probs []float64, k int, m rules.DistMeasure) (gof.Result, int, float64, string, error) {
+	cs, err := gof.ChiSquare(obs, probs, gof.ChiSquareOptions{Estimated: k})
+	if err == nil {
+		return cs.Result, cs.DF, cs.Effect.Value, "", nil
 	}
-	ft.res, ft.df, ft.dist = cs.Result, cs.DF, cs.Effect.Value
-	return nil
+	if m == rules.MeasurePValue {
+		return gof.Result{}, 0, 0, "", err
+	}
+	var n int64
+	for _, o := range obs {
+		n += o
+	}
+	var tv float64
+	for i, o := range obs {
+		tv += math.Abs(float64(o)/float64(n) - probs[i])
+	}
+	nan := math.NaN()
+	res := gof.Result{Test: gof.ChiSq, Statistic: gof.Statistic{Name: "X2", Value: nan}, PValue: nan, N: int(n)}
+	return res, 0, tv / 2, "chi-square could not run: " + err.Error(), nil
 }
 
 // benford tests the leading digits of the sample against Benford's law.
@@ -382,9 +405,7 @@ func (ft *fitting) finding(fits []dist.Fit, skipped []report.Candidate) *distFin
 		measure = ft.res.PValue
 	}
 	res := NewResult(c.rule, measure)
-	res.Statistic = &report.Statistic{Name: ft.res.Statistic.Name, Value: report.Number(ft.res.Statistic.Value), N: int64(ft.res.N)}
-	p := ft.res.PValue
-	res.PValue = &p
+	res.Statistic, res.PValue = testReport(ft.res)
 	res.Estimates = best.Dist.Params()
 	n := int64(ft.sorted.Len())
 	fit := &report.Fit{
@@ -476,8 +497,8 @@ func (ft *fitting) message() string {
 	case ft.best.K < len(ft.best.Family.Params()):
 		how = "partly given"
 	}
-	msg := fmt.Sprintf("%s %s between %s and %s (%s); %s p-value %s", what, sig(ft.dist), of, distText(ft.best.Dist), how,
-		c.spec.Test, sig(ft.res.PValue))
+	msg := fmt.Sprintf("%s %s between %s and %s (%s); %s", what, sig(ft.dist), of, distText(ft.best.Dist), how,
+		pText(c.spec.Test, ft.res, ft.note))
 	if ft.grid != nil {
 		msg += fmt.Sprintf("; compared at resolution %v", ft.grid.Step)
 	}
@@ -501,13 +522,37 @@ func distText(d dist.Dist) string {
 // sig writes v with four significant digits.
 func sig(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }
 
+// testReport writes a test's statistic and p-value for the report; none
+// when the test did not run.
+func testReport(r gof.Result) (*report.Statistic, *float64) {
+	if math.IsNaN(r.PValue) {
+		return nil, nil
+	}
+	p := r.PValue
+	return &report.Statistic{Name: r.Statistic.Name, Value: report.Number(r.Statistic.Value), N: int64(r.N)}, &p
+}
+
+// pText writes a test's p-value for a message, or why there is none.
+func pText(test rules.DistTest, r gof.Result, note string) string {
+	if math.IsNaN(r.PValue) {
+		return "no p-value (" + note + ")"
+	}
+	return fmt.Sprintf("%s p-value %s", test, sig(r.PValue))
+}
+
 // testMethod writes how a p-value was obtained for the report.
 func testMethod(m gof.Method, note string) report.TestMethod {
 	src := m.Source
-	if note != "" {
+	if note != "" && src != "" {
 		src += "; " + note
+	} else if note != "" {
+		src = note
 	}
-	out := report.TestMethod{Kind: m.Kind.String(), Source: src, Conservative: m.Conservative}
+	kind := "none"
+	if m.Kind != 0 {
+		kind = m.Kind.String()
+	}
+	out := report.TestMethod{Kind: kind, Source: src, Conservative: m.Conservative}
 	if m.Kind == gof.Bootstrap {
 		out.Replicates = m.B
 	}
@@ -701,18 +746,16 @@ func (c *distributionCheck) analyseCategories(st *DistributionState) *distFindin
 			return !listed, 1
 		}}
 	}
-	cs, err := gof.ChiSquare(st.Counts, probs, gof.ChiSquareOptions{})
+	cs, df, tv, note, err := chiSquare(st.Counts, probs, 0, c.spec.Measure)
 	if err != nil {
 		return &distFinding{result: Failed(r, fmt.Errorf("chi-square: %w", err))}
 	}
-	measure := cs.Effect.Value
+	measure := tv
 	if c.spec.Measure == rules.MeasurePValue {
 		measure = cs.PValue
 	}
 	res := NewResult(r, measure)
-	res.Statistic = &report.Statistic{Name: cs.Statistic.Name, Value: report.Number(cs.Statistic.Value), N: int64(cs.N)}
-	p := cs.PValue
-	res.PValue = &p
+	res.Statistic, res.PValue = testReport(cs)
 	res.Estimates = map[string]float64{}
 	counts := make([]float64, len(st.Counts))
 	for i, l := range labels {
@@ -720,14 +763,14 @@ func (c *distributionCheck) analyseCategories(st *DistributionState) *distFindin
 		counts[i] = float64(st.Counts[i])
 	}
 	ll := c.shares.LogLik(counts)
-	fit.Method = testMethod(cs.Method, "")
-	fit.DF = cs.DF
-	fit.Distance = report.Number(cs.Effect.Value)
+	fit.Method = testMethod(cs.Method, note)
+	fit.DF = df
+	fit.Distance = report.Number(tv)
 	fit.Candidates = []report.Candidate{{Family: "categorical", Estimates: res.Estimates, LogLik: report.Number(ll),
 		AIC: report.Number(-2 * ll), BIC: report.Number(-2 * ll)}}
 	res.Fit = fit
-	res.Message = fmt.Sprintf("TV distance %s from the expected shares over %s values; chi-square p-value %s",
-		sig(cs.Effect.Value), thousands(st.N), sig(cs.PValue))
+	res.Message = fmt.Sprintf("TV distance %s between %s values and the expected shares; %s",
+		sig(tv), thousands(st.N), pText(c.spec.Test, cs, note))
 	f := &distFinding{result: res}
 	if res.Verdict == report.Pass {
 		return f
