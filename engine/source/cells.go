@@ -174,7 +174,10 @@ func parseFloat(b []byte) (float64, bool) {
 	// strconv copies the text into any error it returns, so the string view
 	// does not outlive b.
 	f, err := strconv.ParseFloat(unsafe.String(unsafe.SliceData(b), len(b)), 64)
-	return f, err == nil
+	if err != nil {
+		return 0, false
+	}
+	return f, true
 }
 
 // parseBool parses b by the boolean grammar.

@@ -48,9 +48,10 @@ func (ns *nullSet) has(b []byte) bool {
 // float64 and timestamp as 8-byte values, date as 4-byte days, booleans as a
 // bitmap, strings as int32 offsets plus bytes).
 type column struct {
-	kind  kind
-	mem   memory.Allocator
-	nulls *nullSet
+	kind      kind
+	mem       memory.Allocator
+	nulls     *nullSet
+	nullFirst bool // test for a null token before parsing; else only when parsing fails
 
 	n, nullCount int
 	valid        *memory.Buffer
@@ -67,7 +68,17 @@ type column struct {
 }
 
 func newColumn(k kind, nulls *nullSet, mem memory.Allocator) *column {
-	return &column{kind: k, nulls: nulls, mem: mem}
+	c := &column{kind: k, nulls: nulls, mem: mem, nullFirst: k == kString}
+	// When no null token parses as the kind, as none of the default ones
+	// does, a cell that parses is no null token, and the test can wait
+	// until parsing fails.
+	fit := [...]uint8{kInt: fitInt, kFloat: fitFloat, kBool: fitBool, kTimestamp: fitTimestamp, kDate: fitDate}[k]
+	for _, t := range nulls.tokens {
+		if fits([]byte(t))&fit != 0 {
+			c.nullFirst = true
+		}
+	}
+	return c
 }
 
 // start readies the column for a batch of up to rows rows.
@@ -111,48 +122,26 @@ func zeroed(mem memory.Allocator, n int) *memory.Buffer {
 func (c *column) append(b []byte) {
 	i := c.n
 	c.n++
-	if c.nulls.has(b) {
+	if c.nullFirst && c.nulls.has(b) {
 		c.nullCount++
 		if c.kind == kString {
 			c.i32[i+1] = int32(c.dlen)
 		}
 		return
 	}
+	ok := true
 	switch c.kind {
 	case kInt:
-		v, ok := parseInt(b)
-		if !ok {
-			c.bad(i, b)
-			return
-		}
-		c.i64[i] = v
+		c.i64[i], ok = parseInt(b)
 	case kFloat:
-		v, ok := parseFloat(b)
-		if !ok {
-			c.bad(i, b)
-			return
-		}
-		c.f64[i] = v
+		c.f64[i], ok = parseFloat(b)
 	case kTimestamp:
-		v, ok := parseTimestamp(b)
-		if !ok {
-			c.bad(i, b)
-			return
-		}
-		c.i64[i] = v
+		c.i64[i], ok = parseTimestamp(b)
 	case kDate:
-		v, ok := parseDate(b)
-		if !ok {
-			c.bad(i, b)
-			return
-		}
-		c.i32[i] = v
+		c.i32[i], ok = parseDate(b)
 	case kBool:
-		v, ok := parseBool(b)
-		if !ok {
-			c.bad(i, b)
-			return
-		}
+		var v bool
+		v, ok = parseBool(b)
 		if v {
 			bitutil.SetBit(c.vbits, i)
 		}
@@ -166,13 +155,15 @@ func (c *column) append(b []byte) {
 		c.dlen = end
 		c.i32[i+1] = int32(end)
 	}
+	if !ok {
+		// Null either way; invalid unless a null token.
+		c.nullCount++
+		if c.nullFirst || !c.nulls.has(b) {
+			c.invalid = append(c.invalid, InvalidCell{Row: i, Text: string(b)})
+		}
+		return
+	}
 	bitutil.SetBit(c.bits, i)
-}
-
-// bad records cell i, text b, as null and invalid.
-func (c *column) bad(i int, b []byte) {
-	c.nullCount++
-	c.invalid = append(c.invalid, InvalidCell{Row: i, Text: string(b)})
 }
 
 // finish returns the column's cells as an array and lets go of the batch's

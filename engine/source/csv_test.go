@@ -167,6 +167,17 @@ batch source=0 first=1 rows=2
 file nu.csv csv gzip=false rows=2
 `,
 	}, {
+		name:  "null tokens that look like values",
+		files: []inFile{{"nv.csv", "n,b\n-999,TRUE\n5,true\n,x\n"}},
+		opts:  Options{Nulls: []string{"-999", "TRUE"}, Types: map[string]arrow.DataType{"n": tInt64, "b": tBoolean}},
+		want: `schema: n:integer b:boolean
+batch source=0 first=1 rows=3
+  row 1 line 2: n=null b=null
+  row 2 line 3: n=5 b=true
+  row 3 line 4: n=!"" b=!"x"
+file nv.csv csv gzip=false rows=3
+`,
+	}, {
 		name:  "no null tokens",
 		files: []inFile{{"nn.csv", "a\n\"\"\nNA\n"}},
 		opts:  Options{Nulls: []string{}},

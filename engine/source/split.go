@@ -2,6 +2,7 @@ package source
 
 import (
 	"bytes"
+	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -48,6 +49,7 @@ type splitter struct {
 
 	// The record last read.
 	fields   []span
+	undo     bool  // some field has doubled quotes to undo
 	recLine  int64 // line on which it starts
 	recStart int
 	recEnd   int
@@ -198,7 +200,10 @@ func (s *splitter) scan() error {
 		}
 		break
 	}
-	s.recLine, s.recStart = line, i
+	s.recLine, s.recStart, s.undo = line, i, false
+	if ok, err := s.plainLine(buf, i, line); ok {
+		return err
+	}
 	var seen byte // OR of the bytes in the record, to spot non-ASCII
 	for {
 		if s.quotes && i < len(buf) && buf[i] == s.quote {
@@ -229,7 +234,7 @@ func (s *splitter) scan() error {
 						return errNeedMore
 					}
 					if j+1 < len(buf) && buf[j+1] == s.quote {
-						doubled = true
+						doubled, s.undo = true, true
 						j += 2
 						continue
 					}
@@ -307,6 +312,54 @@ func (s *splitter) scan() error {
 	}
 }
 
+// plainLine is the fast path of scan for the common record: a whole line
+// in the buffer with no quote character and no NUL byte. Such a line splits
+// at every delimiter, each search a vectorised bytes.IndexByte. It returns
+// false, having done nothing, for any other record.
+func (s *splitter) plainLine(buf []byte, i int, line int64) (bool, error) {
+	n := bytes.IndexByte(buf[i:], '\n')
+	if n < 0 {
+		return false, nil
+	}
+	text := buf[i : i+n]
+	if s.quotes && bytes.IndexByte(text, s.quote) >= 0 || bytes.IndexByte(text, 0) >= 0 {
+		return false, nil
+	}
+	if n > 0 && text[n-1] == '\r' {
+		text = text[:n-1]
+	}
+	start := i
+	for {
+		k := bytes.IndexByte(text, s.delim)
+		if k < 0 {
+			s.fields = append(s.fields, span{start: start, end: start + len(text)})
+			break
+		}
+		s.fields = append(s.fields, span{start: start, end: start + k})
+		start += k + 1
+		text = text[k+1:]
+	}
+	var seen byte
+	if !ascii(buf[i : i+n]) {
+		seen = utf8.RuneSelf
+	}
+	return true, s.finish(start+len(text), i+n+1, line+1, seen)
+}
+
+// ascii reports whether b holds only ASCII bytes, eight at a time.
+func ascii(b []byte) bool {
+	const high = 0x8080808080808080
+	var acc uint64
+	for len(b) >= 8 {
+		acc |= binary.LittleEndian.Uint64(b)
+		b = b[8:]
+	}
+	for _, c := range b {
+		acc |= uint64(c)
+	}
+	return acc&high == 0
+}
+
 // finish ends the record at recEnd, with the next one starting at next on
 // line nextLine: it checks the encoding and undoes doubled quotes.
 func (s *splitter) finish(recEnd, next int, nextLine int64, seen byte) error {
@@ -317,6 +370,9 @@ func (s *splitter) finish(recEnd, next int, nextLine int64, seen byte) error {
 		}
 	}
 	s.pos, s.line = next, nextLine
+	if !s.undo {
+		return nil
+	}
 	for k := range s.fields {
 		f := &s.fields[k]
 		if !f.doubled {
