@@ -17,6 +17,7 @@ import (
 	"fmt"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"sync"
 	"time"
 
@@ -46,6 +47,14 @@ type Options struct {
 	Workers int
 	// Now returns the time a run starts; nil means time.Now. Tests fix it.
 	Now func() time.Time
+	// Gate, when set, receives every row of the data in a last pass, with
+	// the row-level rules it breaks, to split a load into accepted and
+	// rejected rows. The pass runs only when every rule could run; an error
+	// from Gate ends the run with that error.
+	Gate GateFunc
+	// Progress, when set, is called at the start of each pass over the data
+	// and after each batch, from the goroutine that calls Run.
+	Progress func(Progress)
 }
 
 // Run evaluates policy p on the data at paths (files, globs, or "-" for
@@ -78,7 +87,7 @@ func Run(ctx context.Context, p *rules.Policy, paths []string, opts Options) (*r
 	if err != nil {
 		return nil, err
 	}
-	results, err := pl.execute(ctx, set, opts.Workers)
+	results, err := pl.execute(ctx, set, opts)
 	if err != nil {
 		return nil, err
 	}
@@ -140,14 +149,17 @@ func tally(results []report.Result) (report.Verdict, report.Counts) {
 }
 
 // execute streams the data through the plan's checks, with a second pass
-// when some check needs one, and returns the results in rule order.
-func (pl *plan) execute(ctx context.Context, set *source.Set, workers int) ([]report.Result, error) {
+// when some check needs one and a last one for opts.Gate, and returns the
+// results in rule order.
+func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]report.Result, error) {
+	workers := opts.Workers
+	track := newTracker(set, opts.Progress)
 	accs := make([]checks.Accumulator, len(pl.checks))
 	for i, c := range pl.checks {
 		accs[i] = c.NewAccumulator()
 	}
 	broken := make([]error, len(accs))
-	if err := scan(ctx, set, pl.columns, accs, broken, workers); err != nil {
+	if err := scan(ctx, set, pl.columns, accs, broken, workers, track.pass(1, false)); err != nil {
 		return nil, err
 	}
 	second := false
@@ -161,8 +173,17 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, workers int) ([]re
 		}
 	}
 	if second {
-		if err := scan(ctx, set, pl.columns, pass2, broken, workers); err != nil {
+		if err := scan(ctx, set, pl.columns, pass2, broken, workers, track.pass(2, false)); err != nil {
 			return nil, fmt.Errorf("second pass: %w", err)
+		}
+	}
+	if opts.Gate != nil && !slices.ContainsFunc(broken, func(err error) bool { return err != nil }) {
+		n := 2
+		if second {
+			n = 3
+		}
+		if err := pl.gate(ctx, set, accs, workers, opts.Gate, track.pass(n, true)); err != nil {
+			return nil, fmt.Errorf("writing rows: %w", err)
 		}
 	}
 	results := make([]report.Result, 0, len(pl.checks)+len(pl.skipped))
@@ -178,10 +199,11 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, workers int) ([]re
 	return results, nil
 }
 
-// scan feeds every batch to the accumulators, nil ones excepted. The checks
-// are split among workers goroutines that observe each batch side by side;
-// a check whose Observe fails is marked broken and sees no more batches.
-func scan(ctx context.Context, set *source.Set, columns []string, accs []checks.Accumulator, broken []error, workers int) error {
+// scan feeds every batch to the accumulators, nil ones excepted, and then
+// to after, when set. The checks are split among workers goroutines that
+// observe each batch side by side; a check whose Observe fails is marked
+// broken and sees no more batches.
+func scan(ctx context.Context, set *source.Set, columns []string, accs []checks.Accumulator, broken []error, workers int, after func(*source.Batch)) error {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
@@ -192,13 +214,16 @@ func scan(ctx context.Context, set *source.Set, columns []string, accs []checks.
 		}
 		if workers <= 1 {
 			observe(b, accs, broken, 0, 1)
-			return nil
+		} else {
+			var wg sync.WaitGroup
+			for w := range workers {
+				wg.Go(func() { observe(b, accs, broken, w, workers) })
+			}
+			wg.Wait()
 		}
-		var wg sync.WaitGroup
-		for w := range workers {
-			wg.Go(func() { observe(b, accs, broken, w, workers) })
+		if after != nil {
+			after(b)
 		}
-		wg.Wait()
 		return nil
 	})
 }
