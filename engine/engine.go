@@ -51,7 +51,7 @@ type Options struct {
 	// the row-level rules it breaks, to split a load into accepted and
 	// rejected rows. The pass runs only when every rule could run; an error
 	// from Gate ends the run with that error.
-	Gate GateFunc
+	Gate Gate
 	// Progress, when set, is called at the start of each pass over the data
 	// and after each batch, from the goroutine that calls Run.
 	Progress func(Progress)

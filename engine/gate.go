@@ -13,12 +13,18 @@ import (
 	"github.com/assay-project/assay/engine/source"
 )
 
-// GateFunc receives the rows of the data once more after the checks have
-// run (see Options.Gate). b holds every column of the data in the data's
-// order, with the cells of CSV inputs as written (Batch.Text); broken[i]
-// lists the ids of the row-level rules that row i of b breaks, in policy
-// order, and is nil for a row that breaks none. Batches come in data order.
-type GateFunc func(b *source.Batch, broken [][]string) error
+// Gate receives the rows of the data once more after the checks have run
+// (see Options.Gate).
+type Gate interface {
+	// Begin is called once, before any batch, with the schema of the
+	// batches: every column of the data, in the data's order.
+	Begin(schema *arrow.Schema) error
+	// Rows is called with every batch, in data order. b holds every column,
+	// with the cells of CSV inputs as written (Batch.Text); broken[i] lists
+	// the ids of the row-level rules that row i of b breaks, in policy
+	// order, and is nil for a row that breaks none.
+	Rows(b *source.Batch, broken [][]string) error
+}
 
 // judge is a row-level rule's accumulator, asked about each row.
 type judge struct {
@@ -26,11 +32,11 @@ type judge struct {
 	j  checks.RowJudge
 }
 
-// gate reads the data a last time and hands every batch to fn with the
+// gate reads the data a last time and hands every batch to g with the
 // row-level rules each row breaks, as the final accumulators accs judge
 // them. The judges see each batch through the plan's columns, the view they
 // were compiled for; workers goroutines ask them side by side.
-func (pl *plan) gate(ctx context.Context, set *source.Set, accs []checks.Accumulator, workers int, fn GateFunc, after func(*source.Batch)) error {
+func (pl *plan) gate(ctx context.Context, set *source.Set, accs []checks.Accumulator, workers int, g Gate, after func(*source.Batch)) error {
 	var judges []judge
 	for i, a := range accs {
 		if j, ok := a.(checks.RowJudge); ok {
@@ -51,6 +57,9 @@ func (pl *plan) gate(ctx context.Context, set *source.Set, accs []checks.Accumul
 	workers = max(1, min(workers, len(judges)))
 	bad := make([][]bool, len(judges))
 	errs := make([]error, len(judges))
+	if err := g.Begin(schema); err != nil {
+		return err
+	}
 	return set.ScanText(ctx, nil, func(b *source.Batch) error {
 		if err := ctx.Err(); err != nil {
 			return err
@@ -81,7 +90,7 @@ func (pl *plan) gate(ctx context.Context, set *source.Set, accs []checks.Accumul
 				}
 			}
 		}
-		if err := fn(b, broken); err != nil {
+		if err := g.Rows(b, broken); err != nil {
 			return err
 		}
 		if after != nil {

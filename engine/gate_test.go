@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/memory"
 
 	"github.com/assay-project/assay/engine"
@@ -55,6 +56,21 @@ var gateRows = [][]string{
 	7: {"columns.depth_cm.enum", "columns.moisture_pct.minimum"},
 }
 
+// gateFuncs is a Gate made of two functions; begin may be nil.
+type gateFuncs struct {
+	begin func(*arrow.Schema) error
+	rows  func(*source.Batch, [][]string) error
+}
+
+func (g gateFuncs) Begin(s *arrow.Schema) error {
+	if g.begin == nil {
+		return nil
+	}
+	return g.begin(s)
+}
+
+func (g gateFuncs) Rows(b *source.Batch, broken [][]string) error { return g.rows(b, broken) }
+
 func writeGateData(t *testing.T) (*rules.Policy, []string) {
 	t.Helper()
 	dir := t.TempDir()
@@ -83,7 +99,9 @@ func TestGate(t *testing.T) {
 	broke := map[int64][]string{}
 	var texts []string
 	var next int64 = 1
-	opts := engine.Options{Gate: func(b *source.Batch, broken [][]string) error {
+	var schema, batchSchema *arrow.Schema
+	opts := engine.Options{Gate: gateFuncs{func(s *arrow.Schema) error { schema = s; return nil }, func(b *source.Batch, broken [][]string) error {
+		batchSchema = b.Record.Schema()
 		if b.FirstRow != next {
 			t.Errorf("batch starts at row %d, want %d", b.FirstRow, next)
 		}
@@ -100,11 +118,14 @@ func TestGate(t *testing.T) {
 		}
 		next = b.FirstRow + b.Record.NumRows()
 		return nil
-	}}
+	}}}
 	opts.Source.Allocator = mem
 	rep, err := engine.Run(context.Background(), pol, paths, opts)
 	if err != nil {
 		t.Fatal(err)
+	}
+	if schema == nil || !schema.Equal(batchSchema) {
+		t.Errorf("Begin had schema %v, the batches %v", schema, batchSchema)
 	}
 	if next-1 != rep.Rows || rep.Rows != 7 {
 		t.Fatalf("gate saw %d rows, the report %d, want 7", next-1, rep.Rows)
@@ -156,7 +177,7 @@ func TestGateProgress(t *testing.T) {
 	}
 	var got []engine.Progress
 	opts := engine.Options{
-		Gate:     func(*source.Batch, [][]string) error { return nil },
+		Gate:     gateFuncs{rows: func(*source.Batch, [][]string) error { return nil }},
 		Progress: func(p engine.Progress) { got = append(got, p) },
 	}
 	if _, err := engine.Run(context.Background(), pol, paths, opts); err != nil {
@@ -194,7 +215,7 @@ func TestGateError(t *testing.T) {
 	pol, paths := writeGateData(t)
 	full := errors.New("disk full")
 	_, err := engine.Run(context.Background(), pol, paths, engine.Options{
-		Gate: func(*source.Batch, [][]string) error { return full },
+		Gate: gateFuncs{rows: func(*source.Batch, [][]string) error { return full }},
 	})
 	if !errors.Is(err, full) || !strings.Contains(err.Error(), "writing rows") {
 		t.Errorf("Run returned %v, want the gate's error", err)
