@@ -68,6 +68,8 @@ func TestErrors(t *testing.T) {
 			opts: Options{NoHeader: true}, line: 2, row: 2},
 		{name: "unclosed quote", files: []inFile{{"hives.csv", "a,b\n1,2\n3,\"open\n4,5\n6,7\n"}},
 			line: 3, row: 2, column: "b"},
+		{name: "unclosed quote opened on the second line of a row",
+			files: []inFile{{"hives.csv", "a,b,c\n1,\"x\ny\",\"open\n2,3,4\n"}}, line: 3, row: 1, column: "c"},
 		{name: "unclosed quote in the header", files: []inFile{{"hives.csv", "a,\"b\n1,2\n"}}, line: 1},
 		{name: "text after a closing quote", files: []inFile{{"hives.csv", "a,b\n1,\"x\"y\n"}}, line: 2, row: 1, column: "b"},
 		{name: "invalid UTF-8", files: []inFile{{"hives.csv", "a,b\n1,ok\n2,caf\xe9\n"}}, line: 3, row: 2, column: "b"},
