@@ -216,6 +216,12 @@ func reportRates(b *testing.B, rows int64) {
 // a 10000-row sample for inference) and a full Scan of all columns.
 func BenchmarkCSVSource(b *testing.B) {
 	path, _ := benchFiles(b)
+	benchSource(b, path)
+}
+
+// benchSource opens path and scans all its columns, b.N times.
+func benchSource(b *testing.B, path string) {
+	b.Helper()
 	b.SetBytes(fileSize(b, path))
 	b.ReportAllocs()
 	var rows int64
@@ -231,7 +237,7 @@ func BenchmarkCSVSource(b *testing.B) {
 		}
 		s.Close()
 		if got := s.Schema(); !got.Equal(benchSchema) {
-			b.Fatalf("inferred schema %v", got)
+			b.Fatalf("schema %v; want %v", got, benchSchema)
 		}
 	}
 	reportRates(b, rows)
@@ -332,22 +338,7 @@ func BenchmarkCSVArrowReader(b *testing.B) {
 // file (Snappy, row groups of 131072 rows); bytes are those of the file.
 func BenchmarkParquetSource(b *testing.B) {
 	_, path := benchFiles(b)
-	b.SetBytes(fileSize(b, path))
-	b.ReportAllocs()
-	var rows int64
-	for b.Loop() {
-		s, err := Open([]string{path}, Options{})
-		if err != nil {
-			b.Fatal(err)
-		}
-		rows = 0
-		err = s.Scan(context.Background(), nil, func(bt *Batch) error { rows += bt.Record.NumRows(); return nil })
-		if err != nil {
-			b.Fatal(err)
-		}
-		s.Close()
-	}
-	reportRates(b, rows)
+	benchSource(b, path)
 }
 
 func fileSize(b *testing.B, path string) int64 {
