@@ -18,6 +18,7 @@ import (
 	"strings"
 
 	"github.com/assay-project/assay/engine"
+	"github.com/assay-project/assay/engine/gate"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/rules"
 )
@@ -110,6 +111,8 @@ type checkFlags struct {
 	strict        bool
 	maxRowsListed int
 	color         string
+	accepted      string
+	rejected      string
 }
 
 // formats are the report formats --format and --report take.
@@ -150,6 +153,8 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	fs.BoolVar(&f.strict, "strict", false, "count a warning as a failure in the exit code")
 	fs.IntVar(&f.maxRowsListed, "max-rows-listed", engine.DefaultMaxRowsListed, "offending rows listed per rule (counts stay exact)")
 	fs.StringVar(&f.color, "color", "auto", "colour in text reports: auto (terminal, unless NO_COLOR is set), always or never")
+	fs.StringVar(&f.accepted, "accepted", "", "write the rows that break no row-level rule to this .csv or .parquet file (atomically)")
+	fs.StringVar(&f.rejected, "rejected", "", "write the rows that break a row-level rule to this .csv or .parquet file (atomically), with a column naming the rules")
 	fs.Usage = func() {
 		fmt.Fprintln(stderr, "usage: assay check POLICY [DATA...] [flags]\n\nflags:")
 		fs.PrintDefaults()
@@ -175,12 +180,35 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 		opts.MaxRowsListed = -1
 	}
 	opts.Source.Stdin = stdin
-	rep, err := engine.Run(ctx, pol, pos[1:], opts)
+	g, err := startGate(f.accepted, f.rejected)
 	if err != nil {
 		return trouble(stderr, err)
 	}
+	if g != nil {
+		opts.Gate = g.w
+	}
+	rep, err := engine.Run(ctx, pol, pos[1:], opts)
+	if err != nil {
+		g.discard()
+		return trouble(stderr, err)
+	}
 
+	// The files are written whatever the verdict (the accepted file is the
+	// clean part of a failing batch), but not when a rule could not run:
+	// the split would ignore that rule.
 	var out outputs
+	switch {
+	case g == nil:
+	case rep.Counts.Error > 0:
+		g.discard()
+		fmt.Fprintf(stderr, "assay: %s not written: %d rules could not run\n", strings.Join(g.named(), " and "), rep.Counts.Error)
+	default:
+		if err := g.finish(); err != nil {
+			g.discard()
+			return trouble(stderr, err)
+		}
+		out = append(out, g.files...)
+	}
 	for _, r := range f.reports {
 		err := out.write(r.path, func(file *os.File) error { return render(file, r.format, rep, f, false) })
 		if err != nil {
@@ -196,6 +224,9 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	}
 	if err := out.commit(); err != nil {
 		return trouble(stderr, err)
+	}
+	if g != nil && rep.Counts.Error == 0 {
+		fmt.Fprintf(stderr, "assay: %s\n", g.summary())
 	}
 	if f.output == "" {
 		if err := render(stdout, f.format, rep, f, wantColor(f.color, stdout)); err != nil {
@@ -236,6 +267,17 @@ func (f *checkFlags) validate() error {
 			return fmt.Errorf("unknown report format %q in --report %s=%s: use %s", r.format, r.format, r.path, orList(formats))
 		}
 		if err := claim("--report "+r.format+"="+r.path, r.path); err != nil {
+			return err
+		}
+	}
+	for _, o := range [][2]string{{"--accepted", f.accepted}, {"--rejected", f.rejected}} {
+		if o[1] == "" {
+			continue
+		}
+		if _, err := gate.FormatOf(o[1]); err != nil {
+			return fmt.Errorf("%s %w", o[0], err)
+		}
+		if err := claim(o[0]+" "+o[1], o[1]); err != nil {
 			return err
 		}
 	}
