@@ -420,17 +420,24 @@ func TestReportTrouble(t *testing.T) {
 			if !strings.HasSuffix(args[len(args)-1], ".csv") {
 				args = append(args, "testdata/soil/bad.csv")
 			}
-			got := assay(t, "", args...)
-			if got.code != 2 || !strings.Contains(got.stderr, tt.want) {
-				t.Errorf("exit code %d, stderr %q; want 2 and %q", got.code, got.stderr, tt.want)
-			}
-			entries, err := os.ReadDir(dir)
-			if err != nil {
-				t.Fatal(err)
-			}
-			for _, e := range entries {
-				t.Errorf("%s was written", e.Name())
-			}
+			troubleWritesNothing(t, dir, tt.want, args...)
 		})
+	}
+}
+
+// troubleWritesNothing runs assay with args and checks that it exits 2
+// with want in its standard error and leaves dir empty.
+func troubleWritesNothing(t *testing.T, dir, want string, args ...string) {
+	t.Helper()
+	got := assay(t, "", args...)
+	if got.code != 2 || !strings.Contains(got.stderr, want) {
+		t.Errorf("exit code %d, stderr %q; want 2 and %q", got.code, got.stderr, want)
+	}
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range entries {
+		t.Errorf("%s was written", e.Name())
 	}
 }
