@@ -466,3 +466,22 @@ func TestDistributionCompileErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestDistributionGivenResolution: a step given in the policy is used as
+// written, and values off its grid stop the rule with an error that says
+// so, rather than a verdict on the wrong comparison.
+func TestDistributionGivenResolution(t *testing.T) {
+	xs := draw(500, 10, func(r *rand.Rand) float64 { return math.Round((5+r.NormFloat64())*100) / 100 })
+	spec := distSpec("normal")
+	spec.Resolution = 0.01
+	res := runDist(t, spec, distanceTol, xs)
+	if res.Status != report.OK || res.Fit.Resolution == nil || float64(*res.Fit.Resolution) != 0.01 ||
+		!strings.Contains(res.Fit.Method.Source, "cell boundaries of step 0.01") {
+		t.Errorf("step 0.01: status %s fit %+v (%s%s)", res.Status, res.Fit, res.Message, res.Error)
+	}
+	spec.Resolution = 0.1
+	res = runDist(t, spec, distanceTol, xs)
+	if res.Status != report.Error || !strings.Contains(res.Error, "is not on the grid") {
+		t.Errorf("step 0.1 on data recorded to 0.01: status %s error %q", res.Status, res.Error)
+	}
+}
