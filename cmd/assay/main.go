@@ -16,6 +16,7 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"time"
 
 	"github.com/assay-project/assay/engine"
 	"github.com/assay-project/assay/engine/gate"
@@ -113,6 +114,7 @@ type checkFlags struct {
 	color         string
 	accepted      string
 	rejected      string
+	quiet         bool
 }
 
 // formats are the report formats --format and --report take.
@@ -155,6 +157,7 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	fs.StringVar(&f.color, "color", "auto", "colour in text reports: auto (terminal, unless NO_COLOR is set), always or never")
 	fs.StringVar(&f.accepted, "accepted", "", "write the rows that break no row-level rule to this .csv or .parquet file (atomically)")
 	fs.StringVar(&f.rejected, "rejected", "", "write the rows that break a row-level rule to this .csv or .parquet file (atomically), with a column naming the rules")
+	fs.BoolVar(&f.quiet, "quiet", false, "no progress bar and no line saying where the rows went, on standard error")
 	fs.Usage = func() {
 		fmt.Fprintln(stderr, "usage: assay check POLICY [DATA...] [flags]\n\nflags:")
 		fs.PrintDefaults()
@@ -187,7 +190,15 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	if g != nil {
 		opts.Gate = g.w
 	}
+	var bar *progressBar
+	if showProgress(f.quiet, isTerminal(stderr), os.Getenv) {
+		bar = newProgressBar(stderr, time.Now)
+		opts.Progress = bar.update
+	}
 	rep, err := engine.Run(ctx, pol, pos[1:], opts)
+	if bar != nil {
+		bar.clear()
+	}
 	if err != nil {
 		g.discard()
 		return trouble(stderr, err)
@@ -225,7 +236,7 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	if err := out.commit(); err != nil {
 		return trouble(stderr, err)
 	}
-	if g != nil && rep.Counts.Error == 0 {
+	if g != nil && rep.Counts.Error == 0 && !f.quiet {
 		fmt.Fprintf(stderr, "assay: %s\n", g.summary())
 	}
 	if f.output == "" {
@@ -330,7 +341,12 @@ func wantColor(mode string, stdout io.Writer) bool {
 	case os.Getenv("NO_COLOR") != "":
 		return false
 	}
-	f, ok := stdout.(*os.File)
+	return isTerminal(stdout)
+}
+
+// isTerminal reports whether w is a terminal (a character device).
+func isTerminal(w io.Writer) bool {
+	f, ok := w.(*os.File)
 	if !ok {
 		return false
 	}
