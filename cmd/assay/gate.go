@@ -78,11 +78,11 @@ func (g *gateFiles) named() []string {
 // summary says where the rows went: "7 rows accepted into a.csv, 3
 // rejected into r.csv".
 func (g *gateFiles) summary() string {
-	acc := fmt.Sprintf("%d rows accepted", g.w.Accepted)
+	acc := thousands(g.w.Accepted) + " rows accepted"
 	if g.paths[0] != "" {
 		acc += " into " + g.paths[0]
 	}
-	rej := fmt.Sprintf("%d rejected", g.w.Rejected)
+	rej := thousands(g.w.Rejected) + " rejected"
 	if g.paths[1] != "" {
 		rej += " into " + g.paths[1]
 	}
