@@ -288,14 +288,20 @@ func (r *resolver) distributionSpec(p *pending, t Type) {
 	spec.AutoResolution, spec.Resolution, good = r.distResolution(p)
 	ok = ok && good
 	if n := d.keys.get("sample"); n != nil {
-		if v, good := r.count(id+".sample", n); !good {
+		// A whole number, also when written as a float such as 1e6.
+		v, good := r.number(id+".sample", n)
+		switch {
+		case !good:
 			ok = false
-		} else if v < minSample {
-			r.fail(n, CodeBadValue, id+".sample", "a sample of %d values is too small to judge a family", v).Hint =
+		case v != math.Trunc(v) || v > math.MaxInt32:
+			r.fail(n, CodeBadValue, id+".sample", "%s is not a whole number of values", n.Value).Hint = "e.g. 1000000 or 1e6"
+			ok = false
+		case v < minSample:
+			r.fail(n, CodeBadValue, id+".sample", "a sample of %s values is too small to judge a family", n.Value).Hint =
 				fmt.Sprintf("sample at least %d values", minSample)
 			ok = false
-		} else {
-			spec.Sample = v
+		default:
+			spec.Sample = int(v)
 		}
 	}
 	if n := d.keys.get("seed"); n != nil {
@@ -473,6 +479,9 @@ func (r *resolver) distResolution(p *pending) (auto bool, step float64, ok bool)
 	default:
 		r.wrongKind(n, id, "auto, none or a step such as 0.01")
 		return false, 0, false
+	}
+	if d.test == "" {
+		return auto, step, true // the test is wrong: that is the problem to report
 	}
 	if !applies {
 		e := r.fail(n, CodeNotApplicable, id, "resolution applies to continuous families tested by ks or chi-square")

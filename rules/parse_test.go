@@ -80,6 +80,8 @@ var badFixtures = []struct {
 		{CodeBadValue, 44, 28, `columns.r.distribution.family: the list of candidate families is empty`},
 		{CodeMissing, 46, 19, `columns.s.distribution: missing key "family"`},
 		{CodeUnknownKey, 46, 30, `columns.s.distribution: unknown key "fit"`},
+		{CodeBadValue, 48, 57, `columns.t.distribution.test: unknown test "kolmogorov"`},
+		{CodeBadValue, 50, 44, `columns.u.distribution.sample: 100.5 is not a whole number of values`},
 	}},
 	{"duplicates.yaml", false, []want{
 		{CodeDuplicate, 5, 5, `columns.weight_kg: key "type" written twice (first at line 4)`},
