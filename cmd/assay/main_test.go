@@ -408,7 +408,7 @@ func TestReportTrouble(t *testing.T) {
 		args []string
 		want string // in stderr
 	}{
-		{"unknown format", []string{"--report", "html=" + filepath.Join(dir, "out.html")}, `unknown report format "html"`},
+		{"unknown format", []string{"--report", "pdf=" + filepath.Join(dir, "out.pdf")}, `unknown report format "pdf"`},
 		{"no path", []string{"--report", "junit"}, "FORMAT=PATH"},
 		{"same path twice", []string{"--report", "junit=" + xmlPath, "--output", xmlPath}, "name the same file"},
 		{"unreadable data", []string{"--report", "junit=" + xmlPath, "--report", "markdown=" + filepath.Join(dir, "s.md"), "testdata/soil/ragged.csv"}, "ragged.csv:3"},
