@@ -3,6 +3,7 @@ package checks
 import (
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"slices"
 	"strconv"
 	"strings"
@@ -235,7 +236,7 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 		// Each accumulator seeds its reservoir with the rule's seed and
 		// where its data begin, so shards merged later sample independently
 		// and a run repeats for the same seed and the same batches.
-		if a.Sample, err = gof.NewReservoir(a.check.spec.Sample, a.check.spec.Seed^splitmix(uint64(b.FirstRow))); err != nil {
+		if a.Sample, err = gof.NewReservoir(a.check.spec.Sample, shardSeed(a.check.spec.Seed, b.FirstRow)); err != nil {
 			return err
 		}
 	}
@@ -256,13 +257,11 @@ func (a *DistributionAccumulator) count(s string) {
 	}
 }
 
-// splitmix is the finaliser of SplitMix64 (Steele, Lea & Flood 2014): it
-// spreads a row number over all 64 bits for use in a seed.
-func splitmix(x uint64) uint64 {
-	x += 0x9e3779b97f4a7c15
-	x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9
-	x = (x ^ (x >> 27)) * 0x94d049bb133111eb
-	return x ^ (x >> 31)
+// shardSeed is the seed of the reservoir of an accumulator whose data
+// begin at row first: the first output of PCG seeded with the rule's seed
+// and that row, so shards draw independent samples.
+func shardSeed(seed uint64, first int64) uint64 {
+	return rand.New(rand.NewPCG(seed, uint64(first))).Uint64()
 }
 
 // numbers appends the non-null values of an integer or float array to dst
@@ -339,7 +338,7 @@ func (a *DistributionAccumulator) Merge(other Accumulator) error {
 		return nil
 	}
 	if a.Sample == nil {
-		r, err := gof.NewReservoir(o.Sample.Size(), a.check.spec.Seed^splitmix(uint64(o.Sample.Seen())))
+		r, err := gof.NewReservoir(o.Sample.Size(), shardSeed(a.check.spec.Seed, o.Sample.Seen()))
 		if err != nil {
 			return err
 		}
