@@ -271,3 +271,30 @@ func TestGateAcceptedOnly(t *testing.T) {
 		t.Errorf("stderr: %s", got.stderr)
 	}
 }
+
+// TestOutputIsInput checks that an output naming an input file is refused
+// and the input left as it was.
+func TestOutputIsInput(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "batch.csv")
+	data, err := os.ReadFile("testdata/soil/bad.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(in, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, flag := range []string{"--accepted", "--output"} {
+		got := assay(t, "", "check", pol, in, flag, filepath.Join(dir, ".", "batch.csv"))
+		if got.code != 2 || !strings.Contains(got.stderr, "it is an input of this run") {
+			t.Errorf("%s: exit code %d, stderr %q", flag, got.code, got.stderr)
+		}
+		after, err := os.ReadFile(in)
+		if err != nil || string(after) != string(data) {
+			t.Errorf("%s: the input changed (error %v)", flag, err)
+		}
+		if entries, _ := os.ReadDir(dir); len(entries) != 1 {
+			t.Errorf("%s: folder holds %d files, want the input alone", flag, len(entries))
+		}
+	}
+}

@@ -233,6 +233,10 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 			return trouble(stderr, err)
 		}
 	}
+	if err := out.overwrites(rep.Sources); err != nil {
+		out.discard()
+		return trouble(stderr, err)
+	}
 	if err := out.commit(); err != nil {
 		return trouble(stderr, err)
 	}

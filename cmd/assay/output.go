@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+
+	"github.com/assay-project/assay/engine/report"
 )
 
 // pending is an output file being written under a temporary name in the
@@ -60,6 +62,24 @@ func (o *outputs) write(path string, write func(f *os.File) error) error {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
 	return p.finish()
+}
+
+// overwrites refuses outputs that are input files of the run (sources, as
+// the report names them): renaming over one would destroy data that was
+// just judged.
+func (o outputs) overwrites(sources []report.Source) error {
+	for _, p := range o {
+		out, err := os.Stat(p.path)
+		if err != nil {
+			continue // not there yet
+		}
+		for _, s := range sources {
+			if in, err := os.Stat(s.Path); err == nil && os.SameFile(in, out) {
+				return fmt.Errorf("writing %s: it is an input of this run; write the output elsewhere", p.path)
+			}
+		}
+	}
+	return nil
 }
 
 // commit renames every finished file into place, in order. Should a
