@@ -10,7 +10,9 @@
 // from Parquet or Arrow are written as text (see formatCell). Parquet
 // outputs hold the typed values; a cell that did not parse as its
 // column's declared type is null there, and the rejected file's
-// BrokenColumn names the type rule it broke.
+// BrokenColumn names the type rule it broke. A row with such a cell that no
+// rule rejected (the column's type was inferred) cannot be written to an
+// accepted Parquet file: Rows refuses it.
 package gate
 
 import (
@@ -286,6 +288,11 @@ func (s *parquetSink) begin(schema *arrow.Schema) error {
 }
 
 func (s *parquetSink) write(b *source.Batch, sel []int, broken [][]string) error {
+	if !s.rejected {
+		if err := unparsed(b, sel); err != nil {
+			return err
+		}
+	}
 	cols := make([]arrow.Array, 0, len(s.schema.Fields()))
 	defer func() {
 		for _, c := range cols {
@@ -314,6 +321,24 @@ func (s *parquetSink) write(b *source.Batch, sel []int, broken [][]string) error
 
 func (s *parquetSink) close() error {
 	return s.fw.Close()
+}
+
+// unparsed refuses a cell of rows sel that did not parse as its column's
+// type: a typed file cannot hold its text, and as no type rule rejected its
+// row (the column has no declared type, and the cell does not fit the type
+// inferred from the start of the file), writing null would lose it
+// silently.
+func unparsed(b *source.Batch, sel []int) error {
+	for k, cells := range b.Invalid {
+		for _, c := range cells {
+			if _, ok := slices.BinarySearch(sel, c.Row); ok {
+				f := b.Record.Schema().Field(k)
+				return fmt.Errorf("row %d, column %q: the cell %q is not %s like the rest of the column, and a Parquet file cannot hold it; declare the column's type in the policy, or write CSV",
+					b.FirstRow+int64(c.Row), f.Name, c.Text, f.Type)
+			}
+		}
+	}
+	return nil
 }
 
 // take returns the elements sel (ascending indices) of arr: arr itself when

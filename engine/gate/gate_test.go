@@ -269,3 +269,36 @@ func writeFile(t *testing.T, path, data string) {
 		t.Fatal(err)
 	}
 }
+
+// TestParquetUnparsed checks that an accepted row with a cell that did not
+// parse is refused for Parquet (it would turn into null), while CSV keeps
+// its text and a rejected Parquet row is written.
+func TestParquetUnparsed(t *testing.T) {
+	mem := checkedMem(t)
+	b := typedBatch(t, mem, 10) // row 1 (data row 11) has an unparsed date
+	defer b.Release()
+	tests := []struct {
+		name   string
+		acc    Format
+		broken [][]string
+		want   string // in the error; "" for none
+	}{
+		{"accepted parquet", Parquet, [][]string{nil, nil, nil}, `row 11, column "d": the cell "2024-13-01" is not date32`},
+		{"rejected parquet", Parquet, [][]string{nil, {"columns.d.type"}, nil}, ""},
+		{"accepted csv", CSV, [][]string{nil, nil, nil}, ""},
+	}
+	for _, tt := range tests {
+		var acc, rej bytes.Buffer
+		w := New(&Output{W: &acc, Format: tt.acc}, &Output{W: &rej, Format: Parquet}, mem)
+		if err := w.Begin(b.Record.Schema()); err != nil {
+			t.Fatal(err)
+		}
+		err := w.Rows(b, tt.broken)
+		if cerr := w.Close(); err == nil {
+			err = cerr
+		}
+		if tt.want == "" && err != nil || tt.want != "" && (err == nil || !strings.Contains(err.Error(), tt.want)) {
+			t.Errorf("%s: error %v, want %q", tt.name, err, tt.want)
+		}
+	}
+}
