@@ -15,6 +15,7 @@ import (
 	"os/signal"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -212,7 +213,7 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	case g == nil:
 	case rep.Counts.Error > 0:
 		g.discard()
-		fmt.Fprintf(stderr, "assay: %s not written: %d rules could not run\n", strings.Join(g.named(), " and "), rep.Counts.Error)
+		fmt.Fprintf(stderr, "assay: %s not written: %s could not run\n", strings.Join(g.named(), " and "), rulesCount(rep.Counts.Error))
 	default:
 		if err := g.finish(); err != nil {
 			g.discard()
@@ -249,6 +250,14 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 		}
 	}
 	return exitCode(rep, f.strict)
+}
+
+// rulesCount writes "1 rule" or "n rules".
+func rulesCount(n int) string {
+	if n == 1 {
+		return "1 rule"
+	}
+	return strconv.Itoa(n) + " rules"
 }
 
 // validate checks the flags that need no data, so that a mistake costs no
