@@ -43,6 +43,10 @@ func Compile(r *rules.Rule, env *Env) (Check, error) {
 		c, err = newRequiredCheck(r, env)
 	case rules.DistributionSpec:
 		c, err = newDistributionCheck(r, s, env)
+	case rules.ExtremesSpec:
+		c, err = newExtremesCheck(r, s, env)
+	case rules.JointSpec:
+		c, err = newJointCheck(r, s, env)
 	default:
 		return nil, fmt.Errorf("%s: rule %s: no check implements kind %q", r.Pos, r.ID, r.Kind)
 	}

@@ -32,9 +32,12 @@ func TestEveryKindCompiles(t *testing.T) {
 		rules.KindRequired:  newRule(rules.RequiredSpec{}, atMost(0), "x"),
 		rules.KindDistribution: newRule(rules.DistributionSpec{Families: []string{"normal"}, Test: rules.TestKS,
 			Measure: rules.MeasureDistance, Sample: 1000, Seed: 1}, atMost(0.1), "x"),
+		rules.KindExtremes: newRule(rules.ExtremesSpec{Method: rules.ExtremesTukey, K: 1.5}, atMost(0.05), "x"),
+		rules.KindJoint: newRule(rules.JointSpec{Method: rules.JointMahalanobis, Quantile: 0.999, Sample: 1000, Seed: 1},
+			atMost(0.05), "x", "y"),
 	}
-	schema := arrow.NewSchema([]arrow.Field{{Name: "x", Type: tFloat}, {Name: "s", Type: tString}}, nil)
-	env := &Env{Schema: schema, DataColumns: []string{"x", "s"}, MaxRowsListed: 5}
+	schema := arrow.NewSchema([]arrow.Field{{Name: "x", Type: tFloat}, {Name: "s", Type: tString}, {Name: "y", Type: tInt}}, nil)
+	env := &Env{Schema: schema, DataColumns: []string{"x", "s", "y"}, MaxRowsListed: 5}
 	for _, k := range rules.Kinds() {
 		r, ok := examples[k]
 		if !ok {

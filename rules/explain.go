@@ -98,6 +98,10 @@ func explainSpec(r *Rule) string {
 		return "only declared columns"
 	case DistributionSpec:
 		return explainDistribution(s)
+	case ExtremesSpec:
+		return explainExtremes(s)
+	case JointSpec:
+		return explainJoint(s)
 	}
 	return "-"
 }

@@ -101,12 +101,14 @@ type colDraft struct {
 // pending is a rule while it resolves: the nodes it was written with.
 type pending struct {
 	rule   *Rule
-	col    *colDraft  // a column rule's column; nil otherwise
-	val    *yaml.Node // what the rule says: its value, list, expression or bounds
-	tol    *yaml.Node // the tolerance written for it; nil for the default
-	name   *yaml.Node // a row rule's name
-	dist   *distDraft // a distribution rule's keys
-	tolSet bool       // rule.Tolerance has been resolved
+	col    *colDraft   // a column rule's column; nil otherwise
+	val    *yaml.Node  // what the rule says: its value, list, expression or bounds
+	tol    *yaml.Node  // the tolerance written for it; nil for the default
+	name   *yaml.Node  // a row rule's name
+	dist   *distDraft  // a distribution rule's keys
+	ext    *extDraft   // an extremes rule's keys
+	joint  *jointDraft // a joint rule's keys and columns
+	tolSet bool        // rule.Tolerance has been resolved
 }
 
 func (r *resolver) column(c *colDraft) *Column { return &r.p.Columns[c.i] }
@@ -123,9 +125,9 @@ func (r *resolver) errorList() ErrorList {
 }
 
 var (
-	topKeys    = []string{"policy", "about", "data", "csv", "columns", "rows", "table"}
+	topKeys    = []string{"policy", "about", "data", "csv", "columns", "rows", "table", "joint"}
 	columnKeys = []string{"type", "unit", "description", "tolerance", "nulls", "unique", "minimum", "maximum",
-		"exclusiveMinimum", "exclusiveMaximum", "enum", "pattern", "minLength", "maxLength", "summary", "distribution"}
+		"exclusiveMinimum", "exclusiveMaximum", "enum", "pattern", "minLength", "maxLength", "summary", "distribution", "extremes"}
 	tableKeys = []string{"rows", "key", "closed", "required"}
 	rowKeys   = []string{"name", "expr", "tolerance"}
 )
@@ -167,6 +169,8 @@ func (r *resolver) decode() {
 			r.decodeRows(f.v)
 		case "table":
 			r.decodeTable(f.v)
+		case "joint":
+			r.decodeJoint(f.v)
 		}
 	}
 }
@@ -355,6 +359,8 @@ func (r *resolver) decodeColumnKey(c *colDraft, f field) {
 		r.longFormRule(c, f, KindMaxLength, "value")
 	case "distribution":
 		r.decodeDistribution(r.columnRule(c, f, KindDistribution, f.v, nil), f.v)
+	case "extremes":
+		r.decodeExtremes(r.columnRule(c, f, KindExtremes, f.v, nil), f.v)
 	case "summary":
 		if !r.mapping(id, f.v) {
 			return

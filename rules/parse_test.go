@@ -83,6 +83,34 @@ var badFixtures = []struct {
 		{CodeBadValue, 48, 57, `columns.t.distribution.test: unknown test "kolmogorov"`},
 		{CodeBadValue, 50, 44, `columns.u.distribution.sample: 100.5 is not a whole number of values`},
 	}},
+	{"extremes.yaml", false, []want{
+		{CodeNotApplicable, 5, 5, `columns.zone.extremes: extremes applies to number and integer columns, not string columns`},
+		{CodeBadValue, 7, 15, `columns.a.extremes: unknown extremes rule "tukee" (did you mean "tukey"?)`},
+		{CodeBadValue, 9, 22, `columns.b.extremes.rule: unknown extremes rule "mad" (the median and MAD rule is robust-z)`},
+		{CodeNotApplicable, 11, 37, `columns.c.extremes.alpha: alpha applies to esd, grubbs and tail, not zscore (zscore takes a cutoff k)`},
+		{CodeNotApplicable, 11, 57, `columns.c.extremes.max_outliers: max_outliers applies to esd, not zscore (drop it, or choose a method it applies to)`},
+		{CodeNotApplicable, 13, 30, `columns.d.extremes.k: k applies to tukey, zscore and robust-z, not esd (esd is a test: its level is alpha)`},
+		{CodeBadValue, 13, 47, `columns.d.extremes.max_outliers: max_outliers must be at least 1 (the most outliers the test looks for, e.g. 10)`},
+		{CodeBadValue, 15, 37, `columns.e.extremes.alpha: alpha must lie strictly between 0 and 1, got 1.5 (the level of the test, e.g. 0.05)`},
+		{CodeUnknownKey, 15, 42, `columns.e.extremes: unknown key "cutoff" (the cutoff of zscore and robust-z is "k")`},
+		{CodeBadValue, 17, 35, `columns.f.extremes.k: k must be above 0, got 0 (the modified z-score beyond which a value is extreme, e.g. 3.5)`},
+		{CodeTolerance, 17, 56, `columns.f.extremes: warn 5% is above fail 1% (warn is the smaller threshold)`},
+		{CodeMissing, 19, 15, `columns.g.extremes: tail needs the column's distribution, and columns.g declares none (declare distribution: <family> under the column, or choose another rule)`},
+		{CodeNotApplicable, 22, 22, `columns.h.extremes: tail needs a family of values, not categorical (tail applies to continuous and count families)`},
+		{CodeWrongKind, 24, 15, `columns.i.extremes: expected a method such as tukey, or a mapping with rule and its settings, got a list`},
+		{CodeUnknownKey, 26, 16, `columns.j.extremes: unknown key "method" (the method goes under "rule")`},
+		{CodeBadValue, 28, 14, `joint: a joint rule needs two or more columns, got 1 (judge one column alone with extremes under the column)`},
+		{CodeMissing, 29, 5, `joint: joint rule has no columns (add columns: [a, b, ...], two or more numeric columns)`},
+		{CodeBadValue, 31, 13, `joint.a+b.method: unknown joint method "pca" (one of mahalanobis)`},
+		{CodeBadValue, 32, 15, `joint.a+b.quantile: quantile must lie strictly between 0 and 1, got 1 (the chi-square quantile whose value cuts squared distances, e.g. 0.999)`},
+		{CodeDuplicate, 33, 14, `joint.a+b: joint rule joint.a+b written twice (first at line 30) (give the rules different names)`},
+		{CodeNotApplicable, 34, 16, `joint.zone+a: column "zone" is declared string; joint rules apply to number and integer columns`},
+		{CodeNotApplicable, 34, 49, `joint.zone+a.sample: sample applies to the robust estimate; the classical one uses every row (drop sample, or write robust: true)`},
+		{CodeBadValue, 35, 12, `joint: joint rule name "!!" has no letter or digit`},
+		{CodeWrongKind, 36, 46, `joint.climate.robust: expected true or false, got the text "maybe"`},
+		{CodeBadValue, 36, 59, `joint.climate.seed: -2 is not a whole number of 0 or more`},
+		{CodeBadValue, 36, 71, `joint.climate.sample: a sample of 10 rows is too small for a robust covariance (sample at least 100 rows)`},
+	}},
 	{"duplicates.yaml", false, []want{
 		{CodeDuplicate, 5, 5, `columns.weight_kg: key "type" written twice (first at line 4)`},
 		{CodeDuplicate, 6, 18, "columns.weight_kg.enum: enum value 2.0 listed twice"},
@@ -624,8 +652,9 @@ func TestSuggest(t *testing.T) {
 		{"nul", columnKeys, ""},        // two edits in three letters is too far...
 		{"nulss", columnKeys, "nulls"}, // ...one is close
 		{"distrbution", columnKeys, "distribution"},
-		{"extremes", columnKeys, ""}, // nothing near
-		{"mean", columnKeys, ""},     // nothing near
+		{"outliers", columnKeys, ""}, // nothing near
+		{"extreme", columnKeys, "extremes"},
+		{"mean", columnKeys, ""}, // nothing near
 		{"weight_kg", []string{"weight_kg", "Weight_kg"}, "weight_kg"},
 		{"WEIGHT_KG", []string{"weight_lb", "weight_kg"}, "weight_kg"},
 		{"weight_lg", []string{"weight_kg", "height_kg"}, "weight_kg"}, // ties go to the first

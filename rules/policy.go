@@ -93,12 +93,14 @@ const (
 	KindRequired  Kind = "required"  // required columns absent from the data
 
 	KindDistribution Kind = "distribution" // how far a column's values are from a distribution family
+	KindExtremes     Kind = "extremes"     // share of a column's values that a univariate rule or test finds extreme
+	KindJoint        Kind = "joint"        // share of rows far from the joint pattern of several columns
 )
 
 // Kinds lists every declared kind, in the order reports list them.
 func Kinds() []Kind {
 	return []Kind{KindRequired, KindClosed, KindRowCount, KindKey, KindType, KindNulls, KindUnique,
-		KindMinimum, KindMaximum, KindEnum, KindPattern, KindMinLength, KindMaxLength, KindSummary, KindDistribution, KindRow}
+		KindMinimum, KindMaximum, KindEnum, KindPattern, KindMinLength, KindMaxLength, KindSummary, KindDistribution, KindExtremes, KindRow, KindJoint}
 }
 
 // Limit is the closed interval of measure values a threshold allows. An open
@@ -342,6 +344,77 @@ type DistributionSpec struct {
 }
 
 func (DistributionSpec) Kind() Kind { return KindDistribution }
+
+// ExtremesMethod names how an extremes rule finds a column's extreme
+// values.
+type ExtremesMethod string
+
+// The methods of an extremes rule (package checks/outlier computes them).
+const (
+	// ExtremesTukey: beyond Tukey's (1977) fences Q1 − k·IQR and
+	// Q3 + k·IQR, quartiles by definition 7 of Hyndman & Fan (1996).
+	ExtremesTukey ExtremesMethod = "tukey"
+	// ExtremesZScore: |x − mean| / sd above k.
+	ExtremesZScore ExtremesMethod = "zscore"
+	// ExtremesRobustZ: the modified z-score 0.6745 |x − median| / MAD above
+	// k (Iglewicz & Hoaglin 1993).
+	ExtremesRobustZ ExtremesMethod = "robust-z"
+	// ExtremesESD: Rosner's (1983) generalized ESD test for up to
+	// MaxOutliers outliers at level Alpha.
+	ExtremesESD ExtremesMethod = "esd"
+	// ExtremesGrubbs: Grubbs' (1950) test for one outlier at level Alpha.
+	ExtremesGrubbs ExtremesMethod = "grubbs"
+	// ExtremesTail: a tail probability below Alpha/(2n) under the
+	// column's distribution, fitted or given.
+	ExtremesTail ExtremesMethod = "tail"
+)
+
+// ExtremesSpec: a column's values are not extreme by Method; the measure
+// is the share of its values that are.
+type ExtremesSpec struct {
+	Method ExtremesMethod
+	// K is Tukey's fence multiplier, or the cutoff of |z| or of the
+	// modified z-score (tukey, zscore, robust-z).
+	K float64
+	// Alpha is the level of a test (esd, grubbs, tail).
+	Alpha float64
+	// MaxOutliers is the most outliers the ESD test looks for (r).
+	MaxOutliers int
+	// Distribution is the column's distribution rule, whose family the
+	// tail method fits; zero for the other methods.
+	Distribution DistributionSpec
+}
+
+func (ExtremesSpec) Kind() Kind { return KindExtremes }
+
+// JointMethod names how a joint rule measures how far a row is from the
+// others.
+type JointMethod string
+
+// JointMahalanobis is the squared Mahalanobis distance from a center and
+// a covariance.
+const JointMahalanobis JointMethod = "mahalanobis"
+
+// JointSpec: rows lie near the joint pattern of the rule's columns; the
+// measure is the share of rows whose squared distance exceeds the
+// chi-square Quantile with one degree of freedom per column. Rows with a
+// missing value in any of the columns are not judged.
+type JointSpec struct {
+	Name   string // as written; "" when the rule has none
+	Method JointMethod
+	// Robust asks for the minimum covariance determinant estimate
+	// (FAST-MCD, reweighted) instead of the mean and sample covariance.
+	Robust   bool
+	Quantile float64
+	// Sample is how many rows FAST-MCD keeps: beyond it the estimate
+	// rests on a seeded sample of that size, and still judges every row.
+	Sample int
+	// Seed seeds FAST-MCD, its sample and the sample of distances a
+	// report plots.
+	Seed uint64
+}
+
+func (JointSpec) Kind() Kind { return KindJoint }
 
 // Column is a column as the policy declares it.
 type Column struct {

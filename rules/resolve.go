@@ -107,6 +107,7 @@ func (r *resolver) names() {
 		r.column(c).Type = t
 	}
 	seen := map[string]*pending{}
+	joints := map[string]*pending{}
 	quantiles := map[*colDraft]map[float64]string{}
 	for _, p := range r.rules {
 		switch p.rule.Kind {
@@ -120,6 +121,10 @@ func (r *resolver) names() {
 			r.rowName(p, seen)
 		case KindDistribution:
 			r.distNames(p)
+		case KindExtremes:
+			r.extNames(p)
+		case KindJoint:
+			r.jointName(p, joints)
 		}
 	}
 	closed := r.closed()
@@ -500,6 +505,8 @@ func (r *resolver) values() {
 			r.enumSpec(p, t)
 		case KindDistribution:
 			r.distributionSpec(p, t)
+		case KindExtremes:
+			r.extremesSpec(p, t)
 		}
 		if !applies {
 			r.failAt(p.rule.Pos, CodeNotApplicable, id, "%s does not apply to %s", key, plural(t))
@@ -518,6 +525,8 @@ func (r *resolver) values() {
 			}
 		}
 	}
+	r.linkTails()
+	r.jointSpecs()
 }
 
 // checkRange reports a lower and an upper bound of one column that no value
@@ -685,8 +694,8 @@ func (r *resolver) defaults() {
 		r.fail(r.root, CodeEmpty, "", "the policy has no rules").Hint = "add columns, rows or table"
 	}
 	for _, p := range all {
-		if s, ok := p.rule.Spec.(DistributionSpec); ok && !p.tolSet {
-			p.rule.Tolerance = defaultDistTolerance(s)
+		if t, ok := kindDefault(p.rule.Spec); ok && !p.tolSet {
+			p.rule.Tolerance = t
 		} else if !p.tolSet {
 			p.rule.Tolerance = Tolerance{Direction: HigherIsWorse, Fail: AtMost(0)}
 			if p.col != nil && p.col.def != nil && p.rule.Kind != KindNulls {
@@ -697,6 +706,21 @@ func (r *resolver) defaults() {
 		p.rule.Measure = measure(p.rule)
 		r.p.Rules = append(r.p.Rules, p.rule)
 	}
+}
+
+// kindDefault is the default tolerance of a kind of rule whose measure is
+// not a plain share of breaking values, and which therefore ignores the
+// column's tolerance.
+func kindDefault(s Spec) (Tolerance, bool) {
+	switch s := s.(type) {
+	case DistributionSpec:
+		return defaultDistTolerance(s), true
+	case ExtremesSpec:
+		return defaultExtremesTolerance(s.Method), true
+	case JointSpec:
+		return defaultExtremesTolerance(""), true
+	}
+	return Tolerance{}, false
 }
 
 func copyLimit(l *Limit) *Limit {
@@ -728,6 +752,10 @@ func measure(r *Rule) Measure {
 		return Measure{Name: "above maximum share"}
 	case DistributionSpec:
 		return distributionMeasure(s)
+	case ExtremesSpec:
+		return Measure{Name: "extreme share"}
+	case JointSpec:
+		return Measure{Name: "outlying row share"}
 	}
 	switch r.Kind {
 	case KindRowCount:

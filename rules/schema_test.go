@@ -153,6 +153,18 @@ func TestSchemaRejectsShapeProblems(t *testing.T) {
 		"policy: p\ncolumns: {a: {distribution: {family: normal, sample: 10}}}\n",
 		"policy: p\ncolumns: {a: {distribution: {test: ks}}}\n",
 		"policy: p\ncolumns: {a: {distribution: {family: categorical, shares: {A: -1}}}}\n",
+		"policy: p\ncolumns: {a: {extremes: tukee}}\n",
+		"policy: p\ncolumns: {a: {extremes: {rule: esd, max_outliers: 0}}}\n",
+		"policy: p\ncolumns: {a: {extremes: {rule: zscore, k: -3}}}\n",
+		"policy: p\ncolumns: {a: {extremes: {rule: grubbs, alpha: 1.5}}}\n",
+		"policy: p\ncolumns: {a: {extremes: {method: tukey}}}\n",
+		"policy: p\ncolumns: {a: {extremes: [tukey]}}\n",
+		"policy: p\njoint: [{columns: [a]}]\n",
+		"policy: p\njoint: [{name: j}]\n",
+		"policy: p\njoint: [{columns: [a, b], method: pca}]\n",
+		"policy: p\njoint: [{columns: [a, b], quantile: 1}]\n",
+		"policy: p\njoint: [{columns: [a, b], robust: yes}]\n",
+		"policy: p\njoint: {columns: [a, b]}\n",
 	} {
 		f := filepath.Join(t.TempDir(), "p.yaml")
 		writeFile(t, f, src)
@@ -202,6 +214,7 @@ func TestSchemaInStep(t *testing.T) {
 		return out
 	}
 	distRule := defs["distributionRule"].(map[string]any)["properties"].(map[string]any)
+	jointRule := defs["jointRule"].(map[string]any)["properties"].(map[string]any)
 	for _, c := range []struct {
 		name         string
 		schema, code []string
@@ -216,6 +229,10 @@ func TestSchemaInStep(t *testing.T) {
 		{"family", enum(defs["familyName"]), dist.Names()},
 		{"test", enum(distRule["test"]), DistTestNames()},
 		{"measure", enum(distRule["measure"]), DistMeasureNames()},
+		{"extremes", props(defs["extremesRule"]), extremesKeys},
+		{"extremes rule", enum(defs["extremesMethod"]), ExtremesMethodNames()},
+		{"joint", props(defs["jointRule"]), jointKeys},
+		{"joint method", enum(jointRule["method"]), JointMethodNames()},
 	} {
 		if got, want := strings.Join(c.schema, " "), strings.Join(sorted(c.code), " "); got != want {
 			t.Errorf("%s keys: the schema has %s, the parser %s", c.name, got, want)

@@ -159,6 +159,12 @@ type Result struct {
 	// test's statistic (with the n it used), its p-value, and the
 	// parameters of the family judged, given or estimated.
 	Fit *Fit `json:"fit,omitempty"`
+	// Extremes is set by extremes rules: the method, the thresholds fitted
+	// on the whole column, and what a box plot needs (see Extremes).
+	Extremes *Extremes `json:"extremes,omitempty"`
+	// Joint is set by joint rules: the estimate, the cutoff, the rows not
+	// judged, and what a distance plot needs (see Joint).
+	Joint *Joint `json:"joint,omitempty"`
 }
 
 // Fit is what a distribution rule found.
@@ -317,6 +323,9 @@ type Row struct {
 	Line   int64          `json:"line,omitempty"`
 	Values map[string]any `json:"values"`
 	Score  Number         `json:"score"`
+	// Contributions split the squared distance of a row that a joint rule
+	// flags among its columns, largest first (see Contribution).
+	Contributions []Contribution `json:"contributions,omitempty"`
 }
 
 // Number is a float64 that JSON writes as null when it is NaN or infinite,

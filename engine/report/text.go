@@ -57,6 +57,12 @@ func WriteText(w io.Writer, r *Report, o TextOptions) error {
 		if res.Fit != nil {
 			p.fit(res)
 		}
+		if res.Extremes != nil {
+			p.extremes(res)
+		}
+		if res.Joint != nil {
+			p.joint(res)
+		}
 		if res.Offending != nil && len(res.Offending.Rows) > 0 {
 			p.rows(res)
 		}
@@ -139,6 +145,10 @@ func (p *printer) rows(res Result) {
 	head = append(head, "line")
 	head = append(head, cols...)
 	head = append(head, "score")
+	drivers := hasContributions(off.Rows)
+	if drivers {
+		head = append(head, "columns contributing most")
+	}
 	fmt.Fprintf(tw, "  %s\t\n", strings.Join(head, "\t"))
 	for _, row := range off.Rows {
 		cells := []string{strconv.FormatInt(row.Row, 10)}
@@ -154,6 +164,9 @@ func (p *printer) rows(res Result) {
 			cells = append(cells, formatValue(row.Values[c]))
 		}
 		cells = append(cells, strconv.FormatFloat(float64(row.Score), 'g', 6, 64))
+		if drivers {
+			cells = append(cells, contributionText(row.Contributions))
+		}
 		fmt.Fprintf(tw, "  %s\t\n", strings.Join(cells, "\t"))
 	}
 	tw.Flush()

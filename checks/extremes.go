@@ -1,0 +1,266 @@
+package checks
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/apache/arrow-go/v18/arrow"
+
+	"github.com/assay-project/assay/checks/dist"
+	"github.com/assay-project/assay/checks/outlier"
+	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
+	"github.com/assay-project/assay/rules"
+)
+
+// extremesCheck finds the extreme values of one numeric column with a
+// method of package outlier, fitted on the whole column, and lists the
+// rows holding them. The measure is the share of the values judged (the
+// non-null values other than NaN) that are extreme.
+//
+// First pass. zscore streams the count, mean and sum of squared
+// deviations of the finite values (outlier.CoMoments over one column: each
+// batch is summarised by two passes and merged, as accumulators are, by
+// the pairwise update of Chan, Golub & LeVeque 1979, in the form of Pébay
+// 2008), and the least and greatest value; it keeps no values. Every other
+// method needs the whole column: exact quartiles, median and MAD are order
+// statistics, the tests remove values one at a time, and the tail method
+// fits a family by maximum likelihood. They keep every finite value, 8
+// bytes each (esd and grubbs also keep its row number, 8 bytes more, to
+// name the rows their tests flag). Nothing is sampled: the thresholds are
+// exact.
+//
+// Finish. The method is fitted: Tukey's fences (outlier.TukeyFences,
+// quartiles by R's type 7), mean ± k sd (outlier.ZScore), the modified
+// z-score (outlier.RobustZ, Iglewicz & Hoaglin 1993), Rosner's generalized
+// ESD test (outlier.GeneralizedESD), Grubbs' two-sided test
+// (outlier.Grubbs), or the tail rule on the column's distribution
+// (outlier.Tail: the distribution rule's family, with its given
+// parameters, the others fitted to the values it can produce; the best of
+// several candidates by AIC then BIC, as that rule ranks them). ±Inf
+// values are beyond every threshold: they are judged extreme and do not
+// enter the fit. Every method but zscore counts its extreme values
+// exactly here; zscore counts them in the second pass, unless its least
+// and greatest values are both within the cutoff.
+//
+// Second pass. When some value is extreme, the rows holding extreme
+// values are listed, worst first by the method's score: the distance
+// beyond the nearer fence in IQRs (tukey), |z| (zscore), the modified
+// z-score |M| (robust-z), the R_i of the step that removed the value
+// (esd), G (grubbs), the normal deviate of the tail probability (tail).
+type extremesCheck struct {
+	rule     *rules.Rule
+	env      *Env
+	col      column
+	spec     rules.ExtremesSpec
+	families []dist.Family // tail: the candidates, with their given parameters
+}
+
+// Bounds of an extremes result's plot data.
+const (
+	minHistBins = 5
+	maxHistBins = 50
+)
+
+func newExtremesCheck(r *rules.Rule, s rules.ExtremesSpec, env *Env) (Check, error) {
+	col, err := bindColumnOf(r, env, "extremes", classInteger, classNumber)
+	if err != nil {
+		return nil, err
+	}
+	c := &extremesCheck{rule: r, env: env, col: col, spec: s}
+	switch s.Method {
+	case rules.ExtremesTukey, rules.ExtremesZScore, rules.ExtremesRobustZ:
+		if !(s.K > 0) || math.IsInf(s.K, 0) {
+			return nil, fmt.Errorf("%s: k is %v, want a finite number above 0", s.Method, s.K)
+		}
+	case rules.ExtremesESD, rules.ExtremesGrubbs, rules.ExtremesTail:
+		if !(s.Alpha > 0 && s.Alpha < 1) {
+			return nil, fmt.Errorf("%s: alpha is %v, want 0 < alpha < 1", s.Method, s.Alpha)
+		}
+	default:
+		return nil, fmt.Errorf("unknown extremes method %q", s.Method)
+	}
+	if s.Method == rules.ExtremesESD && s.MaxOutliers < 1 {
+		return nil, fmt.Errorf("esd: max_outliers is %d, want at least 1", s.MaxOutliers)
+	}
+	if s.Method == rules.ExtremesTail {
+		if c.families, err = tailFamilies(s.Distribution); err != nil {
+			return nil, fmt.Errorf("tail: %w", err)
+		}
+	}
+	return c, nil
+}
+
+// tailFamilies are the candidate families of the tail method: those of the
+// column's distribution rule, with its given parameters.
+func tailFamilies(d rules.DistributionSpec) ([]dist.Family, error) {
+	if len(d.Families) == 0 {
+		return nil, fmt.Errorf("the column declares no distribution")
+	}
+	var out []dist.Family
+	for _, name := range d.Families {
+		f, err := dist.Lookup(name)
+		if err != nil {
+			return nil, err
+		}
+		if f.Kind() == dist.Categorical || f.Digits() > 0 {
+			return nil, fmt.Errorf("%s is not a family of values", name)
+		}
+		if f, err = f.Fix(d.Parameters); err != nil {
+			return nil, err
+		}
+		out = append(out, f)
+	}
+	return out, nil
+}
+
+func (c *extremesCheck) Rule() *rules.Rule { return c.rule }
+
+func (c *extremesCheck) streams() bool { return c.spec.Method == rules.ExtremesZScore }
+
+// keepsRows reports whether the method flags values by their position,
+// so that the rows of the values must be kept.
+func (c *extremesCheck) keepsRows() bool {
+	return c.spec.Method == rules.ExtremesESD || c.spec.Method == rules.ExtremesGrubbs
+}
+
+func (c *extremesCheck) NewAccumulator() Accumulator {
+	a := &ExtremesAccumulator{check: c}
+	a.Min, a.Max = math.Inf(1), math.Inf(-1)
+	if c.streams() {
+		a.Moments = outlier.NewCoMoments(1)
+	}
+	return a
+}
+
+// ExtremesState is the first-pass state of an extremes rule.
+type ExtremesState struct {
+	NaN            int64   // NaN values: not judged
+	NegInf, PosInf int64   // -Inf and +Inf values: extreme whatever the method
+	Min, Max       float64 // least and greatest finite value (±Inf before the first)
+	// Moments are the count, mean and sum of squared deviations of the
+	// finite values (zscore only).
+	Moments *outlier.CoMoments
+	// Values are the finite values, in no particular order (every method
+	// but zscore); Rows the data-row number of each (esd and grubbs).
+	Values []float64
+	Rows   []int64
+}
+
+// finite is the number of finite values seen.
+func (s *ExtremesState) finite() int64 {
+	if s.Moments != nil {
+		return int64(s.Moments.N)
+	}
+	return int64(len(s.Values))
+}
+
+// ExtremesAccumulator is the first pass of an extremes rule.
+type ExtremesAccumulator struct {
+	ExtremesState
+	check   *extremesCheck
+	scratch scratch
+	vals    []float64
+	found   *extFinding
+}
+
+// Observe adds the batch's values: counted, and kept or summarised.
+func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
+	arr, err := a.check.col.in(b)
+	if err != nil {
+		return err
+	}
+	finite := a.vals[:0]
+	keepRows := a.check.keepsRows()
+	eachNumber(arr, &a.scratch, func(i int, x float64) {
+		switch {
+		case math.IsNaN(x):
+			a.NaN++
+			return
+		case math.IsInf(x, -1):
+			a.NegInf++
+			return
+		case math.IsInf(x, 1):
+			a.PosInf++
+			return
+		}
+		a.Min, a.Max = min(a.Min, x), max(a.Max, x)
+		finite = append(finite, x)
+		if keepRows {
+			a.Rows = append(a.Rows, b.FirstRow+int64(i))
+		}
+	})
+	a.vals = finite
+	if a.Moments != nil {
+		return a.Moments.AddColumns([][]float64{finite})
+	}
+	a.Values = append(a.Values, finite...)
+	return nil
+}
+
+// eachNumber calls f with the index and value of every non-null value of
+// an integer or float array.
+func eachNumber(arr arrow.Array, s *scratch, f func(i int, x float64)) {
+	v := validOf(arr)
+	if classOf(arr.DataType()) == classNumber {
+		for i, x := range float64s(arr, &s.floats) {
+			if v.at(i) {
+				f(i, x)
+			}
+		}
+		return
+	}
+	for i, x := range int64s(arr, &s.ints) {
+		if v.at(i) {
+			f(i, float64(x))
+		}
+	}
+}
+
+// Merge folds other's counts, moments and values into a.
+func (a *ExtremesAccumulator) Merge(other Accumulator) error {
+	o, ok := other.(*ExtremesAccumulator)
+	if !ok || o.check != a.check {
+		return errMerge(a.check.rule, a, other)
+	}
+	a.NaN += o.NaN
+	a.NegInf += o.NegInf
+	a.PosInf += o.PosInf
+	a.Min, a.Max = min(a.Min, o.Min), max(a.Max, o.Max)
+	if a.Moments != nil {
+		if err := a.Moments.Merge(o.Moments); err != nil {
+			return err
+		}
+	}
+	a.Values = append(a.Values, o.Values...)
+	a.Rows = append(a.Rows, o.Rows...)
+	return nil
+}
+
+// Finish fits the method and judges; rows are listed only after a second
+// pass.
+func (a *ExtremesAccumulator) Finish() report.Result {
+	return a.finding().result(a.check)
+}
+
+// SecondPass returns the accumulator that lists the rows holding extreme
+// values, or nil when there are none.
+func (a *ExtremesAccumulator) SecondPass() Accumulator {
+	f := a.finding()
+	if f.match == nil || f.count == 0 {
+		return nil
+	}
+	l := &extremesLister{check: a.check, found: f, listing: Offenders{Limit: a.check.env.MaxRowsListed}}
+	if a.check.streams() && a.Max > a.Min {
+		l.bins = make([]int64, histBins(a.finite()))
+		l.lo, l.hi = a.Min, a.Max
+	}
+	return l
+}
+
+func (a *ExtremesAccumulator) finding() *extFinding {
+	if a.found == nil {
+		a.found = a.check.analyse(&a.ExtremesState)
+	}
+	return a.found
+}

@@ -1,0 +1,455 @@
+package checks
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+
+	"github.com/assay-project/assay/checks/gof"
+	"github.com/assay-project/assay/checks/outlier"
+	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
+	"github.com/assay-project/assay/rules"
+)
+
+// jointCheck flags rows whose values, taken together, lie far from the
+// joint pattern of two or more numeric columns, by the squared
+// Mahalanobis distance
+//
+//	d²(x) = (x − μ)ᵀ Σ⁻¹ (x − μ)
+//
+// from a center μ and a covariance Σ estimated on the whole data. A row
+// is flagged when d² exceeds the chi-square quantile of the rule with p
+// degrees of freedom (p the number of columns), the distribution of d²
+// for p-variate normal rows and known (or consistently estimated)
+// parameters. The measure is the share of the judged rows flagged; rows
+// with a missing (or NaN, or infinite) value in any of the columns are
+// not judged, and are counted.
+//
+// First pass. Classical: the count, mean vector and co-moment matrix of
+// the judged rows are streamed (outlier.CoMoments: each batch summarised
+// by two passes, batches and accumulators merged by the pairwise update
+// of Chan, Golub & LeVeque 1979 in the co-moment form of Pébay 2008);
+// memory O(p²). Robust: the judged rows are kept, up to the rule's sample
+// size; beyond it a seeded uniform sample of that many rows is kept
+// instead (RowSample), on which the estimate rests.
+//
+// Finish. Classical: the mean and sample covariance (outlier.Classical's
+// estimate). Robust: outlier.FastMCD (Rousseeuw & Van Driessen 1999,
+// seeded) with its reweighting step and the consistency factor of Croux
+// & Haesbroeck (1999), as robustbase's covMcd computes them without its
+// small-sample correction.
+//
+// Second pass. Every judged row's d² is computed against the estimate;
+// rows beyond the cutoff are counted exactly and the worst listed, each
+// with the contribution of every column to its distance
+// (Scatter.Contributions), largest first. A seeded sample of at most
+// maxQQSample distances gives the report's quantile plot against the
+// chi-square distribution.
+type jointCheck struct {
+	rule   *rules.Rule
+	env    *Env
+	cols   []column
+	spec   rules.JointSpec
+	cutoff float64
+}
+
+// maxQQSample bounds the distances kept for the report's plot.
+const maxQQSample = 10_000
+
+func newJointCheck(r *rules.Rule, s rules.JointSpec, env *Env) (Check, error) {
+	p := len(r.Columns)
+	if p < 2 {
+		return nil, fmt.Errorf("a joint rule needs two or more columns, the rule names %d", p)
+	}
+	c := &jointCheck{rule: r, env: env, spec: s}
+	for _, name := range r.Columns {
+		col, err := bindColumn(env, name)
+		if err != nil {
+			return nil, err
+		}
+		if col.class != classInteger && col.class != classNumber {
+			return nil, fmt.Errorf("column %q holds %s; joint applies to integers and numbers", name, typeWords(col.typ))
+		}
+		c.cols = append(c.cols, col)
+	}
+	switch {
+	case s.Method != rules.JointMahalanobis:
+		return nil, fmt.Errorf("unknown joint method %q", s.Method)
+	case !(s.Quantile > 0 && s.Quantile < 1):
+		return nil, fmt.Errorf("quantile is %v, want 0 < quantile < 1", s.Quantile)
+	case s.Robust && s.Sample < p+2:
+		return nil, fmt.Errorf("a sample of %d rows is too small for a robust estimate over %d columns", s.Sample, p)
+	}
+	c.cutoff = outlier.Cutoff(p, s.Quantile)
+	return c, nil
+}
+
+func (c *jointCheck) Rule() *rules.Rule { return c.rule }
+
+func (c *jointCheck) NewAccumulator() Accumulator {
+	a := &JointAccumulator{check: c}
+	p := len(c.cols)
+	if c.spec.Robust {
+		a.Sample = NewRowSample(p, c.spec.Sample, c.spec.Seed)
+	} else {
+		a.Moments = outlier.NewCoMoments(p)
+	}
+	return a
+}
+
+// JointState is the first-pass state of a joint rule.
+type JointState struct {
+	N       int64 // rows judged: a finite value in every column
+	Skipped int64 // rows with a missing or non-finite value in some column
+	// Moments are the count, mean and co-moments of the judged rows
+	// (classical); Sample a uniform sample of them (robust).
+	Moments *outlier.CoMoments
+	Sample  *RowSample
+}
+
+// JointAccumulator is the first pass of a joint rule.
+type JointAccumulator struct {
+	JointState
+	check *jointCheck
+	rows  jointRows
+	found *jointFinding
+}
+
+// jointRows reads a batch's columns as float64, a row at a time.
+type jointRows struct {
+	scratch []scratch
+	cols    [][]float64 // per column, NaN for a missing value
+	row     []float64
+	judged  [][]float64 // per column, the judged rows of a batch
+}
+
+// read converts the batch's columns; it returns the number of rows.
+func (j *jointRows) read(c *jointCheck, b *source.Batch) (int, error) {
+	p := len(c.cols)
+	if j.cols == nil {
+		j.scratch, j.cols, j.row, j.judged = make([]scratch, p), make([][]float64, p), make([]float64, p), make([][]float64, p)
+	}
+	n := int(b.Record.NumRows())
+	for k, col := range c.cols {
+		arr, err := col.in(b)
+		if err != nil {
+			return 0, err
+		}
+		dst := slices.Grow(j.cols[k][:0], n)[:n]
+		v := validOf(arr)
+		if col.class == classNumber {
+			for i, x := range float64s(arr, &j.scratch[k].floats) {
+				if !v.at(i) {
+					x = math.NaN()
+				}
+				dst[i] = x
+			}
+		} else {
+			for i, x := range int64s(arr, &j.scratch[k].ints) {
+				dst[i] = float64(x)
+				if !v.at(i) {
+					dst[i] = math.NaN()
+				}
+			}
+		}
+		j.cols[k] = dst
+	}
+	return n, nil
+}
+
+// at loads row i into j.row and reports whether every value is finite.
+func (j *jointRows) at(i int) bool {
+	for k, col := range j.cols {
+		x := col[i]
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return false
+		}
+		j.row[k] = x
+	}
+	return true
+}
+
+// Observe adds the batch's judged rows to the moments or the sample.
+func (a *JointAccumulator) Observe(b *source.Batch) error {
+	n, err := a.rows.read(a.check, b)
+	if err != nil {
+		return err
+	}
+	judged := a.rows.judged
+	for k := range judged {
+		judged[k] = judged[k][:0]
+	}
+	for i := range n {
+		if !a.rows.at(i) {
+			a.Skipped++
+			continue
+		}
+		a.N++
+		if a.Sample != nil {
+			a.Sample.Offer(b.FirstRow+int64(i), a.rows.row)
+			continue
+		}
+		for k, x := range a.rows.row {
+			judged[k] = append(judged[k], x)
+		}
+	}
+	if a.Moments != nil {
+		return a.Moments.AddColumns(judged)
+	}
+	return nil
+}
+
+// Merge folds other's counts and moments or sample into a.
+func (a *JointAccumulator) Merge(other Accumulator) error {
+	o, ok := other.(*JointAccumulator)
+	if !ok || o.check != a.check {
+		return errMerge(a.check.rule, a, other)
+	}
+	a.N += o.N
+	a.Skipped += o.Skipped
+	if a.Moments != nil {
+		return a.Moments.Merge(o.Moments)
+	}
+	return a.Sample.Merge(o.Sample)
+}
+
+// Finish estimates the center and covariance; rows are judged only in the
+// second pass.
+func (a *JointAccumulator) Finish() report.Result {
+	return a.finding().result(a.check, -1, nil, nil)
+}
+
+// SecondPass returns the accumulator that judges every row against the
+// estimate, or nil when there is none.
+func (a *JointAccumulator) SecondPass() Accumulator {
+	f := a.finding()
+	if f.scatter == nil {
+		return nil
+	}
+	return &jointJudge{check: a.check, found: f, listing: Offenders{Limit: a.check.env.MaxRowsListed}}
+}
+
+func (a *JointAccumulator) finding() *jointFinding {
+	if a.found == nil {
+		a.found = a.check.estimate(&a.JointState)
+	}
+	return a.found
+}
+
+// jointFinding is the estimate a joint rule made from its first pass.
+type jointFinding struct {
+	st      JointState
+	scatter *outlier.Scatter // nil when the rule cannot judge rows
+	joint   report.Joint
+	about   string // how the estimate was made
+	skipped string // why no estimate could be made
+	err     error
+}
+
+// estimate makes the classical or robust estimate of the first pass's
+// rows.
+func (c *jointCheck) estimate(st *JointState) *jointFinding {
+	p := len(c.cols)
+	f := &jointFinding{st: *st}
+	f.joint = report.Joint{Method: string(c.spec.Method), Estimator: "classical", N: st.N, Skipped: st.Skipped, DF: p,
+		Quantile: report.Number(c.spec.Quantile), Cutoff: report.Number(c.cutoff), Seed: c.spec.Seed}
+	if c.spec.Robust {
+		f.joint.Estimator = "fast-mcd"
+	}
+	need := int64(p + 1)
+	if c.spec.Robust {
+		need = int64(p + 2)
+	}
+	switch {
+	case st.N == 0:
+		return f
+	case st.N < need:
+		f.skipped = fmt.Sprintf("%s needs at least %d rows with a value in every column, the data have %d", f.joint.Estimator, need, st.N)
+		return f
+	}
+	var s outlier.Scatter
+	if c.spec.Robust {
+		cols := st.Sample.Columns()
+		mcd, err := outlier.FastMCD(cols, outlier.MCDOptions{}, rand.New(rand.NewPCG(c.spec.Seed, 0x6d6364)))
+		if err != nil {
+			f.err = err
+			return f
+		}
+		s = mcd.Final
+		factor := report.Number(mcd.Factor)
+		f.joint.Subset, f.joint.Kept, f.joint.Factor = mcd.H, mcd.Kept, &factor
+		f.joint.SampleSize = int64(len(cols[0]))
+		f.joint.Sampled = f.joint.SampleSize < st.N
+		f.about = fmt.Sprintf("the robust center and covariance (FAST-MCD, reweighted: %s of %s rows kept)",
+			thousands(int64(mcd.Kept)), thousands(f.joint.SampleSize))
+		if f.joint.Sampled {
+			f.about += fmt.Sprintf(", estimated on a seeded sample of %s of the %s rows", thousands(f.joint.SampleSize), thousands(st.N))
+		}
+	} else {
+		var err error
+		if s, err = st.Moments.Scatter(); err != nil {
+			f.err = err
+			return f
+		}
+		f.about = "the mean and sample covariance"
+	}
+	f.scatter = &s
+	for j := range p {
+		f.joint.Center = append(f.joint.Center, report.Number(s.Center[j]))
+		row := make([]report.Number, p)
+		for k := range p {
+			row[k] = report.Number(s.Cov.At(j, k))
+		}
+		f.joint.Covariance = append(f.joint.Covariance, row)
+	}
+	return f
+}
+
+// result writes the finding as a result, with count rows beyond the
+// cutoff (-1 when not yet counted), the listing and the plotted sample of
+// distances.
+func (f *jointFinding) result(c *jointCheck, count int64, listing *Offenders, d2 []float64) report.Result {
+	r := c.rule
+	switch {
+	case f.err != nil:
+		return Failed(r, fmt.Errorf("%s: %w", f.joint.Estimator, f.err))
+	case f.skipped != "":
+		res := NewResult(r, math.NaN())
+		res.Status, res.Verdict, res.Message = report.Skipped, report.Pass, f.skipped
+		return res
+	}
+	measure := math.NaN()
+	if count >= 0 || f.st.N == 0 {
+		measure = share(max(count, 0), f.st.N)
+	}
+	res := NewResult(r, measure)
+	j := f.joint
+	res.Joint = &j
+	cut := fmt.Sprintf("beyond the squared Mahalanobis distance %s (chi-square %s quantile, %d degrees of freedom) from %s",
+		sig(c.cutoff), number(c.spec.Quantile), len(c.cols), f.about)
+	switch {
+	case f.st.N == 0:
+		res.Message = "no row has a value in every column"
+	case count < 0:
+		res.Message = "rows " + cut + " are counted in a second pass"
+	default:
+		res.Message = countOf(count, f.st.N, "rows") + " lie " + cut
+	}
+	if f.st.Skipped > 0 {
+		res.Message += fmt.Sprintf("; %s rows with a missing or non-finite value not judged", thousands(f.st.Skipped))
+	}
+	if f.scatter != nil {
+		res.Estimates = map[string]float64{"cutoff": c.cutoff}
+		for k, col := range c.cols {
+			res.Estimates["center."+col.name] = f.scatter.Center[k]
+		}
+		res.Estimates = finite(res.Estimates)
+	}
+	if len(d2) > 0 {
+		j.QQ = chiSquareQQ(d2, len(c.cols))
+	}
+	if listing != nil {
+		res.Offending = offending(count, listing)
+	}
+	return res
+}
+
+// chiSquareQQ pairs, at up to maxQQ probabilities p = (i + 1/2)/m, the
+// sample quantile of the squared distances d2 (sorted here) with the
+// chi-square quantile with df degrees of freedom.
+func chiSquareQQ(d2 []float64, df int) *report.QQ {
+	slices.Sort(d2)
+	m := min(maxQQ, len(d2))
+	q := &report.QQ{Fitted: make([]report.Number, m), Sample: make([]report.Number, m)}
+	for i := range m {
+		p := (float64(i) + 0.5) / float64(m)
+		k := min(len(d2)-1, max(0, int(math.Ceil(p*float64(len(d2))))-1))
+		q.Sample[i] = report.Number(d2[k])
+		q.Fitted[i] = report.Number(outlier.Cutoff(df, p))
+	}
+	return q
+}
+
+// jointJudge is the second pass of a joint rule: it computes every judged
+// row's squared distance, counts and lists those beyond the cutoff, and
+// samples the distances for the plot.
+type jointJudge struct {
+	check   *jointCheck
+	found   *jointFinding
+	listing Offenders
+	rows    jointRows
+	plot    *gof.Reservoir
+}
+
+// Observe judges the batch's rows.
+func (l *jointJudge) Observe(b *source.Batch) error {
+	c := l.check
+	n, err := l.rows.read(c, b)
+	if err != nil {
+		return err
+	}
+	if l.plot == nil {
+		if l.plot, err = gof.NewReservoir(maxQQSample, shardSeed(c.spec.Seed, b.FirstRow)); err != nil {
+			return err
+		}
+	}
+	s := l.found.scatter
+	idx := make([]int, len(c.cols))
+	for k, col := range c.cols {
+		idx[k] = col.index
+	}
+	for i := range n {
+		if !l.rows.at(i) {
+			continue
+		}
+		d2 := s.Dist2(l.rows.row)
+		l.plot.Add(d2)
+		if !(d2 > c.cutoff) {
+			continue
+		}
+		l.listing.Add(d2, b.FirstRow+int64(i), func() report.Row {
+			row := RowAt(c.env, b, i, idx)
+			row.Contributions = contributions(c, s.Contributions(l.rows.row))
+			return row
+		})
+	}
+	return nil
+}
+
+// contributions names and ranks a row's contributions to its distance.
+func contributions(c *jointCheck, v []float64) []report.Contribution {
+	e := outlier.RowExtreme{Contrib: v}
+	out := make([]report.Contribution, 0, len(v))
+	for _, k := range e.Ranked() {
+		out = append(out, report.Contribution{Column: c.cols[k].name, Value: report.Number(v[k])})
+	}
+	return out
+}
+
+// Merge adds other's listing and sampled distances to l.
+func (l *jointJudge) Merge(other Accumulator) error {
+	o, ok := other.(*jointJudge)
+	if !ok || o.check != l.check {
+		return errMerge(l.check.rule, l, other)
+	}
+	l.listing.Merge(&o.listing)
+	switch {
+	case o.plot == nil:
+	case l.plot == nil:
+		l.plot = o.plot
+	default:
+		return l.plot.Merge(o.plot)
+	}
+	return nil
+}
+
+// Finish judges the share of rows beyond the cutoff.
+func (l *jointJudge) Finish() report.Result {
+	var d2 []float64
+	if l.plot != nil {
+		d2 = l.plot.Values()
+	}
+	return l.found.result(l.check, l.listing.Count, &l.listing, d2)
+}
