@@ -28,8 +28,9 @@ const (
 	// (masking; Rousseeuw & Van Zomeren 1990).
 	DefaultJointRobust = true
 	// DefaultJointSample is how many rows FAST-MCD keeps before it
-	// samples: at three columns its estimate on 100,000 rows takes about
-	// two seconds (own choice; see checks' BenchmarkJoint).
+	// samples: at three columns both passes over a million rows then take
+	// about 0.3 s, against 2 s when FAST-MCD runs on every row (own choice;
+	// see checks' BenchmarkJoint).
 	DefaultJointSample = 100_000
 	// minJointSample is the smallest sample a policy may ask for.
 	minJointSample = 100
