@@ -121,7 +121,7 @@ func (s *Set) scanArrow(ctx context.Context, i int, proj []int, schema *arrow.Sc
 		if err := ctx.Err(); err != nil {
 			return rows, err
 		}
-		rec, err := next()
+		rec, err := guard(next)
 		if err == io.EOF {
 			return rows, nil
 		}

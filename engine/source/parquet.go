@@ -114,7 +114,15 @@ func (s *Set) scanParquet(ctx context.Context, i int, proj []int, schema *arrow.
 	defer rr.Release()
 	// The reader's columns come in the order of proj, as cols lists them.
 	var rows int64
-	for rr.Next() {
+	for {
+		more, err := guard(func() (bool, error) { return rr.Next(), nil })
+		if err != nil {
+			return rows, &Error{Path: in.name, Row: rows + 1, Err: err, Msg: fmt.Sprintf(
+				"cannot decode the Parquet data after row %d: %v (the file is damaged; copy it again)", rows, err)}
+		}
+		if !more {
+			break
+		}
 		if err := ctx.Err(); err != nil {
 			return rows, err
 		}
@@ -129,6 +137,20 @@ func (s *Set) scanParquet(ctx context.Context, i int, proj []int, schema *arrow.
 			"cannot read the Parquet data after row %d: %v (the file is damaged; copy it again)", rows, err)}
 	}
 	return rows, nil
+}
+
+// guard calls step, which runs arrow-go's decoders. They can panic on a
+// damaged page or message (a bad length, offset or dictionary index)
+// instead of returning an error; guard turns such a panic into an error so
+// that a damaged file is reported like any other bad input. Only arrow-go's
+// reading runs inside step, never our own code.
+func guard[T any](step func() (T, error)) (v T, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("decoder failure: %v", p)
+		}
+	}()
+	return step()
 }
 
 // deliver converts columns as stored, stored[k] holding the Set's column

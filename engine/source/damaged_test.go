@@ -1,0 +1,78 @@
+package source
+
+import (
+	"context"
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+)
+
+// TestDamagedParquetPages damages the data pages of a valid Parquet file
+// one byte at a time and checks that every scan either succeeds or returns
+// a located *Error: never a panic, whatever arrow-go's decoders make of the
+// damage.
+func TestDamagedParquetPages(t *testing.T) {
+	dir := t.TempDir()
+	good := filepath.Join(dir, "good.parquet")
+	fx := fixture{
+		fields: []arrow.Field{
+			{Name: "id", Type: arrow.PrimitiveTypes.Int64},
+			{Name: "x", Type: arrow.PrimitiveTypes.Float64, Nullable: true},
+			{Name: "tag", Type: arrow.BinaryTypes.String},
+		},
+		rows: func(b *array.RecordBuilder) {
+			for i := range 500 {
+				b.Field(0).(*array.Int64Builder).Append(int64(i))
+				if i%7 == 0 {
+					b.Field(1).(*array.Float64Builder).AppendNull()
+				} else {
+					b.Field(1).(*array.Float64Builder).Append(float64(i) / 3)
+				}
+				b.Field(2).(*array.StringBuilder).Append(fmt.Sprintf("t%d", i%5))
+			}
+		},
+	}
+	writeParquet(t, good, fx, 200)
+	data, err := os.ReadFile(good)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The footer (metadata) is at the end: its length sits before the
+	// closing magic. Damage only the bytes before it.
+	footer := int(binary.LittleEndian.Uint32(data[len(data)-8:]))
+	pages := len(data) - 8 - footer
+	if pages < 100 {
+		t.Fatalf("unexpected layout: %d page bytes of %d", pages, len(data))
+	}
+	bad := filepath.Join(dir, "bad.parquet")
+	failed := 0
+	for off := 4; off < pages; off += 13 {
+		damaged := append([]byte(nil), data...)
+		damaged[off] ^= 0xA5
+		if err := os.WriteFile(bad, damaged, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		set, err := Open([]string{bad}, Options{})
+		if err == nil {
+			err = set.Scan(context.Background(), nil, func(b *Batch) error { return nil })
+			set.Close()
+		}
+		if err == nil {
+			continue
+		}
+		failed++
+		var located *Error
+		if !errors.As(err, &located) || located.Path == "" {
+			t.Fatalf("offset %d: error does not name the file: %v", off, err)
+		}
+	}
+	if failed == 0 {
+		t.Error("no damaged copy was refused: the test does not reach the decoders")
+	}
+}
