@@ -342,7 +342,7 @@ func (c *extremesCheck) esd(st *ExtremesState, sorted []float64, f *extFinding) 
 		flagged[st.Rows[s.Index]] = s.R
 	}
 	mean, sd := meanSD(sorted)
-	f.estimates = map[string]float64{"mean": mean, "sd": sd, "alpha": c.spec.Alpha, "outliers": float64(res.Outliers)}
+	f.estimates = map[string]float64{"mean": mean, "sd": sd}
 	f.fitted = fmt.Sprintf("outliers by the generalized ESD test (%d found, up to %d looked for, alpha %s)", res.Outliers, r,
 		number(c.spec.Alpha))
 	f.flagSteps(res.Steps[:res.Outliers], sorted, mean, sd, flagged)
@@ -360,7 +360,7 @@ func (c *extremesCheck) grubbs(st *ExtremesState, sorted []float64, f *extFindin
 	f.statistic = &report.Statistic{Name: "G", Value: report.Number(g.G), N: n}
 	p := g.P
 	f.pValue = &p
-	f.estimates = map[string]float64{"mean": mean, "sd": sd, "alpha": c.spec.Alpha, "critical": g.Critical}
+	f.estimates = map[string]float64{"mean": mean, "sd": sd, "critical": g.Critical}
 	verdict := "no outlier"
 	var steps []outlier.ESDStep
 	flagged := map[int64]float64{}
@@ -398,6 +398,12 @@ func (f *extFinding) flagSteps(steps []outlier.ESDStep, sorted []float64, mean, 
 		}
 	}
 	f.setScale(mean, sd, lower, upper)
+	if !math.IsInf(lower, 0) {
+		f.estimates["lower"] = lower
+	}
+	if !math.IsInf(upper, 0) {
+		f.estimates["upper"] = upper
+	}
 	f.settle(sorted, lo, hi, nil, func(_ float64, row int64) (bool, float64) {
 		score, ok := rows[row]
 		return ok, score

@@ -81,7 +81,7 @@ func (p *printer) joint(res Result) {
 	}
 	p.printf("  %s; %s rows judged", how, groupDigits(j.N))
 	if j.Skipped > 0 {
-		p.printf(", %s with a missing value not judged", groupDigits(j.Skipped))
+		p.printf(", %s with a missing or non-finite value not judged", groupDigits(j.Skipped))
 	}
 	p.printf("\n")
 	if len(j.Center) == len(res.Columns) {
