@@ -98,6 +98,14 @@ func Run(ctx context.Context, p *rules.Policy, paths []string, opts Options) (*r
 		Tool:    report.Tool{Name: "assay", Version: Version},
 		Started: started.UTC(),
 	}
+	for _, c := range p.Columns {
+		if c.Unit != "" {
+			if rep.Units == nil {
+				rep.Units = map[string]string{}
+			}
+			rep.Units[c.Name] = c.Unit
+		}
+	}
 	for _, f := range set.Files() {
 		rep.Sources = append(rep.Sources, report.Source{Path: f.Path, Format: f.Format.String(), Rows: f.Rows})
 		rep.Rows += f.Rows

@@ -106,6 +106,11 @@ type Report struct {
 	Tool     Tool      `json:"tool"`
 	Started  time.Time `json:"started"`
 	Duration float64   `json:"duration_seconds"`
+
+	// Units maps a column to the unit of its values, for the columns whose
+	// policy gives one (e.g. "weight_kg": "kg"); charts and tables label
+	// values with it.
+	Units map[string]string `json:"units,omitempty"`
 }
 
 // Policy identifies the policy a report judged against.
