@@ -119,7 +119,7 @@ type checkFlags struct {
 }
 
 // formats are the report formats --format and --report take.
-var formats = []string{"text", "json", "junit", "markdown"}
+var formats = []string{"text", "json", "junit", "markdown", "html"}
 
 // reportSpec is one --report FORMAT=PATH.
 type reportSpec struct {
@@ -317,6 +317,8 @@ func render(w io.Writer, format string, rep *report.Report, f checkFlags, color 
 		return report.WriteJUnit(w, rep, report.JUnitOptions{Strict: f.strict})
 	case "markdown":
 		return report.WriteMarkdown(w, rep)
+	case "html":
+		return report.WriteHTML(w, rep)
 	}
 	return report.WriteText(w, rep, report.TextOptions{Color: color})
 }

@@ -230,6 +230,9 @@ func TestGolden(t *testing.T) {
 				got = blankTimes(t, got)
 			case "junit":
 				got = xmlTimes.ReplaceAll(got, []byte(`$1="(blanked)"`))
+			case "html":
+				got = htmlStarted.ReplaceAll(got, []byte(`<time datetime="(blanked)">(blanked)</time>`))
+				got = htmlDuration.ReplaceAll(got, []byte(`<dd class="duration">(blanked)</dd>`))
 			}
 			golden := filepath.Join("testdata", "soil", "bad."+format+".golden")
 			if *update {
@@ -250,6 +253,13 @@ func TestGolden(t *testing.T) {
 
 // xmlTimes matches the time attributes of a JUnit report.
 var xmlTimes = regexp.MustCompile(`\b(time|timestamp)="[^"]*"`)
+
+// htmlStarted and htmlDuration match the start time and the duration of an
+// HTML report.
+var (
+	htmlStarted  = regexp.MustCompile(`<time datetime="[^"]*">[^<]*</time>`)
+	htmlDuration = regexp.MustCompile(`<dd class="duration">[^<]*</dd>`)
+)
 
 func blankTimes(t *testing.T, data []byte) []byte {
 	t.Helper()

@@ -1,0 +1,338 @@
+package report
+
+import (
+	"bytes"
+	"encoding/xml"
+	"io"
+	"math"
+	"slices"
+	"strings"
+	"testing"
+	"time"
+
+	"gonum.org/v1/gonum/stat"
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// distributionReport is a report with the results a distribution rule
+// gives: a numeric fit that fails, with candidates, regions, a histogram,
+// a Q-Q plot and offending rows, and a categorical one that passes, with
+// cells. The values are made up for the rendering (quantiles of two
+// normals, for a cool shoulder), not a statistical reference.
+func distributionReport() *Report {
+	var xs []float64
+	warm := distuv.Normal{Mu: 34.5, Sigma: 0.3}
+	cool := distuv.Normal{Mu: 33.4, Sigma: 0.4}
+	for i := range 240 {
+		xs = append(xs, math.Round(warm.Quantile((float64(i)+0.5)/240)*100)/100)
+	}
+	for i := range 60 {
+		xs = append(xs, math.Round(cool.Quantile((float64(i)+0.5)/60)*100)/100)
+	}
+	mean, sd := stat.MeanStdDev(xs, nil)
+	fitted := distuv.Normal{Mu: mean, Sigma: sd}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, x := range xs {
+		lo, hi = min(lo, x), max(hi, x)
+	}
+	const bins = 12
+	h := &Histogram{Counts: make([]int64, bins), Density: make([]Number, bins)}
+	for j := 0; j <= bins; j++ {
+		h.Edges = append(h.Edges, Number(lo+(hi-lo)*float64(j)/bins))
+	}
+	for _, x := range xs {
+		h.Counts[min(bins-1, int((x-lo)/(hi-lo)*bins))]++
+	}
+	for j := range bins {
+		h.Density[j] = Number(fitted.Prob(float64(h.Edges[j]+h.Edges[j+1]) / 2))
+	}
+	sorted := append([]float64(nil), xs...)
+	slices.Sort(sorted)
+	qq := &QQ{}
+	for i := range 50 {
+		p := (float64(i) + 0.5) / 50
+		qq.Fitted = append(qq.Fitted, Number(fitted.Quantile(p)))
+		qq.Sample = append(qq.Sample, Number(stat.Quantile(p, stat.Empirical, sorted, nil)))
+	}
+	num := func(f float64) *Number { n := Number(f); return &n }
+	pv := 0.0004
+	return &Report{
+		Schema:  SchemaVersion,
+		Verdict: Fail,
+		Policy:  Policy{Name: "brood-nest", File: "brood.yaml", Hash: "sha256:00ff"},
+		Rows:    300,
+		Sources: []Source{{Path: "brood.csv", Format: "csv", Rows: 300}},
+		Counts:  Counts{Pass: 2, Fail: 1},
+		Tool:    Tool{Name: "assay", Version: "0.1.0"},
+		Started: time.Date(2025, 6, 9, 8, 30, 0, 0, time.UTC),
+		Units:   map[string]string{"brood_temp_c": "°C"},
+		Results: []Result{
+			{
+				ID: "columns.brood_temp_c.distribution", Check: "distribution", Columns: []string{"brood_temp_c"},
+				Status: OK, Verdict: Fail,
+				Measure:   Measure{Name: "KS distance", Value: 0.1123, Unit: "value"},
+				Tolerance: Tolerance{Direction: "at most", Warn: Number(0.05), Fail: Number(0.1)},
+				Statistic: &Statistic{Name: "D", Value: 0.1123, N: 300},
+				PValue:    &pv,
+				Estimates: map[string]float64{"mean": mean, "sd": sd},
+				Message:   "KS distance 0.1123 between 300 values and normal (fitted)",
+				Offending: &Offending{Count: 61, Rows: []Row{
+					{Row: 300, Line: 301, Values: map[string]any{"brood_temp_c": 32.5}, Score: 3.1},
+					{Row: 299, Line: 300, Values: map[string]any{"brood_temp_c": 32.73}, Score: 2.4},
+					{Row: 298, Line: 299, Values: map[string]any{"brood_temp_c": 32.84}, Score: 2.1},
+				}},
+				Policy: "brood.yaml:7:5",
+				Fit: &Fit{
+					Family: "normal", Estimated: 2, N: 300, SampleSize: 300, Seed: 1,
+					Resolution: num(0.01), Test: "ks",
+					Method:   TestMethod{Kind: "asymptotic", Source: "Kolmogorov (1933)", Conservative: true},
+					Distance: 0.1123,
+					Candidates: []Candidate{
+						{Family: "normal", Estimates: map[string]float64{"mean": mean, "sd": sd}, LogLik: -250.5, AIC: 505, BIC: 512.4},
+						{Family: "lognormal", Estimates: map[string]float64{"meanlog": 3.53, "sdlog": 0.018}, LogLik: -251, AIC: 506, BIC: 513.4},
+						{Family: "gamma", Skipped: "did not converge", LogLik: Number(math.NaN()), AIC: Number(math.NaN()), BIC: Number(math.NaN())},
+					},
+					Regions:   []Region{{Hi: num(33.9), Count: 61, Observed: 0.2033, Expected: 0.1209}},
+					QQ:        qq,
+					Histogram: h,
+				},
+			},
+			{
+				ID: "columns.frame.distribution", Check: "distribution", Columns: []string{"frame"},
+				Status: OK, Verdict: Pass,
+				Measure:   Measure{Name: "TV distance", Value: 0.02, Unit: "value"},
+				Tolerance: Tolerance{Direction: "at most", Warn: Number(0.05), Fail: Number(0.1)},
+				Fit: &Fit{
+					Family: "categorical", N: 300, SampleSize: 300, Test: "chi-square", DF: 2,
+					Method:   TestMethod{Kind: "asymptotic", Source: "Pearson (1900)"},
+					Distance: 0.02,
+					Cells: []Cell{
+						{Label: "brood", Count: 150, Expected: 0.5},
+						{Label: "honey", Count: 96, Expected: 0.3},
+						{Label: "pollen", Count: 54, Expected: 0.2},
+					},
+				},
+			},
+			{
+				ID: "table.rows", Check: "rows", Status: OK, Verdict: Pass,
+				Measure:   Measure{Name: "row count", Value: 300, Unit: "count"},
+				Tolerance: Tolerance{Direction: "within", Fail: [2]Number{100, Number(math.Inf(1))}},
+			},
+		},
+		Duration: 0.25,
+	}
+}
+
+func renderHTML(t *testing.T, r *Report) []byte {
+	t.Helper()
+	var b bytes.Buffer
+	if err := WriteHTML(&b, r); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+func TestHTMLGolden(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		r    *Report
+	}{
+		{"sample.html", sampleReport()},
+		{"distribution.html", distributionReport()},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			got := renderHTML(t, c.r)
+			if again := renderHTML(t, c.r); !bytes.Equal(got, again) {
+				t.Fatal("two renderings of the same report differ")
+			}
+			golden(t, c.name, got)
+		})
+	}
+}
+
+// TestHTMLStructure parses the page and checks it against the report: a
+// section per rule headed by its id, as many offending rows listed as the
+// report lists, and a chart for each kind of plot data a result carries,
+// each with a title and a description.
+func TestHTMLStructure(t *testing.T) {
+	for _, r := range []*Report{sampleReport(), distributionReport()} {
+		t.Run(r.Policy.Name, func(t *testing.T) {
+			doc := parseHTML(t, renderHTML(t, r))
+			sections := doc.findAll(func(n *node) bool { return n.tag == "section" && n.hasClass("rule") })
+			byID := map[string]*node{}
+			for _, s := range sections {
+				if code := s.find(func(n *node) bool { return n.tag == "code" && n.parent.tag == "h3" }); code != nil {
+					byID[code.text()] = s
+				}
+			}
+			if len(sections) != len(r.Results) || len(byID) != len(r.Results) {
+				t.Fatalf("%d rule sections, %d headed by a rule id, want %d", len(sections), len(byID), len(r.Results))
+			}
+			for _, res := range r.Results {
+				s := byID[res.ID]
+				if s == nil {
+					t.Errorf("no section for rule %s", res.ID)
+					continue
+				}
+				var listed int
+				if tb := s.find(func(n *node) bool { return n.tag == "table" && n.hasClass("offending") }); tb != nil {
+					listed = len(tb.findAll(func(n *node) bool { return n.tag == "tr" && n.parent.tag == "tbody" }))
+					if cap := tb.find(func(n *node) bool { return n.tag == "caption" }); cap == nil ||
+						!strings.Contains(cap.text(), groupDigits(res.Offending.Count)) {
+						t.Errorf("%s: offending table caption does not give the count %d", res.ID, res.Offending.Count)
+					}
+				}
+				want := 0
+				if res.Offending != nil && res.Status == OK {
+					want = len(res.Offending.Rows)
+				}
+				if listed != want {
+					t.Errorf("%s: %d offending rows in the table, want %d", res.ID, listed, want)
+				}
+				svgs := s.findAll(func(n *node) bool { return n.tag == "svg" })
+				if got, want := len(svgs), chartData(res); got != want {
+					t.Errorf("%s: %d charts, want %d", res.ID, got, want)
+				}
+				for _, svg := range svgs {
+					if svg.attr["viewBox"] == "" || svg.attr["role"] != "img" {
+						t.Errorf("%s: chart without viewBox or role: %v", res.ID, svg.attr)
+					}
+					title := svg.find(func(n *node) bool { return n.tag == "title" })
+					desc := svg.find(func(n *node) bool { return n.tag == "desc" })
+					if title == nil || desc == nil || title.text() == "" || desc.text() == "" {
+						t.Errorf("%s: chart without a title or a description", res.ID)
+					}
+				}
+			}
+		})
+	}
+}
+
+// chartData counts the kinds of plot data a result carries.
+func chartData(res Result) int {
+	n := 0
+	if f := res.Fit; f != nil {
+		if f.Histogram != nil {
+			n++
+		}
+		if f.QQ != nil {
+			n++
+		}
+		if len(f.Cells) > 0 {
+			n++
+		}
+	}
+	return n
+}
+
+// TestHTMLEscapes checks that markup in report texts, in table cells and
+// in chart labels, reaches the page as text.
+func TestHTMLEscapes(t *testing.T) {
+	r := distributionReport()
+	r.Policy.Name = `<script>alert("policy")</script>`
+	res := &r.Results[0]
+	col := `temp<b>&"c`
+	res.Columns = []string{col}
+	res.Message = `<img src=x onerror=alert(1)>`
+	res.Offending.Rows[0].Values = map[string]any{col: "<i>hot</i>"}
+	r.Units = map[string]string{col: "<u>"}
+	out := string(renderHTML(t, r))
+	for _, bad := range []string{"<script>", "<b>", "<img", "<i>", "<u>"} {
+		if strings.Contains(out, bad) {
+			t.Errorf("page contains unescaped %q", bad)
+		}
+	}
+	for _, want := range []string{
+		"&lt;script&gt;alert(&#34;policy&#34;)&lt;/script&gt;", // the heading
+		"&lt;img src=x onerror=alert(1)&gt;",                   // the message
+		"&lt;i&gt;hot&lt;/i&gt;",                               // a table cell
+		"temp&lt;b&gt;&amp;&#34;c (&lt;u&gt;)",                 // a chart's axis label, as vgsvg escapes it
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("page lacks the escaped text %s", want)
+		}
+	}
+	parseHTML(t, []byte(out))
+}
+
+// node is an element of a parsed page.
+type node struct {
+	tag      string
+	attr     map[string]string
+	children []*node
+	parent   *node
+	chars    string
+}
+
+// parseHTML parses a page with encoding/xml in its HTML mode (void
+// elements closed, HTML entities known), failing on markup it cannot
+// nest.
+func parseHTML(t *testing.T, page []byte) *node {
+	t.Helper()
+	d := xml.NewDecoder(bytes.NewReader(page))
+	d.Strict = false
+	d.AutoClose = xml.HTMLAutoClose
+	d.Entity = xml.HTMLEntity
+	root := &node{tag: "#document"}
+	cur := root
+	for {
+		tok, err := d.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatalf("page does not parse: %v", err)
+		}
+		switch tok := tok.(type) {
+		case xml.StartElement:
+			n := &node{tag: tok.Name.Local, attr: map[string]string{}, parent: cur}
+			for _, a := range tok.Attr {
+				n.attr[a.Name.Local] = a.Value
+			}
+			cur.children = append(cur.children, n)
+			cur = n
+		case xml.EndElement:
+			if cur.tag != tok.Name.Local {
+				t.Fatalf("</%s> closes <%s>", tok.Name.Local, cur.tag)
+			}
+			cur = cur.parent
+		case xml.CharData:
+			cur.chars += string(tok)
+		}
+	}
+	if cur != root {
+		t.Fatalf("<%s> is not closed", cur.tag)
+	}
+	return root
+}
+
+func (n *node) findAll(match func(*node) bool) []*node {
+	var out []*node
+	for _, c := range n.children {
+		if match(c) {
+			out = append(out, c)
+		}
+		out = append(out, c.findAll(match)...)
+	}
+	return out
+}
+
+func (n *node) find(match func(*node) bool) *node {
+	if all := n.findAll(match); len(all) > 0 {
+		return all[0]
+	}
+	return nil
+}
+
+func (n *node) hasClass(c string) bool {
+	return strings.Contains(" "+n.attr["class"]+" ", " "+c+" ")
+}
+
+// text is the element's text, its descendants' included.
+func (n *node) text() string {
+	s := n.chars
+	for _, c := range n.children {
+		s += c.text()
+	}
+	return strings.TrimSpace(s)
+}
