@@ -62,6 +62,7 @@ func TestDemoVerdicts(t *testing.T) {
 
 			"columns.brood_temp_c.type":           {"fail", errTo - errFrom},
 			"columns.brood_temp_c.summary.median": {"pass", -1},
+			"columns.brood_temp_c.distribution":   {"warn", -1},
 
 			"columns.ambient_temp_c.type":        pass,
 			"columns.ambient_temp_c.minimum":     pass,
@@ -95,6 +96,10 @@ func TestDemoVerdicts(t *testing.T) {
 			"table.key": fmt.Sprintf("row %d line %d", 49*40+9, 49*40+10),
 			// truncatedHive, H-021, is the 13th.
 			"columns.hive_id.pattern": fmt.Sprintf("row %d line %d", truncatedHour*40+13, truncatedHour*40+14),
+			// The most extreme brood reading is a swapped probe of
+			// swapHive, H-008, the 8th hive: its first swapped hour reads
+			// the air, not the nest.
+			"columns.brood_temp_c.distribution": fmt.Sprintf("row %d line %d", swapFrom*40+8, swapFrom*40+9),
 		},
 	}, {
 		policy:  "../inspections.yaml",
