@@ -1,6 +1,7 @@
 // Command assay checks data files against a declarative, statistical policy.
 //
 //	assay check POLICY [DATA...]   evaluate a policy; exit 0 pass or warn, 1 fail, 2 trouble
+//	assay baseline DATA... -o FILE save a summary of trusted data for drift rules
 //	assay explain POLICY           print the resolved rules of a policy
 //	assay schema                   print the JSON Schema of policy files
 //	assay version                  print the version
@@ -43,6 +44,7 @@ const usage = `usage: assay <command> [arguments]
 
 commands:
   check POLICY [DATA...]   evaluate a policy on data (CSV, Parquet, Arrow; "-" reads standard input)
+  baseline DATA... -o F    save a compact summary of trusted data for drift rules (JSON)
   explain POLICY           print the resolved rules: id, check, columns, measure, thresholds
   schema                   print the JSON Schema of policy files
   version                  print the version
@@ -61,6 +63,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	switch args[0] {
 	case "check":
 		return runCheck(ctx, args[1:], stdin, stdout, stderr)
+	case "baseline":
+		return runBaseline(ctx, args[1:], stderr)
 	case "explain":
 		return runExplain(args[1:], stdout, stderr)
 	case "schema":
