@@ -98,7 +98,7 @@ func (p *printer) label(res Result) string {
 	case Error:
 		return p.paintCode("1;35", "ERROR")
 	case Skipped:
-		return "skip "
+		return p.paintCode("0;39", "skip ")
 	}
 	switch res.Verdict {
 	case Fail:
@@ -116,9 +116,13 @@ func (p *printer) paint(v Verdict, s string) string {
 	case Warn:
 		return p.paintCode("1;33", s)
 	}
-	return p.paintCode("32", s)
+	return p.paintCode("0;32", s)
 }
 
+// paintCode wraps s in the ANSI colour code. Every code of a verdict label
+// has four bytes (the default colour of "skip" too) because tabwriter counts
+// the escape bytes as width: labels of equal byte length keep the columns of
+// the rule lines aligned on a terminal.
 func (p *printer) paintCode(code, s string) string {
 	if !p.color {
 		return s

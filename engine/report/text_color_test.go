@@ -1,0 +1,34 @@
+package report
+
+import (
+	"bytes"
+	"regexp"
+	"testing"
+)
+
+// TestTextColorKeepsColumns renders the sample report (every verdict and
+// status) with and without colour: once the escape codes are removed the two
+// must be the same text, so colour never shifts the columns of the rule lines.
+func TestTextColorKeepsColumns(t *testing.T) {
+	var plain, colored bytes.Buffer
+	if err := WriteText(&plain, sampleReport(), TextOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteText(&colored, sampleReport(), TextOptions{Color: true}); err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Contains(colored.Bytes(), []byte("\x1b[")) {
+		t.Fatal("colour asked for, but the text has no escape code")
+	}
+	stripped := regexp.MustCompile("\x1b\\[[0-9;]*m").ReplaceAll(colored.Bytes(), nil)
+	got := bytes.Split(stripped, []byte("\n"))
+	want := bytes.Split(plain.Bytes(), []byte("\n"))
+	if len(got) != len(want) {
+		t.Fatalf("coloured text has %d lines, plain text %d", len(got), len(want))
+	}
+	for i := range got {
+		if !bytes.Equal(got[i], want[i]) {
+			t.Errorf("line %d, coloured without its codes:\n%q\nplain:\n%q", i+1, got[i], want[i])
+		}
+	}
+}
