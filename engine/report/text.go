@@ -23,7 +23,11 @@ type TextOptions struct {
 func WriteText(w io.Writer, r *Report, o TextOptions) error {
 	p := &printer{w: w, color: o.Color}
 	p.printf("assay %s · policy %s (%s)\n", r.Tool.Version, r.Policy.Name, r.Policy.File)
-	p.printf("data: %s rows from %s\n\n", groupDigits(r.Rows), sourceList(r.Sources))
+	rows := "rows"
+	if r.Rows == 1 {
+		rows = "row"
+	}
+	p.printf("data: %s %s from %s\n\n", groupDigits(r.Rows), rows, sourceList(r.Sources))
 
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	for _, res := range r.Results {

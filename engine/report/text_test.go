@@ -32,3 +32,27 @@ func TestTextColorKeepsColumns(t *testing.T) {
 		}
 	}
 }
+
+// TestTextDataLine checks the line saying how much data was read, in the
+// singular and the plural.
+func TestTextDataLine(t *testing.T) {
+	tests := []struct {
+		rows    int64
+		sources []Source
+		want    string
+	}{
+		{0, nil, "data: 0 rows from no file\n"},
+		{1, []Source{{Path: "a.csv"}}, "data: 1 row from a.csv\n"},
+		{12345, []Source{{Path: "a.csv"}, {Path: "b.csv"}}, "data: 12,345 rows from 2 files\n"},
+	}
+	for _, tt := range tests {
+		rep := &Report{Rows: tt.rows, Sources: tt.sources, Verdict: Pass}
+		var b bytes.Buffer
+		if err := WriteText(&b, rep, TextOptions{}); err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Contains(b.Bytes(), []byte("\n"+tt.want)) {
+			t.Errorf("%d rows: got\n%s\nwant a line %q", tt.rows, b.String(), tt.want)
+		}
+	}
+}
