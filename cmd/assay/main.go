@@ -3,6 +3,7 @@
 //	assay check POLICY [DATA...]   evaluate a policy; exit 0 pass or warn, 1 fail, 2 trouble
 //	assay baseline DATA... -o FILE save a summary of trusted data for drift rules
 //	assay explain POLICY           print the resolved rules of a policy
+//	assay profile DATA... [-o F]   draft a policy from trusted data
 //	assay schema                   print the JSON Schema of policy files
 //	assay version                  print the version
 package main
@@ -46,6 +47,7 @@ commands:
   check POLICY [DATA...]   evaluate a policy on data (CSV, Parquet, Arrow; "-" reads standard input)
   baseline DATA... -o F    save a compact summary of trusted data for drift rules (JSON)
   explain POLICY           print the resolved rules: id, check, columns, measure, thresholds
+  profile DATA... [-o F]   draft a policy from trusted data (types, nulls, ranges, families, pairs, keys)
   schema                   print the JSON Schema of policy files
   version                  print the version
 
@@ -67,6 +69,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		return runBaseline(ctx, args[1:], stderr)
 	case "explain":
 		return runExplain(args[1:], stdout, stderr)
+	case "profile":
+		return runProfile(ctx, args[1:], stdin, stdout, stderr)
 	case "schema":
 		if _, err := stdout.Write(rules.JSONSchema); err != nil {
 			return trouble(stderr, err)
