@@ -123,6 +123,93 @@ func distributionReport() *Report {
 	}
 }
 
+// outlierReport is a report with the results of extremes and joint rules:
+// Tukey fences with a box plot, a histogram and three listed values; a
+// z-score rule that kept no values to plot; and a joint rule with its
+// distances against chi-square quantiles and rows with their columns'
+// contributions. The numbers are made up for the rendering.
+func outlierReport() *Report {
+	num := func(f float64) *Number { n := Number(f); return &n }
+	counts := []int64{1, 0, 0, 30, 200, 66, 0, 0, 1, 1}
+	h := &Histogram{Counts: counts}
+	for i := range len(counts) + 1 {
+		h.Edges = append(h.Edges, Number(470+7.5*float64(i)))
+	}
+	chi2 := distuv.ChiSquared{K: 2}
+	qq := &QQ{}
+	for i := range 40 {
+		p := (float64(i) + 0.5) / 40
+		d := chi2.Quantile(p)
+		if i >= 38 {
+			d += 20 * float64(i-37) // two rows far out
+		}
+		qq.Fitted = append(qq.Fitted, Number(chi2.Quantile(p)))
+		qq.Sample = append(qq.Sample, Number(d))
+	}
+	return &Report{
+		Schema:  SchemaVersion,
+		Verdict: Fail,
+		Policy:  Policy{Name: "filling-line", File: "line.yaml", Hash: "sha256:0a0b"},
+		Rows:    300,
+		Sources: []Source{{Path: "line.csv", Format: "csv", Rows: 300}},
+		Counts:  Counts{Warn: 1, Pass: 1, Fail: 1},
+		Tool:    Tool{Name: "assay", Version: "0.1.0"},
+		Started: time.Date(2025, 6, 9, 9, 0, 0, 0, time.UTC),
+		Units:   map[string]string{"fill_g": "g", "temp_c": "°C"},
+		Results: []Result{
+			{
+				ID: "columns.fill_g.extremes", Check: "extremes", Columns: []string{"fill_g"}, Status: OK, Verdict: Warn,
+				Measure:   Measure{Name: "extreme share", Value: 0.01, Unit: "share"},
+				Tolerance: Tolerance{Direction: "at most", Warn: Number(0), Fail: Number(0.02)},
+				Message:   "3 of 300 values (1%) beyond Tukey's fences [490.2, 510.7]",
+				Estimates: map[string]float64{"lower": 490.2, "upper": 510.7},
+				Offending: &Offending{Count: 3, Rows: []Row{
+					{Row: 250, Line: 251, Values: map[string]any{"fill_g": 545.0}, Score: 6.7},
+					{Row: 120, Line: 121, Values: map[string]any{"fill_g": 470.0}, Score: 3.97},
+					{Row: 40, Line: 41, Values: map[string]any{"fill_g": int64(530)}, Score: 3.79},
+				}},
+				Extremes: &Extremes{
+					Method: "tukey", N: 300, Lower: num(490.2), Upper: num(510.7), Center: 499.9, Scale: 5.1,
+					Below: 1, Above: 2, Score: "distance beyond the nearer fence, in IQRs",
+					Box:       &Box{Min: 470, Q1: 497.9, Median: 499.9, Q3: 503, Max: 545, WhiskerLo: 491.3, WhiskerHi: 509.8},
+					Histogram: h,
+				},
+			},
+			{
+				ID: "columns.temp_c.extremes", Check: "extremes", Columns: []string{"temp_c"}, Status: OK, Verdict: Pass,
+				Measure:   Measure{Name: "extreme share", Value: 0, Unit: "share"},
+				Tolerance: Tolerance{Direction: "at most", Fail: Number(0.01)},
+				Message:   "no value beyond 3 sd of the mean",
+				Extremes: &Extremes{
+					Method: "zscore", N: 300, Lower: num(11.2), Upper: num(28.8), Center: 20, Scale: 2.93,
+					Score: "distance from the mean, in sd",
+				},
+			},
+			{
+				ID: "joint.climate", Check: "joint", Columns: []string{"temp_c", "fill_g"}, Status: OK, Verdict: Fail,
+				Measure:   Measure{Name: "outlying row share", Value: 2.0 / 300, Unit: "share"},
+				Tolerance: Tolerance{Direction: "at most", Warn: Number(0), Fail: Number(0.005)},
+				Message:   "2 of 300 rows (0.67%) lie beyond the squared Mahalanobis distance 13.82",
+				Estimates: map[string]float64{"cutoff": 13.82, "center.temp_c": 20, "center.fill_g": 500},
+				Offending: &Offending{Count: 2, Rows: []Row{
+					{Row: 7, Line: 8, Values: map[string]any{"temp_c": 27.5, "fill_g": 491.0}, Score: 48.2,
+						Contributions: []Contribution{{Column: "temp_c", Value: 30.1}, {Column: "fill_g", Value: 18.1}}},
+					{Row: 99, Line: 100, Values: map[string]any{"temp_c": 13.0, "fill_g": 508.5}, Score: 27.4,
+						Contributions: []Contribution{{Column: "fill_g", Value: 15.2}, {Column: "temp_c", Value: 12.2}}},
+				}},
+				Joint: &Joint{
+					Method: "mahalanobis", Estimator: "classical", N: 300, Skipped: 4,
+					Center:     []Number{20, 500},
+					Covariance: [][]Number{{8.6, -3.1}, {-3.1, 26}},
+					DF:         2, Quantile: 0.999, Cutoff: 13.82, Seed: 1,
+					QQ: qq,
+				},
+			},
+		},
+		Duration: 0.5,
+	}
+}
+
 func renderHTML(t *testing.T, r *Report) []byte {
 	t.Helper()
 	var b bytes.Buffer
@@ -139,6 +226,7 @@ func TestHTMLGolden(t *testing.T) {
 	}{
 		{"sample.html", sampleReport()},
 		{"distribution.html", distributionReport()},
+		{"outliers.html", outlierReport()},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			got := renderHTML(t, c.r)
@@ -155,7 +243,7 @@ func TestHTMLGolden(t *testing.T) {
 // report lists, and a chart for each kind of plot data a result carries,
 // each with a title and a description.
 func TestHTMLStructure(t *testing.T) {
-	for _, r := range []*Report{sampleReport(), distributionReport()} {
+	for _, r := range []*Report{sampleReport(), distributionReport(), outlierReport()} {
 		t.Run(r.Policy.Name, func(t *testing.T) {
 			doc := parseHTML(t, renderHTML(t, r))
 			sections := doc.findAll(func(n *node) bool { return n.tag == "section" && n.hasClass("rule") })
@@ -210,15 +298,19 @@ func TestHTMLStructure(t *testing.T) {
 
 // chartData counts the kinds of plot data a result carries.
 func chartData(res Result) int {
-	n := 0
+	var has []bool
 	if f := res.Fit; f != nil {
-		if f.Histogram != nil {
-			n++
-		}
-		if f.QQ != nil {
-			n++
-		}
-		if len(f.Cells) > 0 {
+		has = append(has, f.Histogram != nil, f.QQ != nil, len(f.Cells) > 0)
+	}
+	if e := res.Extremes; e != nil {
+		has = append(has, e.Histogram != nil, e.Box != nil)
+	}
+	if j := res.Joint; j != nil {
+		has = append(has, j.QQ != nil)
+	}
+	n := 0
+	for _, h := range has {
+		if h {
 			n++
 		}
 	}
