@@ -56,3 +56,33 @@ func TestTextDataLine(t *testing.T) {
 		}
 	}
 }
+
+// TestTerminalValue checks how cells are shown in the text table of
+// offending rows: text that would mislead or break the table is quoted.
+func TestTerminalValue(t *testing.T) {
+	tests := []struct {
+		in   any
+		want string
+	}{
+		{nil, "(null)"},
+		{"(null)", `"(null)"`},
+		{"", `""`},
+		{"H-021", "H-021"},
+		{"été", "été"},
+		{"two words", "two words"},
+		{" 42", `" 42"`},
+		{"42 ", `"42 "`},
+		{"x\r\ny", `"x\r\ny"`},
+		{"a\tb", `"a\tb"`},
+		{"\x1b[31mred", `"\x1b[31mred"`},
+		{"\xff", `"\xff"`},
+		{`"quoted"`, `"\"quoted\""`},
+		{1.5, "1.5"},
+		{int64(7), "7"},
+	}
+	for _, tt := range tests {
+		if got := terminalValue(tt.in); got != tt.want {
+			t.Errorf("terminalValue(%q) = %s, want %s", tt.in, got, tt.want)
+		}
+	}
+}
