@@ -11,6 +11,7 @@ package checks
 
 import (
 	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/memory"
 
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -34,6 +35,9 @@ type Env struct {
 	Context []int
 	// Policy is the policy the rules come from.
 	Policy *rules.Policy
+	// Mem allocates the batches checks make from the data's, the rows of
+	// a segment (see compileSegmented); nil means memory.DefaultAllocator.
+	Mem memory.Allocator
 }
 
 // Check is one rule compiled for a schema. It is immutable and may be shared

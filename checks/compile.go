@@ -10,6 +10,9 @@ import (
 // the rule cannot apply to the data as read (a column of the wrong type, an
 // expression that does not type-check), naming the rule and its position.
 func Compile(r *rules.Rule, env *Env) (Check, error) {
+	if r.Segment != nil {
+		return compileSegmented(r, env)
+	}
 	var (
 		c   Check
 		err error
@@ -47,6 +50,8 @@ func Compile(r *rules.Rule, env *Env) (Check, error) {
 		c, err = newExtremesCheck(r, s, env)
 	case rules.JointSpec:
 		c, err = newJointCheck(r, s, env)
+	case rules.PairSpec:
+		c, err = newPairCheck(r, s, env)
 	default:
 		return nil, fmt.Errorf("%s: rule %s: no check implements kind %q", r.Pos, r.ID, r.Kind)
 	}

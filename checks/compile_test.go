@@ -35,6 +35,13 @@ func TestEveryKindCompiles(t *testing.T) {
 		rules.KindExtremes: newRule(rules.ExtremesSpec{Method: rules.ExtremesTukey, K: 1.5}, atMost(0.05), "x"),
 		rules.KindJoint: newRule(rules.JointSpec{Method: rules.JointMahalanobis, Quantile: 0.999, Sample: 1000, Seed: 1},
 			atMost(0.05), "x", "y"),
+		rules.KindLinear: newRule(rules.PairSpec{Relation: rules.RelationLinear, Measure: rules.PairSlope, Fit: rules.FitOLS},
+			within(0, 1), "x", "y"),
+		rules.KindMonotonic: newRule(rules.PairSpec{Relation: rules.RelationMonotonic, Measure: rules.PairCorrelation,
+			Coefficient: rules.CoefSpearman, Sample: 1000, Seed: 1}, within(0, 1), "x", "y"),
+		rules.KindOrdered:     newRule(rules.PairSpec{Relation: rules.RelationOrdered, Measure: rules.PairOrdered}, atMost(0), "y", "x"),
+		rules.KindAssociation: newRule(rules.PairSpec{Relation: rules.RelationAssociation, Measure: rules.PairCramersV}, within(0, 1), "s", "y"),
+		rules.KindDetermines:  newRule(rules.PairSpec{Relation: rules.RelationDetermines, Measure: rules.PairDetermines}, atMost(0), "s", "x"),
 	}
 	schema := arrow.NewSchema([]arrow.Field{{Name: "x", Type: tFloat}, {Name: "s", Type: tString}, {Name: "y", Type: tInt}}, nil)
 	env := &Env{Schema: schema, DataColumns: []string{"x", "s", "y"}, MaxRowsListed: 5}

@@ -399,7 +399,7 @@ func (l *distributionLister) Observe(b *source.Batch) error {
 	cols := []int{l.check.col.index}
 	add := func(i int, hit bool, score float64) {
 		if hit {
-			l.listing.Add(score, b.FirstRow+int64(i), func() report.Row { return RowAt(l.check.env, b, i, cols) })
+			l.listing.Add(score, b.Row(i), func() report.Row { return RowAt(l.check.env, b, i, cols) })
 		}
 	}
 	if l.found.matchText != nil {

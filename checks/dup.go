@@ -280,7 +280,7 @@ func (a *DuplicateAccumulator) Observe(b *source.Batch) error {
 		a.count(g.count, 1)
 		g.count++
 		if len(g.rows) < limit {
-			g.rows = append(g.rows, rowRef{row: b.FirstRow + int64(i), line: b.Line(i), source: b.Source})
+			g.rows = append(g.rows, rowRef{row: b.Row(i), line: b.Line(i), source: b.Source})
 		}
 	})
 	return err

@@ -63,7 +63,7 @@ func (a *NullsAccumulator) Observe(b *source.Batch) error {
 			continue
 		}
 		a.Nulls++
-		a.listing.Add(1, b.FirstRow+int64(i), func() report.Row { return RowAt(a.check.env, b, i, cols) })
+		a.listing.Add(1, b.Row(i), func() report.Row { return RowAt(a.check.env, b, i, cols) })
 	}
 	return nil
 }

@@ -115,7 +115,7 @@ func (h *rowHeap) Pop() any {
 // of the columns at indices cols (of b.Record).
 func RowAt(env *Env, b *source.Batch, i int, cols []int) report.Row {
 	r := report.Row{
-		Row:    b.FirstRow + int64(i),
+		Row:    b.Row(i),
 		Line:   b.Line(i),
 		Values: make(map[string]any, len(cols)+len(env.Context)),
 	}

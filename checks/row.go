@@ -131,7 +131,7 @@ func (a *RowAccumulator) Observe(b *source.Batch) error {
 		a.Evaluated++
 		if t == rowexpr.False {
 			a.False++
-			a.listing.Add(gap[i], b.FirstRow+int64(i), func() report.Row { return RowAt(a.check.env, b, i, a.check.cols) })
+			a.listing.Add(gap[i], b.Row(i), func() report.Row { return RowAt(a.check.env, b, i, a.check.cols) })
 		}
 	}
 	return nil

@@ -101,7 +101,7 @@ func (a *TypeAccumulator) Observe(b *source.Batch) error {
 		}
 		a.Cells++
 		a.Invalid++
-		a.listing.Add(1, b.FirstRow+int64(cell.Row), func() report.Row { return RowAt(a.check.env, b, cell.Row, cols) })
+		a.listing.Add(1, b.Row(cell.Row), func() report.Row { return RowAt(a.check.env, b, cell.Row, cols) })
 	}
 	return nil
 }

@@ -67,7 +67,7 @@ func (a *ValueAccumulator) Observe(b *source.Batch) error {
 	cols := []int{a.check.col.index}
 	a.check.scan(arr, &a.scratch, func(i int, score float64) {
 		a.Breaking++
-		a.listing.Add(score, b.FirstRow+int64(i), func() report.Row { return RowAt(a.check.env, b, i, cols) })
+		a.listing.Add(score, b.Row(i), func() report.Row { return RowAt(a.check.env, b, i, cols) })
 	})
 	return nil
 }

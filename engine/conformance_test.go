@@ -3,6 +3,7 @@ package engine_test
 import (
 	"context"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"slices"
@@ -29,6 +30,15 @@ import (
 //	fit RULE-ID FAMILY     the family judged (the best candidate)
 //	region RULE-ID VALUE   the first region where the data exceed the fit
 //	                       holds VALUE (a number in its range, or its label)
+//
+// Any rule takes
+//
+//	value RULE-ID X      the measure is X to half a unit of X's last digit
+//
+// and rules with by take
+//
+//	group RULE-ID N KEY VERDICT   the N-th group listed, worst first, has
+//	                              the key KEY (site=s1,line=2) and VERDICT
 //
 // Adding a case is adding a folder.
 func TestConformance(t *testing.T) {
@@ -72,6 +82,24 @@ func TestConformance(t *testing.T) {
 						t.Fatalf("want.txt:%d: want %s RULE-ID VALUE", n+1, f[0])
 					}
 					if msg := checkFit(find(rep, f[1]), f[0], f[2]); msg != "" {
+						t.Errorf("want.txt:%d: %s", n+1, msg)
+					}
+					continue
+				}
+				if f[0] == "value" {
+					if len(f) != 3 {
+						t.Fatalf("want.txt:%d: want value RULE-ID X", n+1)
+					}
+					if msg := checkValue(find(rep, f[1]), f[2]); msg != "" {
+						t.Errorf("want.txt:%d: %s", n+1, msg)
+					}
+					continue
+				}
+				if f[0] == "group" {
+					if len(f) != 5 {
+						t.Fatalf("want.txt:%d: want group RULE-ID N KEY VERDICT", n+1)
+					}
+					if msg := checkGroup(find(rep, f[1]), f[2], f[3], f[4]); msg != "" {
 						t.Errorf("want.txt:%d: %s", n+1, msg)
 					}
 					continue
@@ -172,4 +200,51 @@ func bound(n *report.Number) string {
 		return "open"
 	}
 	return fmt.Sprint(float64(*n))
+}
+
+// checkGroup checks the n-th group a segmented result lists; it returns
+// what is wrong, or "".
+func checkGroup(res *report.Result, n, key, verdict string) string {
+	i, err := strconv.Atoi(n)
+	switch {
+	case err != nil || i < 1:
+		return fmt.Sprintf("group position %q is not a number from 1", n)
+	case res == nil:
+		return "no such result"
+	case res.Segments == nil || len(res.Segments.Groups) < i:
+		return fmt.Sprintf("%s lists fewer than %d groups", res.ID, i)
+	}
+	g := res.Segments.Groups[i-1]
+	var parts []string
+	for _, c := range res.Segments.By {
+		parts = append(parts, fmt.Sprintf("%s=%v", c, g.Key[c]))
+	}
+	got := g.Verdict.String()
+	if g.Status != report.OK {
+		got = g.Status.String()
+	}
+	if k := strings.Join(parts, ","); k != key || got != verdict {
+		return fmt.Sprintf("%s group %d is %s %s, want %s %s", res.ID, i, k, got, key, verdict)
+	}
+	return ""
+}
+
+// checkValue checks a result's measure against want, a number written to
+// the digits it is known to; it returns what is wrong, or "".
+func checkValue(res *report.Result, want string) string {
+	v, err := strconv.ParseFloat(want, 64)
+	if err != nil {
+		return fmt.Sprintf("value %q is not a number", want)
+	}
+	if res == nil {
+		return "no such result"
+	}
+	digits := 0
+	if i := strings.IndexByte(want, '.'); i >= 0 {
+		digits = len(want) - i - 1
+	}
+	if got := float64(res.Measure.Value); !(math.Abs(got-v) <= 0.5*math.Pow(10, -float64(digits))) {
+		return fmt.Sprintf("%s measure %v, want %s", res.ID, got, want)
+	}
+	return ""
 }

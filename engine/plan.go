@@ -56,14 +56,14 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 			continue
 		}
 		var absent []string
-		for _, c := range r.Columns {
+		for _, c := range r.Reads() {
 			if !present[c] {
 				absent = append(absent, c)
 			}
 		}
 		switch {
 		case len(absent) == 0:
-			for _, c := range r.Columns {
+			for _, c := range r.Reads() {
 				needed[c] = true
 			}
 			bound = append(bound, r)
@@ -122,6 +122,7 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 		MaxRowsListed: maxRowsListed(opts.MaxRowsListed),
 		Context:       ctx,
 		Policy:        p,
+		Mem:           opts.Source.Allocator,
 	}
 	for _, r := range bound {
 		c, err := checks.Compile(r, env)

@@ -28,7 +28,7 @@ func Explain(w io.Writer, p *Policy) error {
 			cols = strings.Join(r.Columns, ",")
 		}
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\n", r.ID, r.Kind, cols, r.Measure.Name,
-			r.Tolerance.Direction, explainLimit(p, r, r.Tolerance.Warn), explainLimit(p, r, r.Tolerance.Fail), explainSpec(r))
+			r.Tolerance.Direction, explainLimit(p, r, r.Tolerance.Warn), explainLimit(p, r, r.Tolerance.Fail), explainRule(r))
 	}
 	if err := tw.Flush(); err != nil {
 		return fmt.Errorf("explain policy %s: %w", p.Name, err)
@@ -68,6 +68,18 @@ func explainValue(p *Policy, r *Rule, v float64) string {
 	return formatNumber(v)
 }
 
+// explainRule writes what a rule asks of the data and on which rows.
+func explainRule(r *Rule) string {
+	spec := explainSpec(r)
+	switch {
+	case r.Segment == nil:
+		return spec
+	case spec == "-":
+		return explainSegment(r.Segment)
+	}
+	return spec + " · " + explainSegment(r.Segment)
+}
+
 // explainSpec writes what a rule asks of the data, briefly.
 func explainSpec(r *Rule) string {
 	switch s := r.Spec.(type) {
@@ -102,6 +114,8 @@ func explainSpec(r *Rule) string {
 		return explainExtremes(s)
 	case JointSpec:
 		return explainJoint(s)
+	case PairSpec:
+		return explainPair(s)
 	}
 	return "-"
 }

@@ -10,7 +10,7 @@ import (
 // TestExplain compares the explain table of policies with their goldens
 // (-update rewrites them).
 func TestExplain(t *testing.T) {
-	for _, name := range []string{"full", "times", "long-forms", "distributions", "extremes"} {
+	for _, name := range []string{"full", "times", "long-forms", "distributions", "extremes", "pairs"} {
 		t.Run(name, func(t *testing.T) {
 			p, err := Load(filepath.Join("testdata/good", name+".yaml"))
 			if err != nil {

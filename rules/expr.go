@@ -39,26 +39,16 @@ func (r *resolver) expressions() {
 			continue
 		}
 		spec, _ := p.rule.Spec.(RowSpec)
-		spec.Expr, spec.at = src, r.trace(p.val)
-		spec.ExprPos = r.pos(p.val)
-		if len(spec.at) > 0 {
-			spec.ExprPos = spec.at[0]
-		}
+		r.locate(&spec, src, p.val)
 		if strings.TrimSpace(src) == "" {
 			r.fail(p.val, CodeBadExpr, path, "the expression is empty")
 			continue
 		}
-		tree, err := parser.Parse(src)
-		if err != nil {
-			var fe *file.Error
-			msg, at := err.Error(), spec.ExprPos
-			if errors.As(err, &fe) {
-				msg, at = fe.Message, spec.PosAt(fe.From)
-			}
-			r.failAt(at, CodeBadExpr, path, "invalid expression: %s", msg)
+		tree, ok := r.parseExpr(path, spec)
+		if !ok {
 			continue
 		}
-		cols := exprColumns(tree.Node)
+		cols := exprColumns(tree)
 		if closed {
 			for _, c := range cols {
 				r.declared(path, c.name, spec.PosAt(c.at))
@@ -71,6 +61,32 @@ func (r *resolver) expressions() {
 			p.rule.Spec = spec
 		}
 	}
+}
+
+// locate sets spec's expression to src, written at n, with where each of
+// its characters was written.
+func (r *resolver) locate(spec *RowSpec, src string, n *yaml.Node) {
+	spec.Expr, spec.at = src, r.trace(n)
+	spec.ExprPos = r.pos(n)
+	if len(spec.at) > 0 {
+		spec.ExprPos = spec.at[0]
+	}
+}
+
+// parseExpr parses spec's expression, reporting a syntax error at the
+// place in the policy file it points at.
+func (r *resolver) parseExpr(path string, spec RowSpec) (ast.Node, bool) {
+	tree, err := parser.Parse(spec.Expr)
+	if err != nil {
+		var fe *file.Error
+		msg, at := err.Error(), spec.ExprPos
+		if errors.As(err, &fe) {
+			msg, at = fe.Message, spec.PosAt(fe.From)
+		}
+		r.failAt(at, CodeBadExpr, path, "invalid expression: %s", msg)
+		return nil, false
+	}
+	return tree.Node, true
 }
 
 // trace returns where each rune of scalar n's value, and the place just

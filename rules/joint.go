@@ -15,7 +15,7 @@ import (
 // ordinary alone.
 
 // jointKeys are the keys of one joint rule.
-var jointKeys = []string{"name", "columns", "method", "robust", "quantile", "sample", "seed", "tolerance"}
+var jointKeys = []string{"name", "columns", "method", "robust", "quantile", "sample", "seed", "tolerance", "by", "where"}
 
 // JointMethodNames lists the methods a joint rule may name.
 func JointMethodNames() []string { return []string{string(JointMahalanobis)} }

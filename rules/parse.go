@@ -47,13 +47,15 @@ type stage struct {
 
 // stages is resolution, in order.
 var stages = []stage{
-	{"decode", (*resolver).decode},           // YAML -> the policy's shape: known keys, mappings and lists where due
-	{"input", (*resolver).input},             // data paths and csv options
-	{"names", (*resolver).names},             // policy, types, statistics, rule names and ids, column lists
-	{"tolerances", (*resolver).tolerances},   // shares, tolerances and bounded intervals
-	{"values", (*resolver).values},           // bounds, enums, patterns, lengths, and their consistency
-	{"expressions", (*resolver).expressions}, // row expressions: syntax and the columns they read
-	{"defaults", (*resolver).defaults},       // default tolerances, measures, the rule list
+	{"decode", (*resolver).decode},            // YAML -> the policy's shape: known keys, mappings and lists where due
+	{"input", (*resolver).input},              // data paths and csv options
+	{"names", (*resolver).names},              // policy, types, statistics, rule names and ids, column lists
+	{"tolerances", (*resolver).tolerances},    // shares, tolerances and bounded intervals
+	{"values", (*resolver).values},            // bounds, enums, patterns, lengths, and their consistency
+	{"pairs", (*resolver).resolvePairs},       // pair rules: columns, relations, settings, bounds
+	{"expressions", (*resolver).expressions},  // row expressions: syntax and the columns they read
+	{"segments", (*resolver).resolveSegments}, // by and where: grouping columns and row filters
+	{"defaults", (*resolver).defaults},        // default tolerances, measures, the rule list
 }
 
 // resolve runs the stages up to and including the one named last ("" for
@@ -85,8 +87,9 @@ type resolver struct {
 	top   fields     // its keys
 	p     *Policy
 	cols  []*colDraft
-	rules []*pending // column and row rules, in the order written
-	table []*pending // table rules, in the order written
+	rules []*pending   // column and row rules, in the order written
+	pairs []*pairDraft // pair entries, in the order written
+	table []*pending   // table rules, in the order written
 }
 
 // colDraft is a column while it resolves.
@@ -96,6 +99,7 @@ type colDraft struct {
 	typ  *yaml.Node // the type written, or nil
 	tol  *yaml.Node // the column's default tolerance written, or nil
 	def  *Tolerance // tol resolved
+	seg  *segDraft  // by and where written on the column, or nil
 }
 
 // pending is a rule while it resolves: the nodes it was written with.
@@ -108,6 +112,7 @@ type pending struct {
 	dist   *distDraft  // a distribution rule's keys
 	ext    *extDraft   // an extremes rule's keys
 	joint  *jointDraft // a joint rule's keys and columns
+	pair   *pairDraft  // a pair rule's entry
 	tolSet bool        // rule.Tolerance has been resolved
 }
 
@@ -125,9 +130,9 @@ func (r *resolver) errorList() ErrorList {
 }
 
 var (
-	topKeys    = []string{"policy", "about", "data", "csv", "columns", "rows", "table", "joint"}
+	topKeys    = []string{"policy", "about", "data", "csv", "columns", "rows", "table", "joint", "pairs"}
 	columnKeys = []string{"type", "unit", "description", "tolerance", "nulls", "unique", "minimum", "maximum",
-		"exclusiveMinimum", "exclusiveMaximum", "enum", "pattern", "minLength", "maxLength", "summary", "distribution", "extremes"}
+		"exclusiveMinimum", "exclusiveMaximum", "enum", "pattern", "minLength", "maxLength", "summary", "distribution", "extremes", "by", "where"}
 	tableKeys = []string{"rows", "key", "closed", "required"}
 	rowKeys   = []string{"name", "expr", "tolerance"}
 )
@@ -171,6 +176,8 @@ func (r *resolver) decode() {
 			r.decodeTable(f.v)
 		case "joint":
 			r.decodeJoint(f.v)
+		case "pairs":
+			r.decodePairs(f.v)
 		}
 	}
 }
@@ -361,6 +368,15 @@ func (r *resolver) decodeColumnKey(c *colDraft, f field) {
 		r.decodeDistribution(r.columnRule(c, f, KindDistribution, f.v, nil), f.v)
 	case "extremes":
 		r.decodeExtremes(r.columnRule(c, f, KindExtremes, f.v, nil), f.v)
+	case "by", "where":
+		if c.seg == nil {
+			c.seg = &segDraft{}
+		}
+		if f.key == "by" {
+			c.seg.by = f.v
+		} else {
+			c.seg.where = f.v
+		}
 	case "summary":
 		if !r.mapping(id, f.v) {
 			return

@@ -145,6 +145,35 @@ var badFixtures = []struct {
 	{"multi-doc.yaml", false, []want{{CodeSyntax, 4, 1, "the file holds more than one YAML document"}}},
 	{"no-rules.yaml", false, []want{{CodeEmpty, 1, 1, "the policy has no rules"}}},
 	{"not-mapping.yaml", true, []want{{CodeWrongKind, 1, 1, "expected a mapping, got a list"}}},
+	{"pairs.yaml", false, []want{
+		{CodeBadValue, 8, 38, `pairs.temp+kwh.relation: unknown relation "linar" (did you mean "linear"?)`},
+		{CodeMissing, 9, 5, "pairs.a: a linear pair states nothing to check"},
+		{CodeBadValue, 10, 24, "pairs.b.columns: a pair names two columns, got 3"},
+		{CodeMissing, 11, 5, "pairs.c: a monotonic pair states nothing to check"},
+		{CodeNotApplicable, 11, 58, "pairs.c: slope does not apply to monotonic pairs"},
+		{CodeBadValue, 11, 87, `pairs.c.method: unknown method "pearson"`},
+		{CodeBadValue, 12, 68, "pairs.d.correlation: correlation bound 1.5 is outside [-1, 1]"},
+		{CodeNotApplicable, 12, 89, "pairs.d.fit: the fit draws the line of slope, intercept and residuals, and the rule bounds none of them"},
+		{CodeNotApplicable, 13, 24, `pairs.e: column "site" is declared string; linear pairs apply to number and integer columns`},
+		{CodeNotApplicable, 14, 24, `pairs.f: column "temp" is declared number and "day" date; an ordered pair compares two numbers or two times`},
+		{CodeWrongKind, 14, 64, `pairs.f.strict: expected true or false, got the text "yes"`},
+		{CodeBadValue, 15, 95, "pairs.g.residuals.cutoff: cutoff 0 is not above 0"},
+		{CodeNotApplicable, 16, 82, "pairs.h.residuals.rule: cooks residuals are measured from the least-squares line, and the rule fits theil-sen"},
+		{CodeBadValue, 16, 97, "pairs.h.sample: a sample of 10 pairs is too small"},
+		{CodeDuplicate, 17, 12, "pairs.h: pair rule pairs.h written twice"},
+		{CodeTolerance, 17, 70, "pairs.h.determines: share 2 is outside [0, 1]"},
+		{CodeBadValue, 18, 24, "pairs.i.columns: a pair names two columns, got 1"},
+		{CodeMissing, 19, 5, `pairs.j: missing key "relation"`},
+		{CodeUnknownKey, 19, 37, `pairs: unknown key "cutoff"`},
+		{CodeNotApplicable, 20, 73, "pairs.k.sample: sample applies to robust fits; least squares uses every row"},
+		{CodeEmptyRange, 20, 107, "pairs.k.slope: minimum 2 is above maximum 1"},
+		{CodeBadValue, 21, 12, `pairs: pair rule name "--" has no letter or digit`},
+		{CodeBadValue, 22, 73, `pairs.l.residuals.rule: unknown residual rule "cook" (did you mean "cooks"?)`},
+		{CodeBadValue, 22, 84, "pairs.l.r2: r2 bound 2 is outside [0, 1]"},
+		{CodeNotApplicable, 23, 24, `pairs.m: column "day" is declared date; association pairs apply to string, integer and boolean columns`},
+		{CodeMissing, 24, 5, `pairs.n: missing key "columns"`},
+		{CodeUnknownKey, 25, 1, `unknown key "pairs2" (did you mean "pairs"?)`},
+	}},
 	{"pattern.yaml", false, []want{
 		{CodeBadPattern, 4, 14, "columns.a.pattern: invalid pattern: missing closing ): `(ab`"},
 		{CodeBadPattern, 6, 14, "columns.b.pattern: invalid pattern: invalid or unsupported Perl syntax: `(?=`"},
@@ -163,6 +192,18 @@ var badFixtures = []struct {
 		{CodeTolerance, 20, 11, "columns.d.summary.p5: no bounds"},
 		{CodeTolerance, 21, 31, "columns.d.summary.p10: fail repeats minimum and maximum"},
 		{CodeEmptyRange, 23, 16, "table.rows: the warn and fail intervals do not meet, so no value passes"},
+	}},
+	{"segments.yaml", false, []want{
+		{CodeBadValue, 6, 10, `columns.temp.by: column "temp" is the rule's own; it cannot group itself`},
+		{CodeBadExpr, 7, 18, "columns.temp.where: invalid expression: unexpected token EOF"},
+		{CodeBadValue, 10, 34, "columns.kwh.by.limit: a limit of 0 groups leaves nothing to judge"},
+		{CodeBadExpr, 11, 12, "columns.kwh.where: the expression is empty"},
+		{CodeMissing, 14, 9, `columns.flow.by: missing key "columns"`},
+		{CodeUnknownKey, 14, 10, `columns.flow.by: unknown key "colums" (did you mean "columns"?)`},
+		{CodeBadExpr, 15, 12, "columns.flow.where: the expression reads no column, so it keeps every row or none"},
+		{CodeWrongKind, 18, 9, `columns.level.by: expected a list, got the text "site"`},
+		{CodeBadValue, 20, 52, `pairs.temp+kwh.by: column "kwh" is the rule's own; it cannot group itself`},
+		{CodeBadExpr, 20, 73, `pairs.temp+kwh.where: invalid expression: unexpected token Operator("=")`},
 	}},
 	{"syntax-flow.yaml", false, []want{{CodeSyntax, 5, 0, "invalid YAML: did not find expected ',' or ']'"}}},
 	{"syntax-tab.yaml", false, []want{{CodeSyntax, 5, 0, "invalid YAML: found a tab character that violates indentation"}}},
@@ -326,6 +367,13 @@ func dump(p *Policy) string {
 		fmt.Fprintf(&b, "  measure %q unit %d\n", r.Measure.Name, r.Measure.Unit)
 		fmt.Fprintf(&b, "  tolerance %s warn %s fail %s at %s\n", r.Tolerance.Direction,
 			dumpLimit(r.Tolerance.Warn), dumpLimit(r.Tolerance.Fail), r.Tolerance.Pos)
+		if s := r.Segment; s != nil {
+			where := "none"
+			if s.Where != nil {
+				where = fmt.Sprintf("%q at %s reads %q", s.Where.Expr, s.Where.ExprPos, s.WhereColumns)
+			}
+			fmt.Fprintf(&b, "  segment by %q limit %d where %s\n", s.By, s.Limit, where)
+		}
 	}
 	return b.String()
 }
@@ -520,7 +568,7 @@ func TestStages(t *testing.T) {
 	for _, s := range stages {
 		names = append(names, s.name)
 	}
-	if got := strings.Join(names, " "); got != "decode input names tolerances values expressions defaults" {
+	if got := strings.Join(names, " "); got != "decode input names tolerances values pairs expressions segments defaults" {
 		t.Fatalf("stages: %s", got)
 	}
 	// One problem for each stage that finds problems of its own.
@@ -532,8 +580,11 @@ columns:
     nulls: 200%
     pattern: "("
     colour: red
+    where: "b >"
 rows:
   - {name: r, expr: "a >"}
+pairs:
+  - {columns: [a, b], relation: linear, slope: {minimum: 2, maximum: 1}}
 `
 	want := map[string]string{
 		"decode":      "unknown-key",
@@ -541,8 +592,10 @@ rows:
 		"names":       "unknown-key bad-value unknown-type",
 		"tolerances":  "unknown-key bad-value unknown-type bad-tolerance",
 		"values":      "unknown-key bad-value unknown-type bad-tolerance bad-pattern",
-		"expressions": "unknown-key bad-value unknown-type bad-tolerance bad-pattern bad-expr",
-		"defaults":    "unknown-key bad-value unknown-type bad-tolerance bad-pattern bad-expr",
+		"pairs":       "unknown-key bad-value unknown-type bad-tolerance bad-pattern empty-range",
+		"expressions": "unknown-key bad-value unknown-type bad-tolerance bad-pattern empty-range bad-expr",
+		"segments":    "unknown-key bad-value unknown-type bad-tolerance bad-pattern empty-range bad-expr bad-expr",
+		"defaults":    "unknown-key bad-value unknown-type bad-tolerance bad-pattern empty-range bad-expr bad-expr",
 	}
 	for _, s := range stages {
 		r := resolve("stages.yaml", []byte(src), s.name)

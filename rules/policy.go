@@ -100,7 +100,8 @@ const (
 // Kinds lists every declared kind, in the order reports list them.
 func Kinds() []Kind {
 	return []Kind{KindRequired, KindClosed, KindRowCount, KindKey, KindType, KindNulls, KindUnique,
-		KindMinimum, KindMaximum, KindEnum, KindPattern, KindMinLength, KindMaxLength, KindSummary, KindDistribution, KindExtremes, KindRow, KindJoint}
+		KindMinimum, KindMaximum, KindEnum, KindPattern, KindMinLength, KindMaxLength, KindSummary, KindDistribution, KindExtremes, KindRow, KindJoint,
+		KindLinear, KindMonotonic, KindOrdered, KindAssociation, KindDetermines}
 }
 
 // Limit is the closed interval of measure values a threshold allows. An open
@@ -179,6 +180,9 @@ type Rule struct {
 	Measure   Measure
 	Tolerance Tolerance
 	Pos       Pos // where the rule was written
+	// Segment narrows the rule to some rows and runs it per group; nil
+	// judges every row together.
+	Segment *Segment
 }
 
 // Spec holds a kind's parameters. Each kind has exactly one Spec type.

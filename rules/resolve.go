@@ -756,6 +756,8 @@ func measure(r *Rule) Measure {
 		return Measure{Name: "extreme share"}
 	case JointSpec:
 		return Measure{Name: "outlying row share"}
+	case PairSpec:
+		return pairMeasure(s)
 	}
 	switch r.Kind {
 	case KindRowCount:

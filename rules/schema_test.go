@@ -165,6 +165,16 @@ func TestSchemaRejectsShapeProblems(t *testing.T) {
 		"policy: p\njoint: [{columns: [a, b], quantile: 1}]\n",
 		"policy: p\njoint: [{columns: [a, b], robust: yes}]\n",
 		"policy: p\njoint: {columns: [a, b]}\n",
+		"policy: p\npairs: [{columns: [a, b], relation: linar, slope: {minimum: 1}}]\n",
+		"policy: p\npairs: [{columns: [a, b], relation: monotonic, slope: {minimum: 1}}]\n",
+		"policy: p\npairs: [{columns: [a, b], relation: ordered, strict: yes}]\n",
+		"policy: p\npairs: [{columns: [a, b], relation: linear, residuals: {rule: cook}}]\n",
+		"policy: p\npairs: [{columns: [a, b], relation: linear, residuals: {cutoff: 0}}]\n",
+		"policy: p\npairs: [{columns: [a, b]}]\n",
+		"policy: p\npairs: {columns: [a, b], relation: determines}\n",
+		"policy: p\ncolumns: {a: {nulls: 0, by: site}}\n",
+		"policy: p\ncolumns: {a: {nulls: 0, by: {columns: [s], limit: 0}}}\n",
+		"policy: p\ncolumns: {a: {nulls: 0, where: \"\"}}\n",
 	} {
 		f := filepath.Join(t.TempDir(), "p.yaml")
 		writeFile(t, f, src)
@@ -215,6 +225,7 @@ func TestSchemaInStep(t *testing.T) {
 	}
 	distRule := defs["distributionRule"].(map[string]any)["properties"].(map[string]any)
 	jointRule := defs["jointRule"].(map[string]any)["properties"].(map[string]any)
+	pairRule := defs["pairRule"].(map[string]any)["properties"].(map[string]any)
 	for _, c := range []struct {
 		name         string
 		schema, code []string
@@ -233,6 +244,8 @@ func TestSchemaInStep(t *testing.T) {
 		{"extremes rule", enum(defs["extremesMethod"]), ExtremesMethodNames()},
 		{"joint", props(defs["jointRule"]), jointKeys},
 		{"joint method", enum(jointRule["method"]), JointMethodNames()},
+		{"pair", props(defs["pairRule"]), allPairKeys()},
+		{"relation", enum(pairRule["relation"]), RelationNames()},
 	} {
 		if got, want := strings.Join(c.schema, " "), strings.Join(sorted(c.code), " "); got != want {
 			t.Errorf("%s keys: the schema has %s, the parser %s", c.name, got, want)

@@ -164,6 +164,12 @@ type Result struct {
 	// test's statistic (with the n it used), its p-value, and the
 	// parameters of the family judged, given or estimated.
 	Fit *Fit `json:"fit,omitempty"`
+	// Pair is set by pair rules: the line, points and cells behind the
+	// measure (see Pair).
+	Pair *Pair `json:"pair,omitempty"`
+	// Segments is set by rules with by or where: the rows judged and the
+	// groups, worst first (see Segments).
+	Segments *Segments `json:"segments,omitempty"`
 	// Extremes is set by extremes rules: the method, the thresholds fitted
 	// on the whole column, and what a box plot needs (see Extremes).
 	Extremes *Extremes `json:"extremes,omitempty"`
@@ -331,6 +337,9 @@ type Row struct {
 	// Contributions split the squared distance of a row that a joint rule
 	// flags among its columns, largest first (see Contribution).
 	Contributions []Contribution `json:"contributions,omitempty"`
+	// Fitted is, for rows a linear pair rule flags, the value of the
+	// second column its line predicts from the first.
+	Fitted *Number `json:"fitted,omitempty"`
 }
 
 // Number is a float64 that JSON writes as null when it is NaN or infinite,

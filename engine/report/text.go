@@ -8,7 +8,6 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
-	"unicode/utf8"
 )
 
 // TextOptions tune the terminal rendering.
@@ -67,6 +66,12 @@ func WriteText(w io.Writer, r *Report, o TextOptions) error {
 		}
 		if res.Joint != nil {
 			p.joint(res)
+		}
+		if res.Pair != nil {
+			p.pair(res)
+		}
+		if res.Segments != nil {
+			p.segments(res)
 		}
 		if res.Offending != nil && len(res.Offending.Rows) > 0 {
 			p.rows(res)
@@ -153,6 +158,10 @@ func (p *printer) rows(res Result) {
 	}
 	head = append(head, "line")
 	head = append(head, cols...)
+	fitted := hasFitted(off.Rows)
+	if fitted {
+		head = append(head, "fitted")
+	}
 	head = append(head, "score")
 	drivers := hasContributions(off.Rows)
 	if drivers {
@@ -170,7 +179,10 @@ func (p *printer) rows(res Result) {
 		}
 		cells = append(cells, line)
 		for _, c := range cols {
-			cells = append(cells, terminalValue(row.Values[c]))
+			cells = append(cells, formatValue(row.Values[c]))
+		}
+		if fitted {
+			cells = append(cells, fittedText(row.Fitted))
 		}
 		cells = append(cells, strconv.FormatFloat(float64(row.Score), 'g', 6, 64))
 		if drivers {
@@ -222,27 +234,6 @@ func formatValue(v any) string {
 		return x
 	}
 	return fmt.Sprint(v)
-}
-
-// terminalValue is formatValue for a terminal table: text that would mislead
-// or break the table is shown quoted, with Go escapes.
-func terminalValue(v any) string {
-	if s, ok := v.(string); ok && needsQuotes(s) {
-		return strconv.Quote(s)
-	}
-	return formatValue(v)
-}
-
-// needsQuotes reports whether a text cell is shown quoted so that a person
-// sees what it holds: empty, blank at either end (" 42" is not a number),
-// spelling the null marker, starting with a quote, invalid UTF-8, or holding
-// a character that does not print (a line break or a tab would break the
-// table, an escape code would drive the terminal).
-func needsQuotes(s string) bool {
-	if s == "" || s == "(null)" || s[0] == '"' || strings.TrimSpace(s) != s || !utf8.ValidString(s) {
-		return true
-	}
-	return strings.ContainsFunc(s, func(r rune) bool { return !strconv.IsPrint(r) })
 }
 
 // formatMeasure writes a measure value in its unit: shares as percentages,

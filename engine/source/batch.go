@@ -20,6 +20,11 @@ type Batch struct {
 	// FirstRow is the 1-based data-row number, across all inputs in order
 	// with headers excluded, of the batch's first row.
 	FirstRow int64
+	// Rows holds the data-row number of each row when the batch was made
+	// by selecting rows of another (a subset a check judges apart, see
+	// package checks); nil when the rows run on from FirstRow. Read it
+	// through Row.
+	Rows []int64
 	// Lines holds, for text inputs, the 1-based file line on which each row
 	// starts; nil for binary inputs.
 	Lines []int64
@@ -53,6 +58,14 @@ func (b *Batch) Release() {
 		t.Release()
 	}
 	b.Text = nil
+}
+
+// Row returns the 1-based data-row number of row i of the batch.
+func (b *Batch) Row(i int) int64 {
+	if b.Rows != nil {
+		return b.Rows[i]
+	}
+	return b.FirstRow + int64(i)
 }
 
 // Line returns the file line of row i of the batch, or 0 when unknown.

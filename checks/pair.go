@@ -1,0 +1,289 @@
+package checks
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+
+	"github.com/apache/arrow-go/v18/arrow"
+
+	"github.com/assay-project/assay/checks/gof"
+	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
+	"github.com/assay-project/assay/rules"
+)
+
+// Pair rules judge how two columns relate; their statistics come from
+// package relate. Each kind lives in its own file: linear (pair_linear.go),
+// monotonic (pair_rank.go), ordered (pair_order.go), association and
+// determines (pair_category.go). What they share is here: binding the two
+// columns, reading the rows where both hold a value, and a uniform sample
+// of pairs.
+
+// plotPoints is how many points a pair result keeps for a scatter plot.
+const plotPoints = 500
+
+// newPairCheck compiles a pair rule: its two columns must hold what its
+// relation compares.
+func newPairCheck(r *rules.Rule, s rules.PairSpec, env *Env) (Check, error) {
+	if len(r.Columns) != 2 {
+		return nil, fmt.Errorf("a pair rule reads two columns, the rule names %d", len(r.Columns))
+	}
+	var cols [2]column
+	for i, name := range r.Columns {
+		c, err := bindColumn(env, name)
+		if err != nil {
+			return nil, err
+		}
+		cols[i] = c
+	}
+	x, y := cols[0], cols[1]
+	want := func(what string, ok func(column) bool, classes ...class) error {
+		for _, c := range cols {
+			if !ok(c) {
+				return fmt.Errorf("column %q holds %s; %s applies to %s", c.name, typeWords(c.typ), what, classList(classes))
+			}
+		}
+		return nil
+	}
+	numeric := func(c column) bool { return c.class == classInteger || c.class == classNumber }
+	var err error
+	switch s.Relation {
+	case rules.RelationLinear:
+		if err = want("a linear pair", numeric, classInteger, classNumber); err == nil {
+			return newLinearCheck(r, s, env, x, y)
+		}
+	case rules.RelationMonotonic:
+		if err = want("a monotonic pair", numeric, classInteger, classNumber); err == nil {
+			return &rankCheck{rule: r, env: env, x: x, y: y, spec: s}, nil
+		}
+	case rules.RelationOrdered:
+		ordered := func(c column) bool { return numeric(c) || c.class == classTime }
+		if err = want("an ordered pair", ordered, classInteger, classNumber, classTime); err == nil {
+			if (x.class == classTime) != (y.class == classTime) {
+				return nil, fmt.Errorf("column %q holds %s and %q %s; an ordered pair compares two numbers or two times",
+					x.name, typeWords(x.typ), y.name, typeWords(y.typ))
+			}
+			return &orderCheck{rule: r, env: env, x: x, y: y, spec: s}, nil
+		}
+	case rules.RelationAssociation:
+		categorical := func(c column) bool {
+			return c.class == classString || c.class == classInteger || c.class == classBoolean
+		}
+		if err = want("an association", categorical, classString, classInteger, classBoolean); err == nil {
+			return &associationCheck{categoryPair{rule: r, env: env, a: x, b: y}}, nil
+		}
+	case rules.RelationDetermines:
+		if err = want("a dependency", func(c column) bool { return c.class != classOther },
+			classString, classInteger, classNumber, classBoolean, classTime); err == nil {
+			return &dependencyCheck{categoryPair{rule: r, env: env, a: x, b: y}}, nil
+		}
+	default:
+		err = fmt.Errorf("unknown relation %q", s.Relation)
+	}
+	return nil, err
+}
+
+// pairRows reads the rows of a batch where both columns hold a finite
+// value, as float64 (times in seconds since the epoch).
+type pairRows struct {
+	X, Y []float64
+	Rows []int // row index in the batch of each pair
+	// NonFinite counts the rows left out for a NaN or an infinite value.
+	NonFinite int64
+	sx, sy    scratch
+	fx, fy    []float64
+}
+
+// read fills X, Y and Rows from batch b.
+func (p *pairRows) read(x, y column, b *source.Batch) error {
+	ax, ay, err := bothIn(x, y, b)
+	if err != nil {
+		return err
+	}
+	p.fx = asFloats(x, ax, &p.sx, p.fx)
+	p.fy = asFloats(y, ay, &p.sy, p.fy)
+	vx, vy := validOf(ax), validOf(ay)
+	p.X, p.Y, p.Rows = p.X[:0], p.Y[:0], p.Rows[:0]
+	for i := range p.fx {
+		if !vx.at(i) || !vy.at(i) {
+			continue
+		}
+		u, v := p.fx[i], p.fy[i]
+		if math.IsNaN(u) || math.IsInf(u, 0) || math.IsNaN(v) || math.IsInf(v, 0) {
+			p.NonFinite++
+			continue
+		}
+		p.X, p.Y, p.Rows = append(p.X, u), append(p.Y, v), append(p.Rows, i)
+	}
+	return nil
+}
+
+// bothIn returns the arrays of two columns in batch b.
+func bothIn(x, y column, b *source.Batch) (ax, ay arrow.Array, err error) {
+	if ax, err = x.in(b); err != nil {
+		return nil, nil, err
+	}
+	ay, err = y.in(b)
+	return ax, ay, err
+}
+
+// asFloats returns every element of an integer, float or time array as
+// float64 (times in seconds), null slots included, in dst.
+func asFloats(c column, a arrow.Array, s *scratch, dst []float64) []float64 {
+	dst = dst[:0]
+	switch c.class {
+	case classNumber:
+		return append(dst, float64s(a, &s.floats)...)
+	case classTime:
+		for _, v := range int64s(a, &s.ints) {
+			dst = append(dst, float64(v)/c.perSecond)
+		}
+		return dst
+	}
+	for _, v := range int64s(a, &s.ints) {
+		dst = append(dst, float64(v))
+	}
+	return dst
+}
+
+// pairSample keeps a uniform sample of at most a size of pairs: two
+// reservoirs seeded alike. A reservoir's draws depend only on how many
+// values it has seen, never on the values, so the two keep the same
+// positions through adding and merging, and their samples stay paired.
+type pairSample struct {
+	x, y *gof.Reservoir
+}
+
+// newPairSample returns an empty sample of at most size pairs.
+func newPairSample(size int, seed uint64) (*pairSample, error) {
+	x, err := gof.NewReservoir(size, seed)
+	if err != nil {
+		return nil, err
+	}
+	y, err := gof.NewReservoir(size, seed)
+	if err != nil {
+		return nil, err
+	}
+	return &pairSample{x: x, y: y}, nil
+}
+
+// add offers the pairs (xs[i], ys[i]).
+func (s *pairSample) add(xs, ys []float64) {
+	s.x.AddAll(xs)
+	s.y.AddAll(ys)
+}
+
+// offer offers the pairs of a batch whose data begin at row first to *s,
+// making it on first use: a sample of at most size pairs, seeded from the
+// rule's seed and first (shardSeed), so that shards merged later sample
+// independently and a run repeats.
+func offer(s **pairSample, size int, seed uint64, first int64, xs, ys []float64) error {
+	if *s == nil {
+		var err error
+		if *s, err = newPairSample(size, shardSeed(seed, first)); err != nil {
+			return err
+		}
+	}
+	(*s).add(xs, ys)
+	return nil
+}
+
+// mergeSample folds o into s; a nil s takes a fresh sample of o's size
+// first, seeded as the distribution rule seeds its shards (shardSeed).
+func mergeSample(s, o *pairSample, seed uint64) (*pairSample, error) {
+	if o == nil {
+		return s, nil
+	}
+	if s == nil {
+		var err error
+		if s, err = newPairSample(o.x.Size(), shardSeed(seed, o.x.Seen())); err != nil {
+			return nil, err
+		}
+	}
+	if err := s.x.Merge(o.x); err != nil {
+		return nil, err
+	}
+	return s, s.y.Merge(o.y)
+}
+
+// values returns copies of the sampled pairs.
+func (s *pairSample) values() (xs, ys []float64) {
+	if s == nil {
+		return nil, nil
+	}
+	return s.x.Values(), s.y.Values()
+}
+
+// sampled reports whether the sample holds fewer pairs than were offered.
+func (s *pairSample) sampled() bool { return s != nil && !s.x.Complete() }
+
+// size is how many pairs the sample holds.
+func (s *pairSample) size() int64 {
+	if s == nil {
+		return 0
+	}
+	return int64(len(s.x.Values()))
+}
+
+// points writes a sample as a report's points.
+func (s *pairSample) points() *report.Points {
+	xs, ys := s.values()
+	if len(xs) == 0 {
+		return nil
+	}
+	p := &report.Points{X: make([]report.Number, len(xs)), Y: make([]report.Number, len(ys))}
+	for i := range xs {
+		p.X[i], p.Y[i] = report.Number(xs[i]), report.Number(ys[i])
+	}
+	return p
+}
+
+// nonFinite is the sentence about pairs left out for NaN or infinite
+// values; "" when there were none.
+func nonFinite(n int64) string {
+	if n == 0 {
+		return ""
+	}
+	if n == 1 {
+		return "1 row with a NaN or infinite value left out"
+	}
+	return thousands(n) + " rows with a NaN or infinite value left out"
+}
+
+// cellTexts calls f with the text of every non-null value of a column of
+// any class but classOther, as a dependency or association compares them:
+// strings as they are, whole numbers in decimal, booleans as true and
+// false, floats in the shortest form that reads back the same, times in
+// RFC 3339 (dates as YYYY-MM-DD).
+func cellTexts(c column, arr arrow.Array, s *scratch, f func(i int, s string)) {
+	switch c.class {
+	case classString, classBoolean, classInteger:
+		eachText(arr, f)
+	case classNumber:
+		v := validOf(arr)
+		for i, x := range float64s(arr, &s.floats) {
+			if v.at(i) {
+				if x == 0 {
+					x = 0 // -0 and 0 are one value
+				}
+				f(i, strconv.FormatFloat(x, 'g', -1, 64))
+			}
+		}
+	case classTime:
+		v := validOf(arr)
+		for i, x := range int64s(arr, &s.ints) {
+			if v.at(i) {
+				f(i, timeText(arr.DataType(), x))
+			}
+		}
+	}
+}
+
+// pairRow lists row i of b with the values of the pair's columns.
+func pairRow(env *Env, b *source.Batch, i int, x, y column) report.Row {
+	return RowAt(env, b, i, []int{x.index, y.index})
+}
+
+// sig4 writes an estimate for a message, to four significant digits.
+func sig4(v float64) string { return strconv.FormatFloat(v, 'g', 4, 64) }

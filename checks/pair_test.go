@@ -1,0 +1,326 @@
+package checks
+
+import (
+	"bufio"
+	"math"
+	"os"
+	"reflect"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow/memory"
+
+	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
+	"github.com/assay-project/assay/rules"
+)
+
+// TestPairSampleStaysPaired: two reservoirs seeded alike keep the same
+// positions, through adding in uneven batches and merging, so every
+// sampled x stays with its own y.
+func TestPairSampleStaysPaired(t *testing.T) {
+	shard := func(from, to int, seed uint64) *pairSample {
+		s, err := newPairSample(100, seed)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for lo := from; lo < to; {
+			hi := min(to, lo+1+lo%37)
+			var xs, ys []float64
+			for i := lo; i < hi; i++ {
+				xs, ys = append(xs, float64(i)), append(ys, 2*float64(i)+1)
+			}
+			s.add(xs, ys)
+			lo = hi
+		}
+		return s
+	}
+	a := shard(0, 5000, 1)
+	merged, err := mergeSample(a, shard(5000, 12000, 2), 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	merged, err = mergeSample(merged, shard(12000, 12050, 4), 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	xs, ys := merged.values()
+	if len(xs) != 100 || !merged.sampled() {
+		t.Fatalf("%d pairs, sampled %v; want 100 sampled", len(xs), merged.sampled())
+	}
+	seen := map[float64]bool{}
+	late := 0
+	for i, x := range xs {
+		if ys[i] != 2*x+1 || seen[x] {
+			t.Fatalf("pair %d is (%v, %v): not a pair of the input, or twice", i, x, ys[i])
+		}
+		seen[x] = true
+		if x >= 5000 {
+			late++
+		}
+	}
+	// 7050 of 12050 pairs come from the later shards: about 58 of 100
+	// (binomial sd 4.9); a merge that kept one side would be far off.
+	if late < 40 || late > 76 {
+		t.Errorf("%d of 100 sampled pairs from the later shards, want about 58", late)
+	}
+}
+
+// readPairs reads two columns of a CSV file under checks/relate/testdata,
+// skipping the comment line that names the source.
+func readPairs(t *testing.T, file, xname, yname string) (xs, ys []float64) {
+	t.Helper()
+	f, err := os.Open("relate/testdata/" + file)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	sc := bufio.NewScanner(f)
+	var head []string
+	for sc.Scan() {
+		line := sc.Text()
+		if strings.HasPrefix(line, "#") || line == "" {
+			continue
+		}
+		cells := strings.Split(line, ",")
+		if head == nil {
+			head = cells
+			continue
+		}
+		for k, h := range head {
+			v, err := strconv.ParseFloat(cells[k], 64)
+			if err != nil {
+				t.Fatal(err)
+			}
+			switch h {
+			case xname:
+				xs = append(xs, v)
+			case yname:
+				ys = append(ys, v)
+			}
+		}
+	}
+	if err := sc.Err(); err != nil {
+		t.Fatal(err)
+	}
+	return xs, ys
+}
+
+// pairBatches cuts pairs into batches of at most size rows.
+func pairBatches(t *testing.T, mem memory.Allocator, xs, ys []float64, size int) []*source.Batch {
+	t.Helper()
+	var out []*source.Batch
+	for lo := 0; lo < len(xs); lo += size {
+		hi := min(len(xs), lo+size)
+		var cx, cy []any
+		for i := lo; i < hi; i++ {
+			cx, cy = append(cx, xs[i]), append(cy, ys[i])
+		}
+		b := newBatch(t, mem, int64(lo)+1, col{"x", tFloat, cx}, col{"y", tFloat, cy})
+		release(t, b)
+		out = append(out, b)
+	}
+	return out
+}
+
+func linearRule(m rules.PairMeasure, fit rules.Fit, tol rules.Tolerance) *rules.Rule {
+	s := rules.PairSpec{Relation: rules.RelationLinear, Measure: m, Fit: fit, Sample: 1000, Seed: 1}
+	switch m {
+	case rules.PairResiduals:
+		s.Residual = rules.ResidualStudentized
+		if fit != rules.FitOLS {
+			s.Residual = rules.ResidualStandardized
+		}
+	case rules.PairCorrelation, rules.PairPValue:
+		s.Fit, s.Coefficient = "", rules.CoefPearson
+	case rules.PairR2:
+		s.Fit = ""
+	}
+	return newRule(s, tol, "x", "y")
+}
+
+// TestLinearAnscombe: the four data sets of Anscombe (1973, "Graphs in
+// statistical analysis", The American Statistician 27(1):17-21) share the
+// least-squares line y = 3.0 + 0.5 x (the NIST e-Handbook file's header),
+// which the rules measure to half a unit of the last printed digit; and
+// each rule's measure matches R 4.2.2 (coef(lm(y ~ x)), cor(x, y),
+// summary(lm(y ~ x))$r.squared, printed with %.15g) to 1e-13.
+func TestLinearAnscombe(t *testing.T) {
+	mem := checkedMem(t)
+	r := map[string][4]float64{ // slope, intercept, r, R²
+		"1": {0.500090909090909, 3.00009090909091, 0.81642051634484, 0.666542459508775},
+		"2": {0.5, 3.00090909090909, 0.816236506000243, 0.666242033727484},
+		"3": {0.499727272727273, 3.00245454545454, 0.816286739489598, 0.666324041066559},
+		"4": {0.499909090909091, 3.00172727272727, 0.816521436888503, 0.666707256898465},
+	}
+	for _, set := range []string{"1", "2", "3", "4"} {
+		xs, ys := readPairs(t, "anscombe_1973_quartet.csv", "x"+set, "y"+set)
+		bs := pairBatches(t, mem, xs, ys, 4)
+		env := envOf(bs[0], 5)
+		for k, m := range []rules.PairMeasure{rules.PairSlope, rules.PairIntercept, rules.PairCorrelation, rules.PairR2} {
+			res := run(t, compile(t, linearRule(m, rules.FitOLS, within(-10, 10)), env), bs...)
+			got := float64(res.Measure.Value)
+			if want := r[set][k]; math.Abs(got-want) > 1e-13*math.Abs(want) {
+				t.Errorf("set %s %s: %v, R gives %v", set, m, got, want)
+			}
+			if published := map[int]float64{0: 0.5, 1: 3.0}; k < 2 && math.Abs(got-published[k]) > 0.05 {
+				t.Errorf("set %s %s: %v, published %v", set, m, got, published[k])
+			}
+			if res.Pair == nil || res.Pair.N != 11 || res.Pair.Line == nil || res.Pair.Points == nil || len(res.Pair.Points.X) != 11 {
+				t.Errorf("set %s %s: pair %+v, want n 11, the line and the 11 points", set, m, res.Pair)
+			}
+		}
+	}
+}
+
+// TestLinearMerged: shards of a linear rule merge to what one accumulator
+// finds, for every measure and fit (the robust fits on a complete sample).
+func TestLinearMerged(t *testing.T) {
+	mem := checkedMem(t)
+	var xs, ys []float64
+	for i := range 300 {
+		x := float64(i%37) + 0.25*float64(i%5)
+		xs, ys = append(xs, x), append(ys, 4-0.75*x+math.Sin(float64(i)))
+	}
+	ys[123] += 40
+	bs := pairBatches(t, mem, xs, ys, 64)
+	env := envOf(bs[0], 5)
+	for _, fit := range []rules.Fit{rules.FitOLS, rules.FitTheilSen, rules.FitHuber} {
+		for _, m := range []rules.PairMeasure{rules.PairSlope, rules.PairIntercept, rules.PairResiduals, rules.PairCorrelation, rules.PairR2, rules.PairPValue} {
+			r := linearRule(m, fit, atMost(0))
+			if m != rules.PairResiduals {
+				r.Tolerance = within(-100, 100)
+			}
+			c := compile(t, r, env)
+			one, merged := run(t, c, bs...), runMerged(t, c, bs...)
+			name := string(fit) + " " + string(m)
+			sameResult(t, name, merged, one, 1e-12)
+			if m == rules.PairResiduals {
+				if count, rows, _ := listed(one); count != 1 || rows[0] != 124 || one.Offending.Rows[0].Fitted == nil {
+					t.Errorf("%s: flagged %d %v, want row 124 alone with its fitted value", name, count, rows)
+				}
+			}
+		}
+	}
+}
+
+// TestLinearTooFew: a line needs three pairs; the rule then fails with an
+// undefined measure and says why, rather than pass.
+func TestLinearTooFew(t *testing.T) {
+	mem := checkedMem(t)
+	bs := pairBatches(t, mem, []float64{1, 2}, []float64{3, 5}, 10)
+	env := envOf(bs[0], 5)
+	for _, m := range []rules.PairMeasure{rules.PairSlope, rules.PairResiduals, rules.PairCorrelation} {
+		res := run(t, compile(t, linearRule(m, rules.FitOLS, within(-10, 10)), env), bs...)
+		if res.Verdict != report.Fail || !math.IsNaN(float64(res.Measure.Value)) || !strings.Contains(res.Message, "no ") {
+			t.Errorf("%s: %s %v %q, want fail, undefined, and why", m, res.Verdict, res.Measure.Value, res.Message)
+		}
+	}
+}
+
+// TestOrderedExact: two integer columns compare as integers, so values
+// beyond 2^53 that float64 would make equal stay apart; times compare in
+// their unit; rows with a null are not judged.
+func TestOrderedExact(t *testing.T) {
+	mem := checkedMem(t)
+	big := 1 << 53
+	b := newBatch(t, mem, 1,
+		col{"lo", tInt, []any{big + 1, 5, 7, nil, 3}},
+		col{"hi", tInt, []any{big, 5, 9, 1, 1}},
+		col{"start", tTime, []any{2_000_001, 10, 5, 0, nil}},
+		col{"end", tTime, []any{2_000_000, 10, 6, 1, 2}},
+	)
+	release(t, b)
+	env := envOf(b, 10)
+	for _, c := range []struct {
+		cols   []string
+		strict bool
+		rows   []int64
+	}{
+		{[]string{"lo", "hi"}, false, []int64{5, 1}},
+		{[]string{"lo", "hi"}, true, []int64{5, 1, 2}},
+		{[]string{"start", "end"}, false, []int64{1}},
+		{[]string{"start", "end"}, true, []int64{1, 2}},
+	} {
+		r := newRule(rules.PairSpec{Relation: rules.RelationOrdered, Measure: rules.PairOrdered, Strict: c.strict, Seed: 1}, atMost(0), c.cols...)
+		res := run(t, compile(t, r, env), b)
+		count, rows, _ := listed(res)
+		if count != int64(len(c.rows)) || !reflect.DeepEqual(rows, c.rows) || res.Pair.N != 4 {
+			t.Errorf("%v strict %v: %d %v of %d rows, want %v of 4", c.cols, c.strict, count, rows, res.Pair.N, c.rows)
+		}
+	}
+}
+
+// TestAssociationAndDependency: a contingency table's V and chi-square,
+// and a dependency's violating groups with their rows.
+func TestAssociationAndDependency(t *testing.T) {
+	mem := checkedMem(t)
+	// a determines b except for a=2, seen with x twice and y once.
+	b := newBatch(t, mem, 1,
+		col{"a", tInt, []any{1, 1, 2, 2, 2, 3, 3, nil, 1, 3}},
+		col{"b", tString, []any{"x", "x", "x", "y", "x", "z", "z", "q", "x", nil}},
+	)
+	release(t, b)
+	env := envOf(b, 10)
+	r := newRule(rules.PairSpec{Relation: rules.RelationDetermines, Measure: rules.PairDetermines}, atMost(0), "a", "b")
+	res := run(t, compile(t, r, env), b)
+	count, rows, scores := listed(res)
+	if count != 3 || !reflect.DeepEqual(rows, []int64{4, 3, 5}) || math.Abs(scores[0]-2.0/3) > 1e-15 {
+		t.Errorf("listed %d %v %v, want 3 [4 3 5], the odd one out first", count, rows, scores)
+	}
+	want := []report.Violation{{A: "2", Rows: 3, Values: []report.ValueCount{{Value: "x", Rows: 2}, {Value: "y", Rows: 1}}}}
+	if res.Pair.ViolationCount != 1 || !reflect.DeepEqual(res.Pair.Violations, want) || res.Measure.Value != 3.0/8 {
+		t.Errorf("violations %+v, share %v; want %+v, 3/8", res.Pair.Violations, res.Measure.Value, want)
+	}
+	// The table of the 8 rows with both values: a 1 2 3 by b x y z. X² by
+	// hand: expected counts E = (row)(column)/8; V = sqrt(X²/(8·2)).
+	r = newRule(rules.PairSpec{Relation: rules.RelationAssociation, Measure: rules.PairCramersV}, within(0, 1), "a", "b")
+	res = run(t, compile(t, r, env), b)
+	obs := [3][3]float64{{3, 0, 0}, {2, 1, 0}, {0, 0, 2}}
+	rowT, colT := [3]float64{3, 3, 2}, [3]float64{5, 1, 2}
+	var x2 float64
+	for i := range 3 {
+		for j := range 3 {
+			e := rowT[i] * colT[j] / 8
+			x2 += (obs[i][j] - e) * (obs[i][j] - e) / e
+		}
+	}
+	if got, want := float64(res.Measure.Value), math.Sqrt(x2/16); math.Abs(got-want) > 1e-12 {
+		t.Errorf("V %v, want %v", got, want)
+	}
+	if res.Statistic == nil || math.Abs(float64(res.Statistic.Value)-x2) > 1e-12 || len(res.Pair.Cells) != 9 {
+		t.Errorf("statistic %+v cells %d, want X² %v over 9 cells", res.Statistic, len(res.Pair.Cells), x2)
+	}
+	if c := res.Pair.Cells[0]; c.A != "3" || c.B != "z" || c.Observed != 2 {
+		t.Errorf("first cell %+v, want a=3 b=z, the largest residual", c)
+	}
+}
+
+// TestPairCompileErrors: the columns must hold what the relation compares.
+func TestPairCompileErrors(t *testing.T) {
+	b := newBatch(t, memory.DefaultAllocator, 1,
+		col{"x", tFloat, []any{1.0}}, col{"s", tString, []any{"a"}}, col{"d", tDate, []any{1}},
+	)
+	release(t, b)
+	env := envOf(b, 5)
+	for _, c := range []struct {
+		spec rules.PairSpec
+		cols []string
+		want string
+	}{
+		{rules.PairSpec{Relation: rules.RelationLinear, Measure: rules.PairSlope, Fit: rules.FitOLS}, []string{"x", "s"},
+			`column "s" holds strings (utf8); a linear pair applies to integers and numbers`},
+		{rules.PairSpec{Relation: rules.RelationOrdered, Measure: rules.PairOrdered}, []string{"x", "d"},
+			"an ordered pair compares two numbers or two times"},
+		{rules.PairSpec{Relation: rules.RelationAssociation, Measure: rules.PairCramersV}, []string{"s", "x"},
+			`column "x" holds numbers (float64); an association applies to strings, integers and booleans`},
+		{rules.PairSpec{Relation: rules.RelationMonotonic, Measure: rules.PairCorrelation}, []string{"x"},
+			"a pair rule reads two columns, the rule names 1"},
+	} {
+		_, err := Compile(newRule(c.spec, within(0, 1), c.cols...), env)
+		if err == nil || !strings.HasSuffix(err.Error(), c.want) {
+			t.Errorf("%s %v: %v, want %q", c.spec.Relation, c.cols, err, c.want)
+		}
+	}
+}
