@@ -159,9 +159,17 @@ func (d *drafter) column(c *column) colDraft {
 	} else if c.keyState == keyTracking && c.n > 0 {
 		cd.seen = append(cd.seen, "every value distinct")
 	}
-	switch c.typ {
-	case "integer", "number":
+	// A column whose every value is distinct, without nulls, is a
+	// candidate key; an integer one is taken as an identifier, whose
+	// range and spread say nothing about the next batch.
+	cd.unique = c.keyState == keyTracking && c.nulls == 0 && c.n >= MinKeyRows
+	switch {
+	case cd.unique && c.typ == "integer":
+		cd.seen = append(cd.seen, fmt.Sprintf("from %s to %s (an identifier: not bounded)", num(c.min), num(c.max)))
+	case c.typ == "integer" || c.typ == "number":
 		d.numeric(&cd)
+	}
+	switch c.typ {
 	case "timestamp", "date":
 		if c.n > 0 {
 			cd.seen = append(cd.seen, fmt.Sprintf("from %s to %s (not bounded: time columns move on)", when(c.min, c.typ), when(c.max, c.typ)))
@@ -182,7 +190,6 @@ func (d *drafter) column(c *column) colDraft {
 		cd.seen = append(cd.seen, "counts: "+strings.Join(parts, ", "))
 		cd.fam, cd.skipped = nil, ""
 	}
-	cd.unique = c.keyState == keyTracking && c.nulls == 0 && c.n >= MinKeyRows
 	return cd
 }
 

@@ -375,3 +375,86 @@ func TestSigOut(t *testing.T) {
 		}
 	}
 }
+
+// ruleIDs parses a draft and lists its rule ids.
+func ruleIDs(t *testing.T, text []byte) []string {
+	t.Helper()
+	pol, err := rules.Parse("draft.yaml", text)
+	if err != nil {
+		t.Fatalf("draft does not parse: %v\n%s", err, text)
+	}
+	var ids []string
+	for _, r := range pol.Rules {
+		ids = append(ids, r.ID)
+	}
+	return ids
+}
+
+// TestWhatIsDrafted drafts small tables and lists which rules each column
+// gets.
+func TestWhatIsDrafted(t *testing.T) {
+	cases := []struct {
+		name      string
+		csv       func(i int) string // row i
+		header    string
+		want, not []string
+	}{
+		{"integer identifier", func(i int) string { return fmt.Sprintf("%d,%d", 1000+i, i%7) }, "n,k",
+			[]string{"columns.n.unique", "columns.k.enum", "columns.k.minimum"},
+			[]string{"columns.n.minimum", "columns.n.maximum", "columns.n.distribution", "columns.k.unique", "columns.k.distribution"}},
+		{"rare category", func(i int) string {
+			if i == 0 {
+				return "rare"
+			}
+			return []string{"a", "b"}[i%2]
+		}, "s", nil, []string{"columns.s.enum", "columns.s.unique"}},
+		{"too few for a family", func(i int) string { return fmt.Sprintf("%d.5", i*i%37) }, "x",
+			[]string{"columns.x.minimum"}, []string{"columns.x.distribution"}},
+		{"widened type", func(i int) string {
+			if i == 40 {
+				return "4.5"
+			}
+			return fmt.Sprint(i)
+		}, "v", []string{"columns.v.type", "columns.v.distribution"}, []string{"columns.v.enum"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var b strings.Builder
+			b.WriteString(c.header + "\n")
+			n := 60
+			if c.name == "too few for a family" {
+				n = 40
+			}
+			for i := range n {
+				b.WriteString(c.csv(i) + "\n")
+			}
+			dir := t.TempDir()
+			path := filepath.Join(dir, "d.csv")
+			if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			// The reader infers types from the first 20 rows only.
+			text, err := Draft(context.Background(), []string{path}, Options{Data: []string{"d.csv"}, Source: source.Options{SampleRows: 20}})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(filepath.Join(dir, "policy.yaml"), text, 0o644); err != nil {
+				t.Fatal(err)
+			}
+			if bad := notPassing(check(t, dir)); len(bad) > 0 {
+				t.Errorf("the draft does not pass on its data: %v\n%s", bad, text)
+			}
+			ids := ruleIDs(t, text)
+			for _, id := range c.want {
+				if !slices.Contains(ids, id) {
+					t.Errorf("no %s in %v\n%s", id, ids, text)
+				}
+			}
+			for _, id := range c.not {
+				if slices.Contains(ids, id) {
+					t.Errorf("%s drafted\n%s", id, text)
+				}
+			}
+		})
+	}
+}
