@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
+	"unicode/utf8"
 )
 
 // TextOptions tune the terminal rendering.
@@ -179,7 +180,7 @@ func (p *printer) rows(res Result) {
 		}
 		cells = append(cells, line)
 		for _, c := range cols {
-			cells = append(cells, formatValue(row.Values[c]))
+			cells = append(cells, terminalValue(row.Values[c]))
 		}
 		if fitted {
 			cells = append(cells, fittedText(row.Fitted))
@@ -234,6 +235,27 @@ func formatValue(v any) string {
 		return x
 	}
 	return fmt.Sprint(v)
+}
+
+// terminalValue is formatValue for a terminal table: text that would mislead
+// or break the table is shown quoted, with Go escapes.
+func terminalValue(v any) string {
+	if s, ok := v.(string); ok && needsQuotes(s) {
+		return strconv.Quote(s)
+	}
+	return formatValue(v)
+}
+
+// needsQuotes reports whether a text cell is shown quoted so that a person
+// sees what it holds: empty, blank at either end (" 42" is not a number),
+// spelling the null marker, starting with a quote, invalid UTF-8, or holding
+// a character that does not print (a line break or a tab would break the
+// table, an escape code would drive the terminal).
+func needsQuotes(s string) bool {
+	if s == "" || s == "(null)" || s[0] == '"' || strings.TrimSpace(s) != s || !utf8.ValidString(s) {
+		return true
+	}
+	return strings.ContainsFunc(s, func(r rune) bool { return !strconv.IsPrint(r) })
 }
 
 // formatMeasure writes a measure value in its unit: shares as percentages,
