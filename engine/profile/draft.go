@@ -32,6 +32,7 @@ func Draft(ctx context.Context, paths []string, opts Options) ([]byte, error) {
 		d.cols = append(d.cols, d.column(c))
 	}
 	d.pairs = d.relations()
+	d.key = d.tableKey()
 	return d.write(), nil
 }
 
@@ -41,6 +42,26 @@ type drafter struct {
 	opts  Options
 	cols  []colDraft
 	pairs []pairDraft
+	key   []string // a two-column key, when no column is one alone
+}
+
+// tableKey returns the first two columns, in data order, whose value
+// pairs were all distinct with no nulls, when no single column is a key.
+func (d *drafter) tableKey() []string {
+	for _, cd := range d.cols {
+		if cd.unique {
+			return nil
+		}
+	}
+	if d.st.rows < MinKeyRows {
+		return nil
+	}
+	for _, k := range d.st.combos {
+		if k.state == keyTracking {
+			return []string{k.a.name, k.b.name}
+		}
+	}
+	return nil
 }
 
 // colDraft is what the policy says about one column.

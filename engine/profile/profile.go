@@ -9,11 +9,13 @@
 // reservoir sample of each numeric column (Options.Sample values), category
 // counts up to MaxEnum+1 values per column, and for key candidates a set of
 // value hashes per column up to MaxKeyValues (a column with more distinct
-// values than that is not offered as a key).
+// values than that is not offered as a key), and for two-column key
+// candidates hashes of value pairs up to MaxComboRows rows.
 package profile
 
 import (
 	"context"
+	"encoding/binary"
 	"hash/fnv"
 	"math"
 	"slices"
@@ -44,6 +46,11 @@ const (
 	MaxKeyValues = 1 << 20
 	// MinKeyRows is the fewest rows a column must have to be called a key.
 	MinKeyRows = 20
+	// MaxComboColumns is how many key-like columns (the first in data
+	// order) are tried two by two as a key when no single column is one;
+	// each combination is tracked up to MaxComboRows rows.
+	MaxComboColumns = 5
+	MaxComboRows    = 1 << 17
 	// RangeMargin widens the observed range on each side, as a share of it.
 	RangeMargin = 0.10
 	// StrongCorrelation is the |r| or |rho| from which a pair is drafted.
@@ -91,6 +98,9 @@ type column struct {
 	// key candidacy: hashes of the values seen, while all distinct
 	keySet   map[uint64]struct{}
 	keyState keyState
+	// hashes holds the hash of each value of the current batch (0 for a
+	// missing one), for the two-column key candidates.
+	hashes []uint64
 
 	minLen, maxLen int
 }
@@ -112,6 +122,16 @@ type stats struct {
 	// pairs[i][j] for i < j over the numeric columns (indexes into num)
 	num   []*column
 	pairs [][]relate.Moments
+	// combos are the two-column key candidates.
+	combos []*combo
+}
+
+// combo tracks whether two columns together are a key: the hashes of
+// their value pairs, while all distinct.
+type combo struct {
+	a, b  *column
+	set   map[uint64]struct{}
+	state keyState
 }
 
 // scan reads the data once and fills the statistics.
@@ -193,6 +213,17 @@ func scanSet(ctx context.Context, set *source.Set, opts Options) (*stats, error)
 		st.cols = append(st.cols, c)
 		names = append(names, f.Name)
 	}
+	var keyLike []*column
+	for _, c := range st.cols {
+		if c.keyState == keyTracking && len(keyLike) < MaxComboColumns {
+			keyLike = append(keyLike, c)
+		}
+	}
+	for i, a := range keyLike {
+		for _, b := range keyLike[i+1:] {
+			st.combos = append(st.combos, &combo{a: a, b: b, set: map[uint64]struct{}{}})
+		}
+	}
 	st.pairs = make([][]relate.Moments, len(st.num))
 	for i := range st.pairs {
 		st.pairs[i] = make([]relate.Moments, len(st.num))
@@ -207,6 +238,7 @@ func scanSet(ctx context.Context, set *source.Set, opts Options) (*stats, error)
 			vals[k] = c.observe(b.Record.Column(k), vals[k][:0])
 		}
 		st.observePairs(vals, rows)
+		st.observeCombos(rows)
 		return nil
 	})
 	if err != nil {
@@ -225,10 +257,15 @@ func (c *column) observe(a arrow.Array, out []float64) []float64 {
 		c.dropKey(keyNotCandidate)
 	}
 	h := fnv.New64a()
+	hashed := c.keyState != keyNotCandidate
+	c.hashes = c.hashes[:0]
 	for i := range rows {
 		if a.IsNull(i) {
 			if c.numeric {
 				out = append(out, math.NaN())
+			}
+			if hashed {
+				c.hashes = append(c.hashes, 0)
 			}
 			continue
 		}
@@ -267,10 +304,13 @@ func (c *column) observe(a arrow.Array, out []float64) []float64 {
 				c.counts = nil
 			}
 		}
-		if c.keyState == keyTracking {
+		if hashed {
 			h.Reset()
 			h.Write([]byte(text))
-			k := h.Sum64()
+			c.hashes = append(c.hashes, h.Sum64())
+		}
+		if c.keyState == keyTracking {
+			k := c.hashes[i]
 			if _, dup := c.keySet[k]; dup {
 				c.dropKey(keyDuplicate)
 			} else if len(c.keySet) >= MaxKeyValues {
@@ -284,6 +324,44 @@ func (c *column) observe(a arrow.Array, out []float64) []float64 {
 		c.sample.AddAll(out)
 	}
 	return out
+}
+
+// observeCombos adds the batch's rows to the two-column key candidates.
+// A candidate is dropped at its first repeated or missing value pair, or
+// past MaxComboRows rows.
+func (st *stats) observeCombos(rows int) {
+	for _, k := range st.combos {
+		if k.state != keyTracking {
+			continue
+		}
+		if k.a.nulls > 0 || k.b.nulls > 0 || k.a.keyState == keyNotCandidate || k.b.keyState == keyNotCandidate {
+			k.drop(keyNotCandidate)
+			continue
+		}
+		h := fnv.New64a()
+		buf := make([]byte, 16)
+		for r := range rows {
+			binary.LittleEndian.PutUint64(buf, k.a.hashes[r])
+			binary.LittleEndian.PutUint64(buf[8:], k.b.hashes[r])
+			h.Reset()
+			h.Write(buf)
+			v := h.Sum64()
+			if _, dup := k.set[v]; dup {
+				k.drop(keyDuplicate)
+				break
+			}
+			if len(k.set) >= MaxComboRows {
+				k.drop(keyTooMany)
+				break
+			}
+			k.set[v] = struct{}{}
+		}
+	}
+}
+
+func (k *combo) drop(s keyState) {
+	k.state = s
+	k.set = nil
 }
 
 func (c *column) dropKey(s keyState) {

@@ -408,6 +408,10 @@ func TestWhatIsDrafted(t *testing.T) {
 			}
 			return []string{"a", "b"}[i%2]
 		}, "s", nil, []string{"columns.s.enum", "columns.s.unique"}},
+		{"two-column key", func(i int) string { return fmt.Sprintf("s%d,%d,%d", i/10, i%10, i%3) }, "a,b,c",
+			[]string{"table.key"}, []string{"columns.a.unique", "columns.b.unique"}},
+		{"no key", func(i int) string { return fmt.Sprintf("s%d,%d", i%10, i%20) }, "a,b",
+			nil, []string{"table.key", "columns.a.unique"}},
 		{"too few for a family", func(i int) string { return fmt.Sprintf("%d.5", i*i%37) }, "x",
 			[]string{"columns.x.minimum"}, []string{"columns.x.distribution"}},
 		{"widened type", func(i int) string {

@@ -49,6 +49,10 @@ func (d *drafter) write() []byte {
 	for _, c := range st.cols {
 		names = append(names, c.name)
 	}
+	if len(d.key) > 0 {
+		comment(&w, "  ", "no column is a key alone; this pair of columns has no repeated combination")
+		fmt.Fprintf(&w, "  key: %s\n", flow(d.key, str))
+	}
 	fmt.Fprintf(&w, "  required: %s\n", flow(names, str))
 	w.WriteString("  closed: true\n")
 	return []byte(w.String())
