@@ -29,19 +29,10 @@ func (d *drafter) write() []byte {
 		d.writeColumn(&w, cd)
 	}
 	if len(d.pairs) > 0 {
-		// The policy language has no pair rules yet: the drafted ones are
-		// written as comments, ready to uncomment once it does.
-		var pw strings.Builder
-		pw.WriteString("pairs:\n")
+		w.WriteString("pairs:\n")
 		for _, p := range d.pairs {
-			writePair(&pw, p)
+			writePair(&w, p)
 		}
-		w.WriteString("# Strongly related pairs of columns, drafted as comments: this version of the policy\n")
-		w.WriteString("# language has no pair rules yet.\n")
-		for _, line := range strings.SplitAfter(strings.TrimSuffix(pw.String(), "\n"), "\n") {
-			w.WriteString("# " + line)
-		}
-		w.WriteString("\n")
 	}
 	w.WriteString("table:\n")
 	fmt.Fprintf(&w, "  # seen: %d rows, %d columns\n", st.rows, len(st.cols))
