@@ -12,6 +12,7 @@ import (
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/expr-lang/expr"
+	"github.com/expr-lang/expr/ast"
 	"github.com/expr-lang/expr/builtin"
 	"github.com/expr-lang/expr/conf"
 	"github.com/expr-lang/expr/file"
@@ -141,6 +142,9 @@ func Compile(src string, columns map[string]arrow.DataType) (prog *Program, err 
 	if err != nil {
 		return nil, compileError(err, env, unreadable)
 	}
+	if fe := untypedLogic(plain.Node()); fe != nil {
+		return nil, compileError(fe.Bind(plain.Source()), env, unreadable)
+	}
 	cfg := conf.CreateNew()
 	for _, o := range options(env, false) {
 		o(cfg)
@@ -162,6 +166,54 @@ func Compile(src string, columns map[string]arrow.DataType) (prog *Program, err 
 	p.gap = root.op == opCompare && root.cmp != opNe &&
 		(root.args[0].kind.numeric() || root.args[0].kind == kindTime)
 	return p, nil
+}
+
+// untypedLogic finds the first operand of &&, ||, ! or a condition ? :, or
+// the whole expression, that is not known to be a boolean. expr's checker
+// lets through a value whose type it cannot tell (x ?? y of two types,
+// $env["name"]), and its machine then yields that value itself
+// (a > 0 || (a ?? 0) gives 0): no verdict on a row, which would leave every
+// row uncounted. Such an expression is refused as it is written.
+func untypedLogic(root ast.Node) *file.Error {
+	v := &logicOperands{}
+	v.check(root, "the expression")
+	ast.Walk(&root, v)
+	return v.found
+}
+
+// logicOperands is the ast.Visitor of untypedLogic.
+type logicOperands struct {
+	found *file.Error
+}
+
+func (v *logicOperands) Visit(node *ast.Node) {
+	switch n := (*node).(type) {
+	case *ast.BinaryNode:
+		switch n.Operator {
+		case "&&", "and", "||", "or":
+			v.check(n.Left, "the left side of "+n.Operator)
+			v.check(n.Right, "the right side of "+n.Operator)
+		}
+	case *ast.UnaryNode:
+		if n.Operator == "!" || n.Operator == "not" {
+			v.check(n.Node, "the operand of "+n.Operator)
+		}
+	case *ast.ConditionalNode:
+		v.check(n.Cond, "the condition of ? :")
+	}
+}
+
+// check records n when its type is not bool; the first one in the text wins.
+func (v *logicOperands) check(n ast.Node, what string) {
+	if t := n.Type(); t != nil && t.Kind() == reflect.Bool {
+		return
+	}
+	loc := n.Location()
+	if v.found != nil && v.found.From <= loc.From {
+		return
+	}
+	v.found = &file.Error{Location: loc,
+		Message: what + " is not known to be a boolean (compare it, e.g. x > 0, or give ?? two values of one type)"}
 }
 
 // options are the expr options every compile of an expression uses.

@@ -10,6 +10,8 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 )
 
+const untypedHint = " (compare it, e.g. x > 0, or give ?? two values of one type)"
+
 func TestCompileErrors(t *testing.T) {
 	types := maps.Clone(testTypes)
 	types["tags"] = arrow.ListOf(arrow.BinaryTypes.String)
@@ -30,6 +32,12 @@ func TestCompileErrors(t *testing.T) {
 		{`p && "yes"`, 1, 3, 2, "invalid operation: && (mismatched types bool and string)"},
 		{`a`, 0, 0, 0, "expected bool, but got int64"},
 		{`a + 1`, 0, 0, 0, "expected bool, but got int"},
+		// expr accepts these, and its machine gives a value that is no verdict.
+		{`a > 0 || (a ?? 0)`, 1, 13, 12, "the right side of || is not known to be a boolean" + untypedHint},
+		{`(a ?? p) && true`, 1, 4, 3, "the left side of && is not known to be a boolean" + untypedHint},
+		{`!(a ?? 0) || true`, 1, 5, 4, "the operand of ! is not known to be a boolean" + untypedHint},
+		{`(a ?? 1) ? true : false`, 1, 4, 3, "the condition of ? : is not known to be a boolean" + untypedHint},
+		{`a ?? p`, 1, 3, 2, "the expression is not known to be a boolean" + untypedHint},
 	}
 	for _, tt := range tests {
 		_, err := Compile(tt.src, types)
