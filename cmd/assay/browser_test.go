@@ -106,6 +106,9 @@ func chartsWanted(rep *report.Report) map[string]int {
 		if j := res.Joint; j != nil {
 			has = append(has, j.QQ != nil)
 		}
+		if pr := res.Pair; pr != nil {
+			has = append(has, pr.Points != nil)
+		}
 		n := 0
 		for _, h := range has {
 			if h {

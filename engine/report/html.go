@@ -258,6 +258,13 @@ func newRuleView(res Result, units map[string]string) (*ruleView, error) {
 		if c, err = jointChart(res); c != nil {
 			charts = []*chart{c}
 		}
+	case res.Pair != nil:
+		v.statistics(res)
+		v.pair(res)
+		var c *chart
+		if c, err = pairChart(res, units); c != nil {
+			charts = []*chart{c}
+		}
 	default:
 		v.statistics(res)
 	}
@@ -265,6 +272,9 @@ func newRuleView(res Result, units map[string]string) (*ruleView, error) {
 		return nil, err
 	}
 	v.Charts = charts
+	if res.Segments != nil {
+		v.segments(res)
+	}
 	if res.Offending != nil && res.Status == OK {
 		v.Offending = offendingTable(res, units)
 	}
@@ -422,6 +432,13 @@ func offendingTable(res Result, units map[string]string) *table {
 	if drivers {
 		t.Head, t.Num = append(t.Head, "columns contributing most"), append(t.Num, false)
 	}
+	predicted := false
+	for _, row := range off.Rows {
+		predicted = predicted || row.Fitted != nil
+	}
+	if predicted && len(res.Columns) >= 2 {
+		t.Head, t.Num = append(t.Head, res.Columns[1]+" on the line"), append(t.Num, true)
+	}
 	for _, row := range off.Rows {
 		cells := []string{strconv.FormatInt(row.Row, 10)}
 		if multi {
@@ -440,6 +457,13 @@ func offendingTable(res Result, units map[string]string) *table {
 		cells = append(cells, strconv.FormatFloat(float64(row.Score), 'g', 6, 64))
 		if drivers {
 			cells = append(cells, contributionText(row.Contributions))
+		}
+		if predicted && len(res.Columns) >= 2 {
+			fitted := ""
+			if row.Fitted != nil {
+				fitted = sig4(float64(*row.Fitted))
+			}
+			cells = append(cells, fitted)
 		}
 		t.Rows = append(t.Rows, cells)
 	}

@@ -210,6 +210,97 @@ func outlierReport() *Report {
 	}
 }
 
+// relationReport is a report with the results of pair rules (a linear
+// line with flagged residuals, an order between two columns, an
+// association's cells, a column that should determine another) and of a
+// rule judged by groups. The numbers are made up for the rendering.
+func relationReport() *Report {
+	num := func(f float64) *Number { n := Number(f); return &n }
+	pts := &Points{}
+	for i := range 60 {
+		x := 5 + 0.5*float64(i)
+		pts.X = append(pts.X, Number(x))
+		pts.Y = append(pts.Y, Number(2+1.5*x+math.Sin(float64(i))))
+	}
+	ordered := &Points{}
+	for i := range 30 {
+		ordered.X = append(ordered.X, Number(i))
+		ordered.Y = append(ordered.Y, Number(float64(i)+2+math.Cos(float64(i))))
+	}
+	return &Report{
+		Schema:  SchemaVersion,
+		Verdict: Fail,
+		Policy:  Policy{Name: "greenhouse", File: "house.yaml", Hash: "sha256:0c0d"},
+		Rows:    1000,
+		Sources: []Source{{Path: "house.csv", Format: "csv", Rows: 1000}},
+		Counts:  Counts{Fail: 3, Warn: 1, Pass: 1},
+		Tool:    Tool{Name: "assay", Version: "0.1.0"},
+		Started: time.Date(2025, 6, 9, 10, 0, 0, 0, time.UTC),
+		Units:   map[string]string{"outside_c": "°C", "heater_kwh": "kWh"},
+		Results: []Result{
+			{
+				ID: "pairs.heat", Check: "linear", Columns: []string{"outside_c", "heater_kwh"}, Status: OK, Verdict: Fail,
+				Measure:   Measure{Name: "far row share", Value: 0.002, Unit: "share"},
+				Tolerance: Tolerance{Direction: "at most", Fail: Number(0)},
+				Message:   "2 of 1,000 rows have |standardized residual| above 4 from the theil-sen line",
+				Estimates: map[string]float64{"intercept": 2, "slope": 1.5, "scale": 0.7, "cutoff": 4},
+				Offending: &Offending{Count: 2, Rows: []Row{
+					{Row: 17, Line: 18, Values: map[string]any{"outside_c": 10.0, "heater_kwh": 30.0}, Score: 16.4, Fitted: num(17)},
+					{Row: 410, Line: 411, Values: map[string]any{"outside_c": 25.0, "heater_kwh": 20.5}, Score: 6.9, Fitted: num(39.5)},
+				}},
+				Pair: &Pair{
+					Relation: "linear", N: 1000, Sampled: true, SampleSize: 500, Seed: 1, Points: pts,
+					Line: &Line{Fit: "theil-sen", Intercept: 2, Slope: 1.5, Scale: 0.7, SlopeLow: num(1.48), SlopeHigh: num(1.52),
+						Rule: "standardized", Cutoff: num(4)},
+				},
+			},
+			{
+				ID: "pairs.min-below-max", Check: "ordered", Columns: []string{"min_c", "max_c"}, Status: OK, Verdict: Warn,
+				Measure:   Measure{Name: "out of order share", Value: 0.001, Unit: "share"},
+				Tolerance: Tolerance{Direction: "at most", Warn: Number(0), Fail: Number(0.01)},
+				Offending: &Offending{Count: 1, Rows: []Row{
+					{Row: 5, Line: 6, Values: map[string]any{"min_c": 21.0, "max_c": 12.0}, Score: 9},
+				}},
+				Pair: &Pair{Relation: "ordered", N: 1000, Points: ordered},
+			},
+			{
+				ID: "pairs.bay-crop", Check: "association", Columns: []string{"bay", "crop"}, Status: OK, Verdict: Pass,
+				Measure:   Measure{Name: "Cramér's V", Value: 0.05, Unit: "value"},
+				Tolerance: Tolerance{Direction: "at most", Fail: Number(0.3)},
+				Statistic: &Statistic{Name: "chi-square", Value: 7.5, N: 1000},
+				Pair: &Pair{Relation: "association", N: 1000, Cells: []PairCell{
+					{A: "B1", B: "tomato", Observed: 140, Expected: 125, Residual: 1.342},
+					{A: "B2", B: "<basil>", Observed: 110, Expected: 125, Residual: -1.342},
+				}},
+			},
+			{
+				ID: "pairs.sensor-bay", Check: "determines", Columns: []string{"sensor", "bay"}, Status: OK, Verdict: Fail,
+				Measure:   Measure{Name: "conflicting row share", Value: 0.012, Unit: "share"},
+				Tolerance: Tolerance{Direction: "at most", Fail: Number(0)},
+				Pair: &Pair{Relation: "determines", N: 1000, ViolationCount: 3, Violations: []Violation{
+					{A: "S-07", Rows: 8, Values: []ValueCount{{Value: "B1", Rows: 6}, {Value: "B2", Rows: 2}}},
+				}},
+			},
+			{
+				ID: "columns.co2_ppm.summary.mean", Check: "summary", Columns: []string{"co2_ppm"}, Status: OK, Verdict: Fail,
+				Measure:   Measure{Name: "mean", Value: 1250, Unit: "value"},
+				Tolerance: Tolerance{Direction: "within", Fail: [2]Number{400, 1200}},
+				Message:   "the mean of bay B3 is 1,250, outside [400, 1200]",
+				Segments: &Segments{
+					By: []string{"bay"}, Where: "crop == \"tomato\"", Rows: 600, RowsRead: 1000, GroupCount: 3,
+					Counts: &Counts{Fail: 1, Pass: 2},
+					Groups: []Group{
+						{Key: map[string]any{"bay": "B3"}, Rows: 200, Status: OK, Verdict: Fail, Measure: 1250},
+						{Key: map[string]any{"bay": "B1"}, Rows: 200, Status: OK, Verdict: Pass, Measure: 800},
+						{Key: map[string]any{"bay": nil}, Rows: 200, Status: Error, Error: "no values"},
+					},
+				},
+			},
+		},
+		Duration: 0.75,
+	}
+}
+
 func renderHTML(t *testing.T, r *Report) []byte {
 	t.Helper()
 	var b bytes.Buffer
@@ -227,6 +318,7 @@ func TestHTMLGolden(t *testing.T) {
 		{"sample.html", sampleReport()},
 		{"distribution.html", distributionReport()},
 		{"outliers.html", outlierReport()},
+		{"relations.html", relationReport()},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			got := renderHTML(t, c.r)
@@ -243,7 +335,7 @@ func TestHTMLGolden(t *testing.T) {
 // report lists, and a chart for each kind of plot data a result carries,
 // each with a title and a description.
 func TestHTMLStructure(t *testing.T) {
-	for _, r := range []*Report{sampleReport(), distributionReport(), outlierReport()} {
+	for _, r := range []*Report{sampleReport(), distributionReport(), outlierReport(), relationReport()} {
 		t.Run(r.Policy.Name, func(t *testing.T) {
 			doc := parseHTML(t, renderHTML(t, r))
 			sections := doc.findAll(func(n *node) bool { return n.tag == "section" && n.hasClass("rule") })
@@ -307,6 +399,9 @@ func chartData(res Result) int {
 	}
 	if j := res.Joint; j != nil {
 		has = append(has, j.QQ != nil)
+	}
+	if pr := res.Pair; pr != nil {
+		has = append(has, pr.Points != nil)
 	}
 	n := 0
 	for _, h := range has {
