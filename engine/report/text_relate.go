@@ -97,8 +97,11 @@ func (p *printer) segments(res Result) {
 		if g.Status != OK {
 			state, measure = g.Status.String(), g.Error
 		}
-		fmt.Fprintf(tw, "    %s\t%s\t%s\t%s rows\t%s offending\n", strings.Join(keys, ", "), state, measure,
-			groupDigits(g.Rows), groupDigits(g.Offending))
+		rows := groupDigits(g.Rows) + " rows"
+		if g.Rows == 1 {
+			rows = "1 row"
+		}
+		fmt.Fprintf(tw, "    %s\t%s\t%s\t%s\t%s offending\n", strings.Join(keys, ", "), state, measure, rows, groupDigits(g.Offending))
 	}
 	tw.Flush()
 	p.printf("%s", b.String())
