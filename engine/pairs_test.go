@@ -3,6 +3,7 @@ package engine_test
 import (
 	"bufio"
 	"context"
+	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -144,4 +145,42 @@ func csvRows(t *testing.T, name string) [][]string {
 		t.Fatal(err)
 	}
 	return rows
+}
+
+// TestWherePositions: a where expression that does not type-check against
+// the data is reported at the character it fails on, in the policy file,
+// for a column's rules and a pair's alike, with every other problem.
+func TestWherePositions(t *testing.T) {
+	dir := t.TempDir()
+	data := filepath.Join(dir, "d.csv")
+	if err := os.WriteFile(data, []byte("a,b,site\n1,2,x\n2,4,y\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "p.yaml")
+	pol, err := rules.Parse(path, []byte(`policy: where-positions
+columns:
+  a:
+    nulls: 0
+    where: "site > 3 and b < 1"
+pairs:
+  - columns: [a, b]
+    relation: ordered
+    where: b < "x"
+`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = engine.Run(context.Background(), pol, []string{data}, engine.Options{})
+	var mis *engine.MismatchError
+	if !errors.As(err, &mis) || len(mis.Problems) != 2 {
+		t.Fatalf("Run: %v, want two problems", err)
+	}
+	for i, want := range []string{
+		path + ":4:5: rule columns.a.nulls: where: expression, at " + path + ":5:18: invalid operation: > (mismatched types string and int)",
+		path + ":7:5: rule pairs.a+b.ordered: where: expression, at " + path + ":9:14: invalid operation: < (mismatched types int64 and string)",
+	} {
+		if mis.Problems[i] != want {
+			t.Errorf("problem %d:\ngot  %s\nwant %s", i, mis.Problems[i], want)
+		}
+	}
 }
