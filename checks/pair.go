@@ -218,14 +218,6 @@ func (s *pairSample) values() (xs, ys []float64) {
 // sampled reports whether the sample holds fewer pairs than were offered.
 func (s *pairSample) sampled() bool { return s != nil && !s.x.Complete() }
 
-// size is how many pairs the sample holds.
-func (s *pairSample) size() int64 {
-	if s == nil {
-		return 0
-	}
-	return int64(len(s.x.Values()))
-}
-
 // points writes a sample as a report's points.
 func (s *pairSample) points() *report.Points {
 	xs, ys := s.values()
