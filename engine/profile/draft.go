@@ -118,7 +118,8 @@ func nullsThreshold(nulls, rows int64) float64 {
 // rounds outward to a multiple of the step 10^(floor(log10(width)) - 1), a
 // tenth of the width's order of magnitude (at least 1 for integers). A
 // lower bound of non-negative data stays at 0 or above. A constant column
-// keeps its value as both bounds.
+// keeps its value as both bounds, and a range too wide for a margin
+// (beyond the largest float) its own ends.
 func bounds(lo, hi float64, integer bool) (float64, float64) {
 	w := hi - lo
 	if w == 0 {
@@ -135,7 +136,12 @@ func bounds(lo, hi float64, integer bool) (float64, float64) {
 	if lo >= 0 && a < 0 {
 		a = 0
 	}
-	return round(a, step), round(b, step)
+	a, b = round(a, step), round(b, step)
+	if !finite(a) || !finite(b) {
+		// The margin overflows near the largest float: keep what was seen.
+		return lo, hi
+	}
+	return a, b
 }
 
 // round removes the rounding error of a multiple of step (0.30000000000000004).
@@ -442,6 +448,9 @@ func when(sec float64, typ string) string {
 
 func describeFiles(st *stats) string {
 	if len(st.files) == 1 {
+		if st.files[0].Path == "-" {
+			return "standard input"
+		}
 		return filepath.Base(st.files[0].Path)
 	}
 	return fmt.Sprintf("%d files", len(st.files))

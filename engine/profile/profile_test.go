@@ -324,13 +324,14 @@ func TestBounds(t *testing.T) {
 		integer        bool
 		wantLo, wantHi float64
 	}{
-		{-2.647, 3.436, false, -3.3, 4.1}, // width 6.083, margin 0.6083, step 0.1
-		{12.3, 98.1, false, 3, 107},       // width 85.8, step 1
-		{0.5, 2.5, false, 0.3, 2.7},       // step 0.1
-		{3, 90, true, 0, 99},              // lower bound of non-negative data stays >= 0
-		{1947, 1962, true, 1945, 1964},    // step 1 for integers
-		{5, 5, false, 5, 5},               // constant
-		{-90, -10, false, -98, -2},        // width 80, step 1
+		{-2.647, 3.436, false, -3.3, 4.1},     // width 6.083, margin 0.6083, step 0.1
+		{12.3, 98.1, false, 3, 107},           // width 85.8, step 1
+		{0.5, 2.5, false, 0.3, 2.7},           // step 0.1
+		{3, 90, true, 0, 99},                  // lower bound of non-negative data stays >= 0
+		{1947, 1962, true, 1945, 1964},        // step 1 for integers
+		{5, 5, false, 5, 5},                   // constant
+		{-90, -10, false, -98, -2},            // width 80, step 1
+		{-1e308, 1e308, false, -1e308, 1e308}, // the width overflows: no margin
 	}
 	for _, c := range cases {
 		lo, hi := bounds(c.lo, c.hi, c.integer)
