@@ -181,6 +181,9 @@ func (d *drafter) column(c *column) colDraft {
 	} else {
 		cd.seen = append(cd.seen, fmt.Sprintf("%s nulls (%d of %d rows)", pct(float64(c.nulls)/float64(rows)), c.nulls, rows))
 	}
+	if c.typ == "" {
+		cd.seen = append(cd.seen, fmt.Sprintf("stored as %s, which no policy type reads: no type or value rules drafted", c.stored))
+	}
 	if c.counts != nil && c.n > 0 {
 		cd.seen = append(cd.seen, fmt.Sprintf("%d distinct values", len(c.counts)))
 	} else if c.keyState == keyTracking && c.n > 0 {

@@ -79,7 +79,8 @@ type Options struct {
 // column is what a scan learns about one column.
 type column struct {
 	name    string
-	typ     string // the policy's type name
+	typ     string // the policy's type name; "" when none reads the stored type
+	stored  string // the Arrow type as read
 	index   int    // in the schema
 	nulls   int64
 	invalid int64
@@ -183,7 +184,7 @@ func scanSet(ctx context.Context, set *source.Set, opts Options) (*stats, error)
 	st := &stats{files: set.Files()}
 	var names []string
 	for i, f := range schema.Fields() {
-		c := &column{name: f.Name, index: i, typ: typeName(f.Type), min: math.Inf(1), max: math.Inf(-1), minLen: math.MaxInt}
+		c := &column{name: f.Name, index: i, typ: typeName(f.Type), stored: f.Type.String(), min: math.Inf(1), max: math.Inf(-1), minLen: math.MaxInt}
 		if c.typ == "string" || c.typ == "integer" || c.typ == "boolean" {
 			c.counts = map[string]int64{}
 		}
@@ -388,7 +389,8 @@ func (st *stats) observePairs(vals [][]float64, rows int) {
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-// typeName is the policy's name of a column type the reader produces.
+// typeName is the policy's name of a column type the reader produces, or
+// "" for a type of a Parquet or Arrow file that no policy type reads.
 func typeName(t arrow.DataType) string {
 	switch {
 	case arrow.TypeEqual(t, arrow.PrimitiveTypes.Int64):
@@ -401,8 +403,10 @@ func typeName(t arrow.DataType) string {
 		return "timestamp"
 	case arrow.TypeEqual(t, arrow.FixedWidthTypes.Date32):
 		return "date"
+	case arrow.TypeEqual(t, arrow.BinaryTypes.String):
+		return "string"
 	}
-	return "string"
+	return "" // a stored type a policy cannot declare (uint64, decimal, ...)
 }
 
 // sortedCounts returns the categories by descending count, then by text.

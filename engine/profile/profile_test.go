@@ -14,7 +14,10 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 	"github.com/santhosh-tekuri/jsonschema/v6"
 	"go.yaml.in/yaml/v3"
 
@@ -482,5 +485,60 @@ func TestWhatIsDrafted(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// TestParquet drafts from a Parquet file whose stored types include one no
+// policy type reads (uint64): it gets no type rule, and the draft passes.
+func TestParquet(t *testing.T) {
+	mem := memory.NewCheckedAllocator(memory.NewGoAllocator())
+	defer mem.AssertSize(t, 0)
+	schema := arrow.NewSchema([]arrow.Field{
+		{Name: "serial", Type: arrow.PrimitiveTypes.Uint64},
+		{Name: "depth_cm", Type: arrow.PrimitiveTypes.Int32},
+		{Name: "moisture", Type: arrow.PrimitiveTypes.Float64, Nullable: true},
+	}, nil)
+	b := array.NewRecordBuilder(mem, schema)
+	defer b.Release()
+	r := rand.New(rand.NewPCG(5, 5))
+	for i := range 200 {
+		b.Field(0).(*array.Uint64Builder).Append(1<<63 + uint64(i))
+		b.Field(1).(*array.Int32Builder).Append(int32(10 * (i % 6)))
+		if i%25 == 0 {
+			b.Field(2).(*array.Float64Builder).AppendNull()
+		} else {
+			b.Field(2).(*array.Float64Builder).Append(math.Round((30+4*r.NormFloat64())*10) / 10)
+		}
+	}
+	rec := b.NewRecordBatch()
+	defer rec.Release()
+	dir := t.TempDir()
+	path := filepath.Join(dir, "soil.parquet")
+	f, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w, err := pqarrow.NewFileWriter(schema, f, nil, pqarrow.DefaultWriterProps())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Write(rec); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	text := draft(t, dir, path)
+	ids := ruleIDs(t, text)
+	for _, id := range []string{"columns.depth_cm.type", "columns.depth_cm.enum", "columns.moisture.nulls", "columns.moisture.distribution"} {
+		if !slices.Contains(ids, id) {
+			t.Errorf("no %s\n%s", id, text)
+		}
+	}
+	if slices.Contains(ids, "columns.serial.type") {
+		t.Errorf("a type drafted for a uint64 column\n%s", text)
+	}
+	if bad := notPassing(check(t, dir)); len(bad) > 0 {
+		t.Errorf("the draft does not pass on its data: %v\n%s", bad, text)
 	}
 }

@@ -53,7 +53,9 @@ func (d *drafter) writeColumn(w *strings.Builder, cd colDraft) {
 	c := cd.c
 	fmt.Fprintf(w, "  %s:\n", str(c.name))
 	comment(w, "    ", "seen: "+strings.Join(cd.seen, "; "))
-	fmt.Fprintf(w, "    type: %s\n", c.typ)
+	if c.typ != "" {
+		fmt.Fprintf(w, "    type: %s\n", c.typ)
+	}
 	fmt.Fprintf(w, "    nulls: %s\n", cd.nulls)
 	if cd.unique {
 		w.WriteString("    unique: true\n")
