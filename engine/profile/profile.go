@@ -92,7 +92,7 @@ type column struct {
 	nonFinite int64
 	sample    *gof.Reservoir
 
-	// categories (string, integer, boolean): counts while at most
+	// categories (string, integer, number, boolean): counts while at most
 	// MaxEnum; nil beyond, and for the other types
 	counts map[string]int64
 
@@ -185,7 +185,7 @@ func scanSet(ctx context.Context, set *source.Set, opts Options) (*stats, error)
 	var names []string
 	for i, f := range schema.Fields() {
 		c := &column{name: f.Name, index: i, typ: typeName(f.Type), stored: f.Type.String(), min: math.Inf(1), max: math.Inf(-1), minLen: math.MaxInt}
-		if c.typ == "string" || c.typ == "integer" || c.typ == "boolean" {
+		if c.typ == "string" || c.typ == "integer" || c.typ == "number" || c.typ == "boolean" {
 			c.counts = map[string]int64{}
 		}
 		switch c.typ {
@@ -278,6 +278,9 @@ func (c *column) observe(a arrow.Array, out []float64) []float64 {
 			text = strconv.FormatInt(a.Value(i), 10)
 		case *array.Float64:
 			v = a.Value(i)
+			if c.counts != nil {
+				text = strconv.FormatFloat(v, 'g', -1, 64)
+			}
 		case *array.String:
 			text = a.Value(i)
 			l := len([]rune(text))

@@ -437,6 +437,10 @@ func TestWhatIsDrafted(t *testing.T) {
 			[]string{"table.key"}, []string{"columns.a.unique", "columns.b.unique"}},
 		{"no key", func(i int) string { return fmt.Sprintf("s%d,%d", i%10, i%20) }, "a,b",
 			nil, []string{"table.key", "columns.a.unique"}},
+		{"monotonic pair", func(i int) string { return fmt.Sprintf("%d,%.6g", i, math.Exp(float64(i)/4)) }, "x,y",
+			[]string{"pairs.x+y.correlation"}, []string{"pairs.x+y.residuals"}},
+		{"few distinct numbers", func(i int) string { return []string{"0.5", "1.5", "2.5"}[i%3] }, "v",
+			[]string{"columns.v.minimum"}, []string{"columns.v.distribution", "columns.v.enum"}},
 		{"too few for a family", func(i int) string { return fmt.Sprintf("%d.5", i*i%37) }, "x",
 			[]string{"columns.x.minimum"}, []string{"columns.x.distribution"}},
 		{"widened type", func(i int) string {
