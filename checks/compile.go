@@ -50,6 +50,8 @@ func Compile(r *rules.Rule, env *Env) (Check, error) {
 		c, err = newExtremesCheck(r, s, env)
 	case rules.JointSpec:
 		c, err = newJointCheck(r, s, env)
+	case rules.DriftSpec:
+		c, err = newDriftCheck(r, s, env)
 	case rules.PairSpec:
 		c, err = newPairCheck(r, s, env)
 	default:

@@ -33,6 +33,7 @@ func TestEveryKindCompiles(t *testing.T) {
 		rules.KindDistribution: newRule(rules.DistributionSpec{Families: []string{"normal"}, Test: rules.TestKS,
 			Measure: rules.MeasureDistance, Sample: 1000, Seed: 1}, atMost(0.1), "x"),
 		rules.KindExtremes: newRule(rules.ExtremesSpec{Method: rules.ExtremesTukey, K: 1.5}, atMost(0.05), "x"),
+		rules.KindDrift:    newRule(rules.DriftSpec{Baseline: "absent.json", Measure: rules.DriftPSI}, atMost(0.25), "x"),
 		rules.KindJoint: newRule(rules.JointSpec{Method: rules.JointMahalanobis, Quantile: 0.999, Sample: 1000, Seed: 1},
 			atMost(0.05), "x", "y"),
 		rules.KindLinear: newRule(rules.PairSpec{Relation: rules.RelationLinear, Measure: rules.PairSlope, Fit: rules.FitOLS},

@@ -34,6 +34,7 @@ import (
 // Any rule takes
 //
 //	value RULE-ID X      the measure is X to half a unit of X's last digit
+//	message RULE-ID TEXT the message contains TEXT (the rest of the line)
 //
 // and rules with by take
 //
@@ -83,6 +84,13 @@ func TestConformance(t *testing.T) {
 					}
 					if msg := checkFit(find(rep, f[1]), f[0], f[2]); msg != "" {
 						t.Errorf("want.txt:%d: %s", n+1, msg)
+					}
+					continue
+				}
+				if f[0] == "message" && len(f) > 2 {
+					text := strings.TrimSpace(strings.SplitN(line, f[1], 2)[1])
+					if res := find(rep, f[1]); res == nil || !strings.Contains(res.Message, text) {
+						t.Errorf("want.txt:%d: %s message does not contain %q", n+1, f[1], text)
 					}
 					continue
 				}

@@ -114,6 +114,8 @@ func explainSpec(r *Rule) string {
 		return explainExtremes(s)
 	case JointSpec:
 		return explainJoint(s)
+	case DriftSpec:
+		return explainDrift(s)
 	case PairSpec:
 		return explainPair(s)
 	}

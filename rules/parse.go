@@ -132,7 +132,7 @@ func (r *resolver) errorList() ErrorList {
 var (
 	topKeys    = []string{"policy", "about", "data", "csv", "columns", "rows", "table", "joint", "pairs"}
 	columnKeys = []string{"type", "unit", "description", "tolerance", "nulls", "unique", "minimum", "maximum",
-		"exclusiveMinimum", "exclusiveMaximum", "enum", "pattern", "minLength", "maxLength", "summary", "distribution", "extremes", "by", "where"}
+		"exclusiveMinimum", "exclusiveMaximum", "enum", "pattern", "minLength", "maxLength", "summary", "distribution", "extremes", "drift", "by", "where"}
 	tableKeys = []string{"rows", "key", "closed", "required"}
 	rowKeys   = []string{"name", "expr", "tolerance"}
 )
@@ -368,6 +368,8 @@ func (r *resolver) decodeColumnKey(c *colDraft, f field) {
 		r.decodeDistribution(r.columnRule(c, f, KindDistribution, f.v, nil), f.v)
 	case "extremes":
 		r.decodeExtremes(r.columnRule(c, f, KindExtremes, f.v, nil), f.v)
+	case "drift":
+		r.decodeDrift(c, f)
 	case "by", "where":
 		if c.seg == nil {
 			c.seg = &segDraft{}

@@ -100,7 +100,7 @@ const (
 // Kinds lists every declared kind, in the order reports list them.
 func Kinds() []Kind {
 	return []Kind{KindRequired, KindClosed, KindRowCount, KindKey, KindType, KindNulls, KindUnique,
-		KindMinimum, KindMaximum, KindEnum, KindPattern, KindMinLength, KindMaxLength, KindSummary, KindDistribution, KindExtremes, KindRow, KindJoint,
+		KindMinimum, KindMaximum, KindEnum, KindPattern, KindMinLength, KindMaxLength, KindSummary, KindDistribution, KindExtremes, KindDrift, KindRow, KindJoint,
 		KindLinear, KindMonotonic, KindOrdered, KindAssociation, KindDetermines}
 }
 

@@ -276,6 +276,8 @@ func (r *resolver) tolerances() {
 			t, ok = r.bounds(path, p.val, r.statValue(r.column(p.col).Type, spec.Stat))
 		case p.rule.Kind == KindDistribution:
 			t, ok = r.distTolerance(p)
+		case p.rule.Kind == KindDrift:
+			t, ok = r.driftTolerance(p)
 		case p.tol != nil:
 			t, ok = r.shareTolerance(path, p.tol)
 		}
@@ -719,6 +721,8 @@ func kindDefault(s Spec) (Tolerance, bool) {
 		return defaultExtremesTolerance(s.Method), true
 	case JointSpec:
 		return defaultExtremesTolerance(""), true
+	case DriftSpec:
+		return defaultDriftTolerance(s.Measure), true
 	}
 	return Tolerance{}, false
 }
@@ -756,6 +760,8 @@ func measure(r *Rule) Measure {
 		return Measure{Name: "extreme share"}
 	case JointSpec:
 		return Measure{Name: "outlying row share"}
+	case DriftSpec:
+		return driftMeasure(s)
 	case PairSpec:
 		return pairMeasure(s)
 	}

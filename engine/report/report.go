@@ -176,6 +176,9 @@ type Result struct {
 	// Joint is set by joint rules: the estimate, the cutoff, the rows not
 	// judged, and what a distance plot needs (see Joint).
 	Joint *Joint `json:"joint,omitempty"`
+	// Drift is set by drift rules: what the column was compared with and
+	// where it moved (see Drift).
+	Drift *Drift `json:"drift,omitempty"`
 }
 
 // Fit is what a distribution rule found.
