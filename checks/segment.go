@@ -103,8 +103,29 @@ func (c *segmentCheck) NewAccumulator() Accumulator {
 	a := &SegmentAccumulator{check: c, index: map[string]int{}}
 	if len(c.by) == 0 {
 		a.groups = []*segGroup{c.newGroup("", nil)}
+		return judging(a, a.groups[0].final)
+	}
+	return judging(a, c.inner.NewAccumulator())
+}
+
+// judging returns a, as a SegmentJudge when the rule's own accumulators
+// at this pass judge rows one by one (inner is one of them).
+func judging(a *SegmentAccumulator, inner Accumulator) Accumulator {
+	if _, ok := inner.(RowJudge); ok {
+		return SegmentJudge{a}
 	}
 	return a
+}
+
+// segmentOf returns the SegmentAccumulator of a, or nil.
+func segmentOf(a Accumulator) *SegmentAccumulator {
+	switch s := a.(type) {
+	case *SegmentAccumulator:
+		return s
+	case SegmentJudge:
+		return s.SegmentAccumulator
+	}
+	return nil
 }
 
 func (c *segmentCheck) newGroup(id string, key map[string]any) *segGroup {
@@ -130,6 +151,7 @@ type SegmentAccumulator struct {
 	gid   []int // group of each kept row
 	keys  []keyColumn
 	key   []byte
+	marks []bool // a group's rejected rows
 	count []int
 	perm  []int
 }
@@ -147,35 +169,59 @@ type segGroup struct {
 // Observe filters the batch, routes each kept row to its group's
 // accumulator and feeds each group its rows as a batch.
 func (a *SegmentAccumulator) Observe(b *source.Batch) error {
+	return a.route(b, !a.second, func(g *segGroup, part *source.Batch, _ []int) error {
+		if !a.second {
+			g.rows += part.Record.NumRows()
+		}
+		if g.acc == nil {
+			return nil
+		}
+		return g.acc.Observe(part)
+	})
+}
+
+// route hands each group the rows of b it holds, as a batch of their own
+// (b itself when one group holds every row), with their indices in b. On
+// the first pass it counts the rows read and kept and forms new groups.
+func (a *SegmentAccumulator) route(b *source.Batch, first bool, f func(g *segGroup, part *source.Batch, rows []int) error) error {
 	n := int(b.Record.NumRows())
 	if err := a.filter(b); err != nil {
 		return err
 	}
-	if !a.second {
+	if first {
 		a.RowsRead += int64(n)
 		a.Rows += int64(len(a.sel))
 	}
 	if len(a.sel) == 0 {
 		return nil
 	}
-	if len(a.check.by) == 0 {
-		return a.feed(a.groups[0], b, a.sel, n)
-	}
-	if err := a.group(b); err != nil {
-		return err
-	}
-	first, single := a.gid[0], true
-	for _, g := range a.gid {
-		if g != first {
-			single = false
-			break
+	g := 0
+	if len(a.check.by) > 0 {
+		if err := a.group(b, first); err != nil {
+			return err
+		}
+		g = a.gid[0]
+		for _, h := range a.gid {
+			if h != g {
+				return a.routeGroups(b, f)
+			}
 		}
 	}
-	if single {
-		return a.feed(a.groups[first], b, a.sel, n)
+	grp := a.groups[g]
+	if len(a.sel) == n {
+		return a.groupError(grp, f(grp, b, a.sel))
 	}
-	// One take puts the rows in group order; each group then reads a
-	// slice of it.
+	part, err := take(a.check.mem, b, a.sel)
+	if err != nil {
+		return err
+	}
+	defer part.Release()
+	return a.groupError(grp, f(grp, part, a.sel))
+}
+
+// routeGroups hands the kept rows of b to several groups: one take puts
+// them in group order, and each group reads a slice of it.
+func (a *SegmentAccumulator) routeGroups(b *source.Batch, f func(g *segGroup, part *source.Batch, rows []int) error) error {
 	a.count = slices.Grow(a.count[:0], len(a.groups)+1)[:len(a.groups)+1]
 	clear(a.count)
 	for _, g := range a.gid {
@@ -200,40 +246,14 @@ func (a *SegmentAccumulator) Observe(b *source.Batch) error {
 		if lo == hi {
 			continue
 		}
-		if !a.second {
-			grp.rows += int64(hi - lo)
-		}
-		if grp.acc == nil {
-			continue
-		}
 		part := slice(sorted, lo, hi)
-		err := grp.acc.Observe(part)
+		err := f(grp, part, a.perm[lo:hi])
 		part.Release()
 		if err != nil {
 			return a.groupError(grp, err)
 		}
 	}
 	return nil
-}
-
-// feed gives group g the rows sel of b, a batch of n rows: b itself when
-// it keeps them all.
-func (a *SegmentAccumulator) feed(g *segGroup, b *source.Batch, sel []int, n int) error {
-	if !a.second {
-		g.rows += int64(len(sel))
-	}
-	if g.acc == nil {
-		return nil
-	}
-	if len(sel) == n {
-		return a.groupError(g, g.acc.Observe(b))
-	}
-	part, err := take(a.check.mem, b, sel)
-	if err != nil {
-		return err
-	}
-	defer part.Release()
-	return a.groupError(g, g.acc.Observe(part))
 }
 
 // groupError names the group an inner accumulator failed on.
@@ -273,8 +293,9 @@ func (a *SegmentAccumulator) filter(b *source.Batch) error {
 	return nil
 }
 
-// group sets a.gid to the group of each kept row, making new groups.
-func (a *SegmentAccumulator) group(b *source.Batch) error {
+// group sets a.gid to the group of each kept row, making new groups when
+// grow is set.
+func (a *SegmentAccumulator) group(b *source.Batch, grow bool) error {
 	if len(a.keys) != len(a.check.by) {
 		a.keys = make([]keyColumn, len(a.check.by))
 	}
@@ -292,8 +313,8 @@ func (a *SegmentAccumulator) group(b *source.Batch) error {
 		}
 		g, ok := a.index[string(a.key)]
 		if !ok {
-			if a.second {
-				return fmt.Errorf("the second pass met a group the first did not")
+			if !grow {
+				return fmt.Errorf("a later pass met a group the first did not: the data changed between passes")
 			}
 			if len(a.groups) >= seg.Limit {
 				return fmt.Errorf("more than %d groups of %s: raise by.limit, or group by fewer or coarser columns",
@@ -377,8 +398,8 @@ func (k *keyColumn) append(key []byte, i int) []byte {
 // same key merge, the others are adopted. Second passes carry the counts of
 // the first, which they do not add up again.
 func (a *SegmentAccumulator) Merge(other Accumulator) error {
-	o, ok := other.(*SegmentAccumulator)
-	if !ok || o.check != a.check || o.second != a.second {
+	o := segmentOf(other)
+	if o == nil || o.check != a.check || o.second != a.second {
 		return errMerge(a.check.rule, a, other)
 	}
 	if !a.second {
@@ -423,12 +444,13 @@ func (a *SegmentAccumulator) Merge(other Accumulator) error {
 func (a *SegmentAccumulator) SecondPass() Accumulator {
 	next := &SegmentAccumulator{check: a.check, RowsRead: a.RowsRead, Rows: a.Rows, index: a.index, second: true}
 	again := false
+	var sample Accumulator
 	for _, g := range a.groups {
 		ng := &segGroup{id: g.id, key: g.key, rows: g.rows, final: g.final}
 		if r, ok := g.acc.(Rescanner); ok {
 			if p := r.SecondPass(); p != nil {
 				ng.acc, ng.final = p, p
-				again = true
+				again, sample = true, p
 			}
 		}
 		next.groups = append(next.groups, ng)
@@ -436,7 +458,34 @@ func (a *SegmentAccumulator) SecondPass() Accumulator {
 	if !again {
 		return nil
 	}
-	return next
+	return judging(next, sample)
+}
+
+// SegmentJudge is the accumulator of a segmented rule whose own
+// accumulators judge rows one by one (see RowJudge): it hands each row to
+// its group's accumulator to judge.
+type SegmentJudge struct{ *SegmentAccumulator }
+
+// Reject marks the rows that their groups count as offending. Rows the
+// filter leaves out are not judged, so never rejected.
+func (j SegmentJudge) Reject(b *source.Batch, bad []bool) error {
+	return j.route(b, false, func(g *segGroup, part *source.Batch, rows []int) error {
+		judge, ok := g.final.(RowJudge)
+		if !ok {
+			return nil
+		}
+		j.marks = slices.Grow(j.marks[:0], len(rows))[:len(rows)]
+		clear(j.marks)
+		if err := judge.Reject(part, j.marks); err != nil {
+			return err
+		}
+		for k, r := range j.marks {
+			if r {
+				bad[rows[k]] = true
+			}
+		}
+		return nil
+	})
 }
 
 // Finish judges every group and returns the worst group's result with the

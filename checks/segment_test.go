@@ -228,3 +228,53 @@ func TestSegmentCompileErrors(t *testing.T) {
 		t.Errorf("Compile: %v, want the absent by column", err)
 	}
 }
+
+// TestSegmentReject: a segmented row-level rule rejects, for a gate,
+// exactly the rows its result counts: those its groups count, never a row
+// the filter leaves out; a rule that does not judge rows one by one is no
+// judge.
+func TestSegmentReject(t *testing.T) {
+	_, b, env := segData(t, 20)
+	for _, c := range []struct {
+		rule *rules.Rule
+		want []int // rows rejected, 1-based
+	}{
+		// v above 5 where ok: rows 2, 5, 7, 10 (row 8's ok is null).
+		{segmented(newRule(rules.BoundSpec{Bound: rules.KindMaximum, Value: 5}, atMost(0), "v"), []string{"site"}, "ok", "ok"), []int{2, 5, 7, 10}},
+		// duplicated v within a group of ok: 1.0 on rows 1 and 9.
+		{segmented(newRule(rules.UniqueSpec{}, atMost(0), "v"), []string{"ok"}, ""), []int{1, 9}},
+	} {
+		a := compile(t, c.rule, env).NewAccumulator()
+		observe(t, a, b)
+		if r, ok := a.(Rescanner); ok {
+			if next := r.SecondPass(); next != nil {
+				a = next
+				observe(t, a, b)
+			}
+		}
+		j, ok := a.(RowJudge)
+		if !ok {
+			t.Fatalf("%s: the last pass's accumulator %T is no RowJudge", c.rule.Kind, a)
+		}
+		bad := make([]bool, b.Record.NumRows())
+		if err := j.Reject(b, bad); err != nil {
+			t.Fatal(err)
+		}
+		var got []int
+		for i, x := range bad {
+			if x {
+				got = append(got, i+1)
+			}
+		}
+		if !reflect.DeepEqual(got, c.want) {
+			t.Errorf("%s: rejected %v, want %v", c.rule.Kind, got, c.want)
+		}
+		if count, _, _ := listed(a.Finish()); count != int64(len(c.want)) {
+			t.Errorf("%s: result counts %d rows, rejected %d", c.rule.Kind, count, len(c.want))
+		}
+	}
+	mean := segmented(newRule(rules.SummarySpec{Stat: rules.StatMean}, within(0, 5), "v"), []string{"site"}, "")
+	if _, ok := compile(t, mean, env).NewAccumulator().(RowJudge); ok {
+		t.Error("a segmented mean judges rows")
+	}
+}
