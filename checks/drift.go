@@ -122,7 +122,7 @@ func (c *driftCheck) loadBaseline() error {
 
 // loadReference reads the reference dataset's column in full.
 func (c *driftCheck) loadReference(numeric bool) error {
-	opts := source.Options{Types: map[string]arrow.DataType{c.col.name: c.col.typ}}
+	opts := source.Options{Types: map[string]arrow.DataType{c.col.name: c.col.typ}, Allocator: c.env.Mem}
 	set, err := source.Open([]string{c.relative(c.spec.Reference)}, opts)
 	if err != nil {
 		return fmt.Errorf("reference: %w", err)
@@ -399,7 +399,7 @@ func (l *driftLister) Observe(b *source.Batch) error {
 			continue
 		}
 		if _, ok := c.base.cats[baseline.Text(arr, i)]; !ok {
-			l.listing.Add(1, b.FirstRow+int64(i), func() report.Row { return RowAt(c.env, b, i, cols) })
+			l.listing.Add(1, b.Row(i), func() report.Row { return RowAt(c.env, b, i, cols) })
 		}
 	}
 	return nil

@@ -1,0 +1,145 @@
+package checks
+
+import (
+	"context"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/assay-project/assay/checks/baseline"
+	"github.com/assay-project/assay/engine/source"
+	"github.com/assay-project/assay/rules"
+)
+
+// driftFiles writes a reference CSV and its baseline into a folder and
+// returns a policy path in it, so that rules find both relative to it.
+func driftFiles(t *testing.T, csv string) string {
+	t.Helper()
+	dir := t.TempDir()
+	ref := filepath.Join(dir, "ref.csv")
+	if err := os.WriteFile(ref, []byte(csv), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	set, err := source.Open([]string{ref}, source.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer set.Close()
+	f, err := baseline.Build(context.Background(), set, nil, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := f.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "ref.baseline.json"), b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return filepath.Join(dir, "policy.yaml")
+}
+
+func driftRule(m rules.DriftMeasure, against, column string) *rules.Rule {
+	s := rules.DriftSpec{Measure: m, Reference: "ref.csv"}
+	if against == "baseline" {
+		s = rules.DriftSpec{Measure: m, Baseline: "ref.baseline.json"}
+	}
+	r := newRule(s, atMost(0.25), column)
+	r.ID = "columns." + column + ".drift." + string(m)
+	return r
+}
+
+// Small samples worked by hand. Reference x = 1..5 (mean 3, sd
+// sqrt(2.5) = 1.58114), data x = 2..6 (mean 4, sd the same):
+//
+//	location = |4 - 3| / 1.58114 = 0.632456
+//	scale    = |ln(1.58114 / 1.58114)| = 0
+//	ks       = 0.2 (after each of 1..5 the reference CDF leads by 1/5)
+//	wasserstein = W1 / sd = 1 / 1.58114 = 0.632456 (every value moves 1)
+//
+// Reference s = a b a b a, data s = a c b c a: c is new in rows 2 and 4,
+// a share of 2/5 of the values.
+func TestDriftHandComputed(t *testing.T) {
+	pol := driftFiles(t, "x,s\n1,a\n2,b\n3,a\n4,b\n5,a\n")
+	mem := checkedMem(t)
+	b := newBatch(t, mem, 1, col{"x", tFloat, []any{2.0, 3.0, 4.0, 5.0, 6.0}}, col{"s", tString, []any{"a", "c", "b", "c", "a"}})
+	defer release(t, b)
+	env := envOf(b, 10)
+	env.Policy = &rules.Policy{File: pol}
+	env.Mem = mem
+	cases := []struct {
+		m       rules.DriftMeasure
+		against string
+		column  string
+		want    float64
+	}{
+		{rules.DriftLocation, "reference", "x", 1 / math.Sqrt(2.5)},
+		{rules.DriftLocation, "baseline", "x", 1 / math.Sqrt(2.5)},
+		{rules.DriftScale, "reference", "x", 0},
+		{rules.DriftKS, "reference", "x", 0.2},
+		{rules.DriftKS, "baseline", "x", 0.2}, // five values: the sketch is exact
+		{rules.DriftWasserstein, "reference", "x", 1 / math.Sqrt(2.5)},
+		{rules.DriftNullShare, "baseline", "x", 0},
+		{rules.DriftNewCategories, "baseline", "s", 0.4},
+		{rules.DriftNewCategories, "reference", "s", 0.4},
+	}
+	for _, c := range cases {
+		name := string(c.m) + " against " + c.against
+		r := driftRule(c.m, c.against, c.column)
+		chk := compile(t, r, env)
+		res := run(t, chk, b)
+		if got := float64(res.Measure.Value); math.Abs(got-c.want) > 1e-12 {
+			t.Errorf("%s: %v, want %v", name, got, c.want)
+		}
+		one, two := split(t, b, 2)
+		sameResult(t, name+" merged", runMerged(t, chk, one, two), res, 1e-12)
+		release(t, one, two)
+		if c.m == rules.DriftNewCategories {
+			n, rows, _ := listed(res)
+			if n != 2 || len(rows) != 2 || rows[0] != 2 || rows[1] != 4 || res.Drift.NewCategories[0].Value != "c" {
+				t.Errorf("%s: listed %d rows %v, new %v", name, n, rows, res.Drift.NewCategories)
+			}
+		}
+	}
+}
+
+// A column multiplied by 1000 is reported as a likely change of units.
+func TestDriftUnits(t *testing.T) {
+	pol := driftFiles(t, "x\n1\n2\n3\n4\n5\n")
+	mem := checkedMem(t)
+	b := newBatch(t, mem, 1, col{"x", tFloat, []any{1000.0, 2000.0, 3000.0, 4000.0, 5000.0}})
+	defer release(t, b)
+	env := envOf(b, 10)
+	env.Policy = &rules.Policy{File: pol}
+	res := run(t, compile(t, driftRule(rules.DriftScale, "baseline", "x"), env), b)
+	if res.Drift.Units != "x1000" || !strings.Contains(res.Message, "likely change of units") || res.Verdict.String() != "fail" {
+		t.Errorf("units %q, verdict %s, message %q", res.Drift.Units, res.Verdict, res.Message)
+	}
+}
+
+func TestDriftCompileErrors(t *testing.T) {
+	pol := driftFiles(t, "x,s\n1,a\n2,b\n")
+	mem := checkedMem(t)
+	b := newBatch(t, mem, 1, col{"x", tFloat, []any{1.0}}, col{"s", tString, []any{"a"}}, col{"y", tFloat, []any{1.0}})
+	defer release(t, b)
+	env := envOf(b, 10)
+	env.Policy = &rules.Policy{File: pol}
+	cases := []struct {
+		r    *rules.Rule
+		want string
+	}{
+		{driftRule(rules.DriftPSI, "baseline", "s"), `psi applies to numeric columns; column "s" holds categories`},
+		{driftRule(rules.DriftChiSquare, "reference", "x"), `chi-square applies to string and boolean columns; column "x" holds numbers`},
+		{driftRule(rules.DriftKS, "baseline", "y"), `baseline ref.baseline.json has no column "y"`},
+		{newRule(rules.DriftSpec{Measure: rules.DriftKS, Reference: "absent.csv"}, atMost(0.1), "x"), "reference:"},
+		{newRule(rules.DriftSpec{Measure: rules.DriftKS, Baseline: "absent.json"}, atMost(0.1), "x"), "read baseline"},
+	}
+	for _, c := range cases {
+		_, err := Compile(c.r, env)
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: got %v, want %q", c.r.ID, err, c.want)
+		}
+	}
+}
