@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"compress/gzip"
 	"context"
 	"encoding/json"
 	"encoding/xml"
@@ -109,11 +110,47 @@ func TestTrouble(t *testing.T) {
 	if err := os.WriteFile(truncated, data[:len(data)/2], 0o644); err != nil {
 		t.Fatal(err)
 	}
+	// More damaged inputs: a NUL byte in a cell, a gzip file cut short, Arrow
+	// IPC file and stream cut short.
+	nul := filepath.Join(dir, "nul.csv")
+	gzCut := filepath.Join(dir, "cut.csv.gz")
+	arrowCut := filepath.Join(dir, "cut.arrow")
+	streamCut := filepath.Join(dir, "cut.arrows")
+	good, err := os.ReadFile("testdata/soil/good.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var gz bytes.Buffer
+	zw := gzip.NewWriter(&gz)
+	if _, err := zw.Write(bytes.Repeat(good, 50)); err != nil {
+		t.Fatal(err)
+	}
+	if err := zw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	writeIPC(t, arrowCut, streamCut)
+	for _, cut := range []struct {
+		path string
+		data []byte
+	}{
+		{nul, bytes.Replace(good, []byte("31.5"), []byte("31\x005"), 1)},
+		{gzCut, gz.Bytes()[:gz.Len()/2]},
+		{arrowCut, readHalf(t, arrowCut)},
+		{streamCut, readHalf(t, streamCut)},
+	} {
+		if err := os.WriteFile(cut.path, cut.data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
 	tests := []struct {
 		name string
 		args []string
 		want []string // substrings of stderr
 	}{
+		{"nul byte", []string{"check", pol, nul}, []string{"nul.csv:2", "NUL"}},
+		{"truncated gzip", []string{"check", pol, gzCut}, []string{"cut.csv.gz:", "cut short"}},
+		{"truncated arrow file", []string{"check", pol, arrowCut}, []string{"cut.arrow:", "cut short"}},
+		{"truncated arrow stream", []string{"check", pol, streamCut}, []string{"cut.arrows"}},
 		{"ragged row", []string{"check", pol, "testdata/soil/ragged.csv"}, []string{"ragged.csv:3"}},
 		{"unterminated quote", []string{"check", pol, "testdata/soil/unterminated.csv"}, []string{"unterminated.csv:3"}},
 		{"invalid utf-8", []string{"check", pol, "testdata/soil/badutf8.csv"}, []string{"badutf8.csv:3"}},
@@ -297,6 +334,16 @@ func goodRecord(mem memory.Allocator) arrow.RecordBatch {
 	b.Field(2).(*array.Float64Builder).AppendValues([]float64{31.5, 35, 38.2, 28.4}, nil)
 	b.Field(3).(*array.Float64Builder).AppendValues([]float64{14.2, 12.9, 11, 15.1}, nil)
 	return b.NewRecordBatch()
+}
+
+// readHalf returns the first half of the file at path.
+func readHalf(t *testing.T, path string) []byte {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return data[:len(data)/2]
 }
 
 func writeParquet(t *testing.T, path string) {
