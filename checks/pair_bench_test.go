@@ -80,6 +80,8 @@ func BenchmarkPairs(b *testing.B) {
 	bySite.Segment = &rules.Segment{By: []string{"site"}, Limit: rules.DefaultGroupLimit}
 	bySiteRobust := linear(rules.PairResiduals, rules.FitTheilSen)
 	bySiteRobust.Segment = &rules.Segment{By: []string{"site"}, Limit: rules.DefaultGroupLimit}
+	bySiteHuber := linear(rules.PairResiduals, rules.FitHuber)
+	bySiteHuber.Segment = &rules.Segment{By: []string{"site"}, Limit: rules.DefaultGroupLimit}
 	where := linear(rules.PairResiduals, rules.FitOLS)
 	where.Segment = &rules.Segment{Limit: rules.DefaultGroupLimit, Where: &rules.RowSpec{Name: "where", Expr: "x > 50"},
 		WhereColumns: []string{"x"}}
@@ -98,6 +100,7 @@ func BenchmarkPairs(b *testing.B) {
 		{"linear ols residuals where x > 50", where},
 		{"linear ols residuals by 100 sites", bySite},
 		{"linear theil-sen residuals by 100 sites", bySiteRobust},
+		{"linear huber residuals by 100 sites", bySiteHuber},
 	} {
 		c, err := Compile(tc.rule, env)
 		if err != nil {
