@@ -109,6 +109,9 @@ func chartsWanted(rep *report.Report) map[string]int {
 		if pr := res.Pair; pr != nil {
 			has = append(has, pr.Points != nil)
 		}
+		if d := res.Drift; d != nil {
+			has = append(has, len(d.Moves) > 0)
+		}
 		n := 0
 		for _, h := range has {
 			if h {

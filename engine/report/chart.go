@@ -7,6 +7,7 @@ import (
 	"image/color"
 	"math"
 	"strings"
+	"unicode/utf8"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -379,9 +380,14 @@ func qqPoints(q *QQ) (pts plotter.XYs, lo, hi float64) {
 	return pts, lo, hi
 }
 
-// maxCellLabels is how many category labels the cells chart writes under
-// its bars; with more categories it labels every k-th.
-const maxCellLabels = 20
+// maxCellLabels is how many category labels a shares chart writes under
+// its bars; with more categories it labels every k-th. Beyond
+// maxLabelChars characters in all (two more per label for the gaps) the
+// labels no longer fit side by side, and are turned 45 degrees.
+const (
+	maxCellLabels = 20
+	maxLabelChars = 40
+)
 
 // cellsChart draws the observed and expected shares of the categories (or
 // leading digits) of a distribution rule.
@@ -396,52 +402,68 @@ func cellsChart(f *Fit, col string) (*chart, error) {
 	if total == 0 {
 		return nil, nil
 	}
-	p := newPlot(col, "share of values")
-	bins := make([]plotter.HistogramBin, len(f.Cells))
-	var expected plotter.XYs
-	var ticks []plot.Tick
-	step := (len(f.Cells) + maxCellLabels - 1) / maxCellLabels
+	labels := make([]string, len(f.Cells))
+	observed := make([]float64, len(f.Cells))
+	expected := make([]float64, len(f.Cells))
 	var worst Cell
 	var worstGap float64
 	for i, c := range f.Cells {
-		x := float64(i)
-		obs := float64(c.Count) / total
-		bins[i] = plotter.HistogramBin{Min: x - 0.35, Max: x + 0.35, Weight: obs}
-		if e := float64(c.Expected); finite(e) {
-			expected = append(expected, plotter.XY{X: x - 0.5, Y: e}, plotter.XY{X: x + 0.5, Y: e})
-			if gap := obs - e; gap > worstGap {
-				worst, worstGap = c, gap
-			}
+		labels[i], observed[i], expected[i] = c.Label, float64(c.Count)/total, float64(c.Expected)
+		if gap := observed[i] - expected[i]; gap > worstGap {
+			worst, worstGap = c, gap
 		}
-		label := ""
-		if i%step == 0 {
-			label = c.Label
-		}
-		ticks = append(ticks, plot.Tick{Value: x, Label: label})
 	}
-	b := &bars{bins: bins, fill: colBarFill, line: styleBars}
-	p.Add(b)
-	p.Legend.Add("observed", b)
-	if len(expected) > 0 {
-		l := &plotter.Line{XYs: expected, LineStyle: styleThreshold}
-		p.Add(l)
-		p.Legend.Add("expected", l)
-	}
-	p.X.Tick.Marker = plot.ConstantTicks(ticks)
-	if len(f.Cells) > 8 {
-		p.X.Tick.Label.Rotation = math.Pi / 4
-		p.X.Tick.Label.XAlign = draw.XRight
-		p.X.Tick.Label.YAlign = draw.YCenter
-	}
-	p.X.Min, p.X.Max = -0.6, float64(len(f.Cells))-0.4
-	headroom(p, 2)
 	desc := fmt.Sprintf("Observed share of each of %d categories of %s as bars, the share the %s expects as a dashed step.",
 		len(f.Cells), col, f.Family)
 	if worstGap > 0 {
 		desc += fmt.Sprintf(" The largest excess is %q: %s observed, %s expected.", worst.Label,
 			formatPercent(float64(worst.Count)/total), formatPercent(float64(worst.Expected)))
 	}
+	p := sharesPlot(col, labels, observed, expected, "observed", "expected")
 	return render(p, fmt.Sprintf("Observed and expected shares of %s (%s)", col, f.Family), desc, chartW, chartH)
+}
+
+// sharesPlot plots a share per labelled cell as bars (legend entry
+// barName) against a share to compare it with as a dashed step (entry
+// stepName; NaN leaves a cell's step out).
+func sharesPlot(xLabel string, labels []string, shares, compare []float64, barName, stepName string) *plot.Plot {
+	p := newPlot(xLabel, "share of values")
+	bins := make([]plotter.HistogramBin, len(labels))
+	var step plotter.XYs
+	var ticks []plot.Tick
+	every := (len(labels) + maxCellLabels - 1) / maxCellLabels
+	for i, label := range labels {
+		x := float64(i)
+		bins[i] = plotter.HistogramBin{Min: x - 0.35, Max: x + 0.35, Weight: shares[i]}
+		if e := compare[i]; finite(e) {
+			step = append(step, plotter.XY{X: x - 0.5, Y: e}, plotter.XY{X: x + 0.5, Y: e})
+		}
+		if i%every != 0 {
+			label = ""
+		}
+		ticks = append(ticks, plot.Tick{Value: x, Label: label})
+	}
+	b := &bars{bins: bins, fill: colBarFill, line: styleBars}
+	p.Add(b)
+	p.Legend.Add(barName, b)
+	if len(step) > 0 {
+		l := &plotter.Line{XYs: step, LineStyle: styleThreshold}
+		p.Add(l)
+		p.Legend.Add(stepName, l)
+	}
+	p.X.Tick.Marker = plot.ConstantTicks(ticks)
+	chars := 0
+	for _, t := range ticks {
+		chars += utf8.RuneCountInString(t.Label) + 2
+	}
+	if chars > maxLabelChars {
+		p.X.Tick.Label.Rotation = math.Pi / 4
+		p.X.Tick.Label.XAlign = draw.XRight
+		p.X.Tick.Label.YAlign = draw.YCenter
+	}
+	p.X.Min, p.X.Max = -0.6, float64(len(labels))-0.4
+	headroom(p, 2)
+	return p
 }
 
 // rangeMark marks the x range [lo, hi] with a thick bar in the strip

@@ -258,6 +258,13 @@ func newRuleView(res Result, units map[string]string) (*ruleView, error) {
 		if c, err = jointChart(res); c != nil {
 			charts = []*chart{c}
 		}
+	case res.Drift != nil:
+		v.statistics(res)
+		v.drift(res, units)
+		var c *chart
+		if c, err = driftChart(res, units); c != nil {
+			charts = []*chart{c}
+		}
 	case res.Pair != nil:
 		v.statistics(res)
 		v.pair(res)

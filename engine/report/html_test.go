@@ -301,6 +301,52 @@ func relationReport() *Report {
 	}
 }
 
+// driftReport is a report with the results of drift rules: a numeric
+// column whose values grew a thousandfold, with the ranges that changed
+// most, and a categorical one with a new value. The numbers are made up
+// for the rendering.
+func driftReport() *Report {
+	open := Number(math.NaN())
+	return &Report{
+		Schema:  SchemaVersion,
+		Verdict: Fail,
+		Policy:  Policy{Name: "batches", File: "batches.yaml", Hash: "sha256:0e0f"},
+		Rows:    1000,
+		Sources: []Source{{Path: "batch.csv", Format: "csv", Rows: 1000}},
+		Counts:  Counts{Fail: 2},
+		Tool:    Tool{Name: "assay", Version: "0.1.0"},
+		Started: time.Date(2025, 6, 9, 11, 0, 0, 0, time.UTC),
+		Units:   map[string]string{"weight": "kg"},
+		Results: []Result{
+			{
+				ID: "columns.weight.drift.ks", Check: "drift", Columns: []string{"weight"}, Status: OK, Verdict: Fail,
+				Measure:   Measure{Name: "KS distance", Value: 1, Unit: "value"},
+				Tolerance: Tolerance{Direction: "at most", Warn: Number(0.1), Fail: Number(0.2)},
+				Message:   "KS distance 1 between the data and the baseline",
+				Drift: &Drift{
+					Against: "baseline", Source: "reference.baseline.json", BaseRows: 1000, Rows: 1000, Units: "x1000",
+					Moves: []DriftMove{
+						{Lower: 66.91, Upper: open, BaseShare: 0.049, Share: 1},
+						{Lower: 45.55, Upper: 46.87, BaseShare: 0.053, Share: 0},
+						{Lower: open, Upper: 33.79, BaseShare: 0.052, Share: 0},
+					},
+				},
+			},
+			{
+				ID: "columns.site.drift.new-categories", Check: "drift", Columns: []string{"site"}, Status: OK, Verdict: Fail,
+				Measure:   Measure{Name: "new category share", Value: 0.02, Unit: "share"},
+				Tolerance: Tolerance{Direction: "at most", Fail: Number(0)},
+				Drift: &Drift{
+					Against: "reference", Source: "reference.csv", BaseRows: 1000, Rows: 1000, Exact: true,
+					NewCategories: []DriftCategory{{Value: "<Z>", Count: 20}},
+					Vanished:      []DriftCategory{{Value: "Q", Count: 3}},
+				},
+			},
+		},
+		Duration: 0.3,
+	}
+}
+
 func renderHTML(t *testing.T, r *Report) []byte {
 	t.Helper()
 	var b bytes.Buffer
@@ -319,6 +365,7 @@ func TestHTMLGolden(t *testing.T) {
 		{"distribution.html", distributionReport()},
 		{"outliers.html", outlierReport()},
 		{"relations.html", relationReport()},
+		{"drift.html", driftReport()},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			got := renderHTML(t, c.r)
@@ -335,7 +382,7 @@ func TestHTMLGolden(t *testing.T) {
 // report lists, and a chart for each kind of plot data a result carries,
 // each with a title and a description.
 func TestHTMLStructure(t *testing.T) {
-	for _, r := range []*Report{sampleReport(), distributionReport(), outlierReport(), relationReport()} {
+	for _, r := range []*Report{sampleReport(), distributionReport(), outlierReport(), relationReport(), driftReport()} {
 		t.Run(r.Policy.Name, func(t *testing.T) {
 			doc := parseHTML(t, renderHTML(t, r))
 			sections := doc.findAll(func(n *node) bool { return n.tag == "section" && n.hasClass("rule") })
@@ -402,6 +449,9 @@ func chartData(res Result) int {
 	}
 	if pr := res.Pair; pr != nil {
 		has = append(has, pr.Points != nil)
+	}
+	if d := res.Drift; d != nil {
+		has = append(has, len(d.Moves) > 0)
 	}
 	n := 0
 	for _, h := range has {
