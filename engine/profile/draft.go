@@ -57,7 +57,7 @@ func (d *drafter) tableKey() []string {
 		return nil
 	}
 	for _, k := range d.st.combos {
-		if k.state == keyTracking {
+		if k.state == keyTracking && listable(k.a.name) && listable(k.b.name) {
 			return []string{k.a.name, k.b.name}
 		}
 	}
@@ -379,7 +379,7 @@ func (d *drafter) relations() []pairDraft {
 	for i := range num {
 		for j := i + 1; j < len(num); j++ {
 			m := d.st.pairs[i][j]
-			if m.N < MinKeyRows {
+			if m.N < MinKeyRows || !listable(num[i].name) || !listable(num[j].name) {
 				continue
 			}
 			r := m.Correlation()

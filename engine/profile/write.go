@@ -38,13 +38,17 @@ func (d *drafter) write() []byte {
 	fmt.Fprintf(&w, "  # seen: %d rows, %d columns\n", st.rows, len(st.cols))
 	var names []string
 	for _, c := range st.cols {
-		names = append(names, c.name)
+		if listable(c.name) {
+			names = append(names, c.name)
+		}
 	}
 	if len(d.key) > 0 {
 		comment(&w, "  ", "no column is a key alone; this pair of columns has no repeated combination")
 		fmt.Fprintf(&w, "  key: %s\n", flow(d.key, str))
 	}
-	fmt.Fprintf(&w, "  required: %s\n", flow(names, str))
+	if len(names) > 0 {
+		fmt.Fprintf(&w, "  required: %s\n", flow(names, str))
+	}
 	w.WriteString("  closed: true\n")
 	return []byte(w.String())
 }
@@ -104,6 +108,10 @@ func writePair(w *strings.Builder, p pairDraft) {
 		fmt.Fprintf(w, "    residuals: {tolerance: {warn: %s, fail: %s}}\n", share(p.resWarn), share(p.resFail))
 	}
 }
+
+// listable reports whether a column name can stand in a policy's lists of
+// columns (required, key, pairs), which refuse blank names.
+func listable(name string) bool { return strings.TrimSpace(name) != "" }
 
 // comment writes text as comment lines of at most about 100 characters.
 func comment(w *strings.Builder, indent, text string) {
