@@ -284,12 +284,14 @@ func (a *DriftAccumulator) Finish() report.Result {
 		case rules.DriftKS:
 			v = baseline.KS2(b.dist, cur)
 			pv := baseline.KS2PValue(v, b.count, a.Count)
-			p = &pv
-			stat = &report.Statistic{Name: "D", Value: report.Number(v), N: a.Count}
 			how := "asymptotic"
 			if !d.Exact {
 				how = "asymptotic, one side a sketch or sample"
+			} else if exact, ok := baseline.KS2ExactPValue(v, b.count, a.Count); ok {
+				pv, how = exact, "exact"
 			}
+			p = &pv
+			stat = &report.Statistic{Name: "D", Value: report.Number(v), N: a.Count}
 			words = append(words, fmt.Sprintf("p-value %.3g (%s)", pv, how))
 		case rules.DriftPSI:
 			v = baseline.PSI(b.shares, shares)

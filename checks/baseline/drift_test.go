@@ -70,10 +70,11 @@ func TestKS2AgainstSciPy(t *testing.T) {
 			if !close(p, c.PAsymp, 1e-9) {
 				t.Errorf("p = %.15g, SciPy kstwobign.sf %.15g", p, c.PAsymp)
 			}
-			// the asymptotic p-value is near ks_2samp's own (exact or
-			// kstwo-based) one: within 0.06 absolute on these sizes
-			if math.Abs(p-c.PSciPy) > 0.06 {
-				t.Errorf("p = %.6g, far from ks_2samp's %.6g", p, c.PSciPy)
+			// ks_2samp's own p-value is exact at these sizes (method
+			// "auto" below 10,000 values a side)
+			exact, ok := KS2ExactPValue(d, int64(len(c.Base)), int64(len(c.Cur)))
+			if !ok || !close(exact, c.PSciPy, 1e-6) {
+				t.Errorf("exact p = %.15g (%v), SciPy ks_2samp %.15g", exact, ok, c.PSciPy)
 			}
 		})
 	}
@@ -198,5 +199,29 @@ func TestMovesAndShares(t *testing.T) {
 	if len(m) != 2 || !math.IsInf(m[0].Lower, -1) || m[0].Upper != 1 || m[0].Cur != 0.25 ||
 		m[1].Lower != 2 || !math.IsInf(m[1].Upper, 1) || m[1].Base != 0.25 || m[1].Cur != 0.5 {
 		t.Errorf("moves = %+v", m)
+	}
+}
+
+// Exact two-sample p-values worked by hand. n = m = 2: the 6 orders of
+// the merged ranks are xxyy, xyxy, xyyx, yxxy, yxyx, yyxx; D is 1 for
+// xxyy and yyxx and 1/2 for the other four, so P(D >= 1) = 2/6 and
+// P(D >= 1/2) = 1. n = 1, m = 2: orders xyy, yxy, yyx with D = 1, 1/2, 1,
+// so P(D >= 1) = 2/3.
+func TestKS2ExactPValueByHand(t *testing.T) {
+	tests := []struct {
+		d    float64
+		n, m int64
+		want float64
+	}{
+		{1, 2, 2, 1.0 / 3}, {0.5, 2, 2, 1}, {1, 1, 2, 2.0 / 3}, {0.5, 1, 2, 1}, {0, 3, 4, 1},
+	}
+	for _, tt := range tests {
+		got, ok := KS2ExactPValue(tt.d, tt.n, tt.m)
+		if !ok || !close(got, tt.want, 1e-12) {
+			t.Errorf("KS2ExactPValue(%g, %d, %d) = %g, %v; want %g", tt.d, tt.n, tt.m, got, ok, tt.want)
+		}
+	}
+	if _, ok := KS2ExactPValue(0.1, 10_000, 10_000); ok {
+		t.Error("1e8 cells computed exactly, want refused")
 	}
 }

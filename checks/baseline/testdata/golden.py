@@ -7,8 +7,9 @@ versions are also written into the output).
 
 Two-sample KS: D from scipy.stats.ks_2samp; the asymptotic p-value from
 scipy.stats.kstwobign.sf(sqrt(n m / (n + m)) D), the limiting Kolmogorov
-distribution that KS2PValue computes (ks_2samp's own p-value, exact for
-small samples, is recorded as p_scipy for reference). Chi-square
+distribution that KS2PValue computes; ks_2samp's own p-value (method
+"auto", exact below 10,000 values a side) as p_scipy, which
+KS2ExactPValue computes. Chi-square
 homogeneity: scipy.stats.chi2_contingency(correction=False).
 Wasserstein-1: scipy.stats.wasserstein_distance. Jensen-Shannon:
 scipy.spatial.distance.jensenshannon(base=2) squared (SciPy returns the
