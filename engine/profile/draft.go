@@ -451,7 +451,7 @@ func when(sec float64, typ string) string {
 
 func describeFiles(st *stats) string {
 	if len(st.files) == 1 {
-		if st.files[0].Path == "-" {
+		if st.files[0].Path == st.stdin {
 			return "standard input"
 		}
 		return filepath.Base(st.files[0].Path)

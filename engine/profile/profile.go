@@ -16,8 +16,11 @@ package profile
 import (
 	"context"
 	"encoding/binary"
+	"fmt"
 	"hash/fnv"
+	"io"
 	"math"
+	"os"
 	"slices"
 	"strconv"
 
@@ -123,6 +126,9 @@ type stats struct {
 	// pairs[i][j] for i < j over the numeric columns (indexes into num)
 	num   []*column
 	pairs [][]relate.Moments
+	// stdin is the file standard input was copied to, "" when it was
+	// not read.
+	stdin string
 	// combos are the two-column key candidates.
 	combos []*combo
 }
@@ -137,6 +143,13 @@ type combo struct {
 
 // scan reads the data once and fills the statistics.
 func scan(ctx context.Context, paths []string, opts Options) (*stats, error) {
+	paths, spooled, err := spoolStdin(paths, opts.Source)
+	if spooled != "" {
+		defer os.Remove(spooled)
+	}
+	if err != nil {
+		return nil, err
+	}
 	types := map[string]arrow.DataType{}
 	for attempt := 0; ; attempt++ {
 		so := opts.Source
@@ -148,6 +161,9 @@ func scan(ctx context.Context, paths []string, opts Options) (*stats, error) {
 			return nil, err
 		}
 		st, err := scanSet(ctx, set, opts)
+		if st != nil {
+			st.stdin = spooled
+		}
 		if cerr := set.Close(); err == nil && cerr != nil {
 			err = cerr
 		}
@@ -173,6 +189,37 @@ func scan(ctx context.Context, paths []string, opts Options) (*stats, error) {
 			return st, nil
 		}
 	}
+}
+
+// spoolStdin copies standard input ("-" among paths) into a temporary
+// file, so that the data can be read again should a type need widening,
+// and returns the paths with "-" replaced by that file's.
+func spoolStdin(paths []string, so source.Options) ([]string, string, error) {
+	if !slices.Contains(paths, "-") {
+		return paths, "", nil
+	}
+	in := so.Stdin
+	if in == nil {
+		in = os.Stdin
+	}
+	f, err := os.CreateTemp(so.TempDir, "assay-profile-stdin-*")
+	if err != nil {
+		return nil, "", fmt.Errorf("copying standard input: %w", err)
+	}
+	_, err = io.Copy(f, in)
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return nil, f.Name(), fmt.Errorf("copying standard input: %w", err)
+	}
+	out := slices.Clone(paths)
+	for i, p := range out {
+		if p == "-" {
+			out[i] = f.Name()
+		}
+	}
+	return out, f.Name(), nil
 }
 
 func scanSet(ctx context.Context, set *source.Set, opts Options) (*stats, error) {

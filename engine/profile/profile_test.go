@@ -546,3 +546,28 @@ func TestParquet(t *testing.T) {
 		t.Errorf("the draft does not pass on its data: %v\n%s", bad, text)
 	}
 }
+
+// TestStdin drafts from standard input whose type needs widening after
+// the rows the reader infers from, so that it is read twice.
+func TestStdin(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("v\n")
+	for i := range 60 {
+		fmt.Fprintf(&b, "%d\n", i)
+	}
+	b.WriteString("0.5\n")
+	tmp := t.TempDir()
+	text, err := Draft(context.Background(), []string{"-"}, Options{Source: source.Options{SampleRows: 10,
+		Stdin: strings.NewReader(b.String()), TempDir: tmp}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if left, _ := os.ReadDir(tmp); len(left) > 0 {
+		t.Errorf("temporary files left behind: %v", left)
+	}
+	for _, want := range []string{"from 61 rows of standard input", "type: number"} {
+		if !bytes.Contains(text, []byte(want)) {
+			t.Errorf("draft lacks %q\n%s", want, text)
+		}
+	}
+}
