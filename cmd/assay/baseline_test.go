@@ -80,3 +80,29 @@ func TestBaselineCommandTrouble(t *testing.T) {
 		t.Errorf("input overwritten: %q", got)
 	}
 }
+
+// With --policy the data is read as the policy says (its data, its
+// types) and only its columns are summarised.
+func TestBaselineCommandPolicy(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "batch.csv"), []byte("id,code,note\n1,7,a\n2,8,b\n3,9,c\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	pol := filepath.Join(dir, "policy.yaml")
+	src := "policy: p\ndata: [batch.csv]\ncolumns:\n  code:\n    type: string\n  id:\n    type: integer\n"
+	if err := os.WriteFile(pol, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "b.json")
+	if o := assay(t, "", "baseline", "--policy", pol, "-o", out); o.code != exitPass {
+		t.Fatalf("exit %d: %s", o.code, o.stderr)
+	}
+	f, err := baseline.Read(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(f.Columns) != 2 || f.Columns[0].Name != "code" || f.Columns[0].Type != "string" ||
+		f.Columns[1].Name != "id" || f.Columns[1].Type != "number" {
+		t.Errorf("columns = %+v, want code as string then id as number", f.Columns)
+	}
+}
