@@ -187,7 +187,7 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 		a.Min, a.Max = min(a.Min, x), max(a.Max, x)
 		finite = append(finite, x)
 		if keepRows {
-			a.Rows = append(a.Rows, b.FirstRow+int64(i))
+			a.Rows = append(a.Rows, b.Row(i))
 		}
 	})
 	a.vals = finite

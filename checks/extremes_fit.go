@@ -476,7 +476,7 @@ func (l *extremesLister) Observe(b *source.Batch) error {
 		if l.bins != nil && !math.IsInf(x, 0) {
 			l.bins[binOf(x, l.lo, l.hi, len(l.bins))]++
 		}
-		row := b.FirstRow + int64(i)
+		row := b.Row(i)
 		hit, score := f.match(x, row)
 		if !hit {
 			return

@@ -188,7 +188,7 @@ func (a *JointAccumulator) Observe(b *source.Batch) error {
 		}
 		a.N++
 		if a.Sample != nil {
-			a.Sample.Offer(b.FirstRow+int64(i), a.rows.row)
+			a.Sample.Offer(b.Row(i), a.rows.row)
 			continue
 		}
 		for k, x := range a.rows.row {
@@ -409,7 +409,7 @@ func (l *jointJudge) Observe(b *source.Batch) error {
 		if !(d2 > c.cutoff) {
 			continue
 		}
-		l.listing.Add(d2, b.FirstRow+int64(i), func() report.Row {
+		l.listing.Add(d2, b.Row(i), func() report.Row {
 			row := RowAt(c.env, b, i, idx)
 			row.Contributions = contributions(c, s.Contributions(l.rows.row))
 			return row

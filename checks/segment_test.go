@@ -278,3 +278,32 @@ func TestSegmentReject(t *testing.T) {
 		t.Error("a segmented mean judges rows")
 	}
 }
+
+// TestSegmentRowNumbers: rules that keep row numbers themselves (extremes,
+// joint) run on a filtered segment and list its rows by their own numbers
+// and lines.
+func TestSegmentRowNumbers(t *testing.T) {
+	mem := checkedMem(t)
+	var xs, ys, keep []any
+	for i := range 60 {
+		x := float64(i%13) + 0.1*float64(i%7)
+		xs, ys = append(xs, x), append(ys, 2*x+0.05*float64(i%5))
+		keep = append(keep, i%3 != 0) // every third row is left out
+	}
+	xs[40], ys[40] = 6.0, 40.0 // row 41: ordinary x, y far off the line and the range
+	b := newBatch(t, mem, 1, col{"x", tFloat, xs}, col{"y", tFloat, ys}, col{"keep", tBool, keep})
+	release(t, b)
+	env := envOf(b, 5)
+	env.Mem = mem
+	for _, r := range []*rules.Rule{
+		newRule(extSpec(rules.ExtremesTukey), atMost(0), "y"),
+		newRule(extSpec(rules.ExtremesZScore), atMost(0), "y"),
+		newRule(jointSpec(false), atMost(0), "x", "y"),
+		newRule(jointSpec(true), atMost(0), "x", "y"),
+	} {
+		res := run(t, compile(t, segmented(r, nil, "keep", "keep"), env), b)
+		if count, rows, _ := listed(res); count < 1 || rows[0] != 41 || res.Offending.Rows[0].Line != 42 {
+			t.Errorf("%s: listed %d %v, want row 41 (line 42) first", r.Kind, count, rows)
+		}
+	}
+}
