@@ -10,6 +10,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -88,6 +89,11 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 }
 
 func trouble(stderr io.Writer, err error) int {
+	if errors.Is(err, context.Canceled) {
+		// Ctrl-C: say so in the user's words, not the context's.
+		fmt.Fprintln(stderr, "assay: interrupted")
+		return exitTrouble
+	}
 	fmt.Fprintf(stderr, "assay: %v\n", err)
 	return exitTrouble
 }

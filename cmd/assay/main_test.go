@@ -498,3 +498,19 @@ func troubleWritesNothing(t *testing.T, dir, want string, args ...string) {
 		t.Errorf("%s was written", e.Name())
 	}
 }
+
+// TestInterrupted checks that a run stopped by Ctrl-C (its context
+// cancelled) says so, exits 2 and writes no output file.
+func TestInterrupted(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	out := filepath.Join(t.TempDir(), "report.json")
+	var stdout, stderr bytes.Buffer
+	code := run(ctx, []string{"check", "--output", out, pol, "testdata/soil/good.csv"}, nil, &stdout, &stderr)
+	if code != 2 || stderr.String() != "assay: interrupted\n" {
+		t.Errorf("got exit code %d, stderr %q; want 2, %q", code, stderr.String(), "assay: interrupted\n")
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("%s written by an interrupted run (stat: %v)", out, err)
+	}
+}
