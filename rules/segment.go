@@ -78,6 +78,7 @@ func (r *resolver) resolveSegments() {
 		}
 		d.seg.seg = r.segment(d.path, d.seg, own)
 	}
+	used := map[*segDraft]bool{}
 	for _, p := range r.rules {
 		var d *segDraft
 		switch {
@@ -94,6 +95,17 @@ func (r *resolver) resolveSegments() {
 		}
 		if d != nil && d.seg != nil {
 			p.rule.Segment = d.seg
+			used[d] = true
+		}
+	}
+	for _, c := range r.cols {
+		if d := c.seg; d != nil && d.seg != nil && !used[d] {
+			at := d.by
+			if at == nil {
+				at = d.where
+			}
+			r.fail(at, CodeNotApplicable, c.path, "by and where apply to the column's rules, and it has none but type").Hint =
+				"add the rules to judge per group, or drop by and where"
 		}
 	}
 }
