@@ -262,6 +262,13 @@ func (d *drafter) numeric(cd *colDraft) {
 		cd.seen = append(cd.seen, fmt.Sprintf("%d values not finite: no range drafted", c.nonFinite))
 		return
 	}
+	if c.typ == "integer" && math.Max(math.Abs(c.min), math.Abs(c.max)) >= 1<<53 {
+		// A bound is read as a float, which cannot hold every integer
+		// beyond 2^53: the seen extremes could fall outside their own
+		// rounding.
+		cd.seen = append(cd.seen, "values beyond 2^53: no range drafted")
+		return
+	}
 	lo, hi := bounds(c.min, c.max, c.typ == "integer")
 	cd.lo, cd.hi = num(lo), num(hi)
 	cd.seen = append(cd.seen, fmt.Sprintf("min %s, max %s", num(sig(c.min)), num(sig(c.max))))
