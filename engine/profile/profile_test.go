@@ -205,6 +205,7 @@ func TestRoundTripGenerated(t *testing.T) {
 			if rep.Verdict != report.Fail {
 				t.Fatalf("verdict %s, want fail; not passing: %v", rep.Verdict, notPassing(rep))
 			}
+			t.Logf("not passing: %v", notPassing(rep))
 			for _, id := range c.failed {
 				if v, _ := verdictOf(rep, id); v != report.Fail {
 					t.Errorf("%s: %s, want fail", id, v)
