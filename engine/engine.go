@@ -167,7 +167,9 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 		accs[i] = c.NewAccumulator()
 	}
 	broken := make([]error, len(accs))
-	if err := scan(ctx, set, pl.columns, accs, broken, workers, track.pass(1, false)); err != nil {
+	files := set.Files()
+	refuse := func(b *source.Batch) error { return pl.refuseUntyped(b, files) }
+	if err := scan(ctx, set, pl.columns, accs, broken, workers, refuse, track.pass(1, false)); err != nil {
 		return nil, err
 	}
 	second := false
@@ -181,7 +183,7 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 		}
 	}
 	if second {
-		if err := scan(ctx, set, pl.columns, pass2, broken, workers, track.pass(2, false)); err != nil {
+		if err := scan(ctx, set, pl.columns, pass2, broken, workers, nil, track.pass(2, false)); err != nil {
 			return nil, fmt.Errorf("second pass: %w", err)
 		}
 	}
@@ -208,10 +210,11 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 }
 
 // scan feeds every batch to the accumulators, nil ones excepted, and then
-// to after, when set. The checks are split among workers goroutines that
+// to after, when set. refuse, when set, sees each batch first and may stop
+// the scan with an error. The checks are split among workers goroutines that
 // observe each batch side by side; a check whose Observe fails is marked
 // broken and sees no more batches.
-func scan(ctx context.Context, set *source.Set, columns []string, accs []checks.Accumulator, broken []error, workers int, after func(*source.Batch)) error {
+func scan(ctx context.Context, set *source.Set, columns []string, accs []checks.Accumulator, broken []error, workers int, refuse func(*source.Batch) error, after func(*source.Batch)) error {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
@@ -219,6 +222,11 @@ func scan(ctx context.Context, set *source.Set, columns []string, accs []checks.
 	return set.Scan(ctx, columns, func(b *source.Batch) error {
 		if err := ctx.Err(); err != nil {
 			return err
+		}
+		if refuse != nil {
+			if err := refuse(b); err != nil {
+				return err
+			}
 		}
 		if workers <= 1 {
 			observe(b, accs, broken, 0, 1)

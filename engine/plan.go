@@ -22,6 +22,11 @@ type plan struct {
 	columns []string        // the data columns read, in data order
 	skipped []report.Result // rules on absent required columns
 	rank    map[string]int  // rule id -> position in the policy
+	// inferred marks, by index into columns, the columns read as the type
+	// inferred from the start of a CSV file, the policy declaring none. No
+	// type rule counts a later cell of such a column that does not fit, so
+	// the run stops on it (see refuseUntyped) rather than lose it.
+	inferred map[int]bool
 }
 
 // newPlan binds p to the data's schema. It reports every rule that names a
@@ -113,6 +118,15 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 			}
 			pl.columns = append(pl.columns, name)
 			fields = append(fields, schema.Field(i))
+		}
+	}
+	declared := sourceOptions(p, opts.Source).Types
+	for k, name := range pl.columns {
+		if declared[name] == nil {
+			if pl.inferred == nil {
+				pl.inferred = map[int]bool{}
+			}
+			pl.inferred[k] = true
 		}
 	}
 	env := &checks.Env{
@@ -227,6 +241,49 @@ func maxRowsListed(n int) int {
 		return 0
 	}
 	return n
+}
+
+// refuseUntyped returns an error naming the first cell of b, in a column
+// without a declared type, that does not fit the type the reader inferred
+// for it; nil when there is none. Such a cell is null in the batch and no
+// type rule counts it: without this, a rule on the column would judge the
+// other rows and pass in silence.
+func (pl *plan) refuseUntyped(b *source.Batch, files []source.File) error {
+	for k := range pl.columns {
+		cells := b.Invalid[k]
+		if !pl.inferred[k] || len(cells) == 0 {
+			continue
+		}
+		cell := cells[0]
+		e := &source.Error{Path: files[b.Source].Path, Column: pl.columns[k]}
+		if b.Lines != nil {
+			e.Line = b.Lines[cell.Row]
+		}
+		t := b.Record.Schema().Field(k).Type
+		e.Msg = fmt.Sprintf("column %q: %q does not fit the type %s inferred from the first rows of the file; "+
+			"declare the column's type in the policy (its type rule then counts such cells)", pl.columns[k], cell.Text, typeWord(t))
+		return e
+	}
+	return nil
+}
+
+// typeWord names an Arrow type a reader infers in the policy's words.
+func typeWord(t arrow.DataType) string {
+	switch t.ID() {
+	case arrow.INT64:
+		return "integer"
+	case arrow.FLOAT64:
+		return "number"
+	case arrow.BOOL:
+		return "boolean"
+	case arrow.TIMESTAMP:
+		return "timestamp"
+	case arrow.DATE32:
+		return "date"
+	case arrow.STRING:
+		return "string"
+	}
+	return t.String()
 }
 
 // sourceOptions merges the policy's reader settings over the caller's and
