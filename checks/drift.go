@@ -47,6 +47,7 @@ type driftBase struct {
 	numbers     bool
 	count       int64
 	mean, std   float64
+	lo, hi      float64           // smallest and largest value
 	dist        baseline.Weighted // the sketch's values and weights, or the reference's values
 	bins        []baseline.Bin
 	shares      []float64 // of bins
@@ -107,6 +108,7 @@ func (c *driftCheck) loadBaseline() error {
 	if n := bc.Numbers; n != nil {
 		b.numbers, b.count, b.mean, b.std = true, n.Count, n.Mean, n.Std
 		b.dist, b.bins = n.Sketch.Weighted(), n.Bins
+		b.lo, b.hi = n.Min, n.Max
 	}
 	if cc := bc.Categories; cc != nil {
 		b.cats, b.other = map[string]int64{}, cc.Other
@@ -143,6 +145,7 @@ func (c *driftCheck) loadReference(numeric bool) error {
 		b.dist = baseline.Unit(side.Sample.Values())
 		if len(b.dist.X) > 0 {
 			b.bins = baseline.QuantileBins(b.dist, baseline.Bins)
+			b.lo, b.hi = b.dist.X[0], b.dist.X[len(b.dist.X)-1]
 		}
 	}
 	c.base = b
@@ -314,6 +317,7 @@ func (a *DriftAccumulator) Finish() report.Result {
 				d.Moves = append(d.Moves, report.DriftMove{Lower: report.Number(m.Lower), Upper: report.Number(m.Upper),
 					BaseShare: report.Number(m.Base), Share: report.Number(m.Cur)})
 			}
+			d.Histogram = driftHistogram(b, cur.X)
 			m := d.Moves[0]
 			words = append(words, fmt.Sprintf("most moved: (%s, %s] held %s of the baseline, now %s",
 				fmtNum(float64(m.Lower)), fmtNum(float64(m.Upper)), fmtPct(float64(m.BaseShare)), fmtPct(float64(m.Share))))

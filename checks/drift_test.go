@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"github.com/assay-project/assay/checks/baseline"
+	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
 )
@@ -142,4 +143,85 @@ func TestDriftCompileErrors(t *testing.T) {
 			t.Errorf("%s: got %v, want %q", c.r.ID, err, c.want)
 		}
 	}
+}
+
+// The histograms of both sides at the base's edges, worked by hand.
+// Reference x = 1..5: its 5% quantiles are 1 (the first four), 2, 3, 4
+// and 5, so the edges are 1 (its smallest value), 1, 2, 3, 4, 5, the
+// first bin [1, 1] holding the value 1, each bin a fifth of the values.
+// The data 2..6 hold nothing in [1, 1], a fifth in each of (1, 2] to
+// (4, 5], and 6 lies above the last edge.
+func TestDriftHistogramHandComputed(t *testing.T) {
+	pol := driftFiles(t, "x\n1\n2\n3\n4\n5\n")
+	mem := checkedMem(t)
+	b := newBatch(t, mem, 1, col{"x", tFloat, []any{2.0, 3.0, 4.0, 5.0, 6.0}})
+	defer release(t, b)
+	env := envOf(b, 10)
+	env.Policy = &rules.Policy{File: pol}
+	env.Mem = mem
+	want := report.DriftHistogram{
+		Edges:      []report.Number{1, 1, 2, 3, 4, 5},
+		BaseShares: []report.Number{0.2, 0.2, 0.2, 0.2, 0.2},
+		Shares:     []report.Number{0, 0.2, 0.2, 0.2, 0.2},
+		Below:      0,
+		Above:      0.2,
+	}
+	for _, against := range []string{"reference", "baseline"} {
+		res := run(t, compile(t, driftRule(rules.DriftPSI, against, "x"), env), b)
+		if res.Drift == nil || res.Drift.Histogram == nil {
+			t.Fatalf("against the %s: no histogram in %+v", against, res.Drift)
+		}
+		if got := *res.Drift.Histogram; !sameHistogram(got, want) {
+			t.Errorf("against the %s: histogram %+v, want %+v", against, got, want)
+		}
+	}
+}
+
+// A baseline with more bins than a report keeps has adjacent bins merged:
+// 120 bins of 1/120 with upper edges 1..120 become 40 of 3/120, edges 0,
+// 3, ..., 120; data -1, 0.5, 60 and 130 put a quarter under the range, in
+// [0, 3], in (57, 60] and over the range.
+func TestDriftHistogramMerged(t *testing.T) {
+	b := &driftBase{lo: 0, hi: 120}
+	for i := 1; i <= 120; i++ {
+		b.bins = append(b.bins, baseline.Bin{Upper: float64(i), Share: 1.0 / 120})
+	}
+	h := driftHistogram(b, []float64{-1, 0.5, 60, 130})
+	if len(h.Edges) != 41 || len(h.BaseShares) != 40 || len(h.Shares) != 40 {
+		t.Fatalf("%d edges, %d base shares, %d shares; want 41, 40, 40", len(h.Edges), len(h.BaseShares), len(h.Shares))
+	}
+	for i, e := range h.Edges {
+		if float64(e) != float64(3*i) {
+			t.Errorf("edge %d is %v, want %d", i, e, 3*i)
+		}
+	}
+	for i := range h.Shares {
+		want := 0.0
+		if i == 0 || i == 19 {
+			want = 0.25
+		}
+		if math.Abs(float64(h.BaseShares[i])-0.025) > 1e-12 || float64(h.Shares[i]) != want {
+			t.Errorf("bin %d: base share %v, share %v; want 0.025, %v", i, h.BaseShares[i], h.Shares[i], want)
+		}
+	}
+	if h.Below != 0.25 || h.Above != 0.25 {
+		t.Errorf("below %v, above %v; want 0.25 each", h.Below, h.Above)
+	}
+}
+
+// sameHistogram compares two drift histograms to 1e-12.
+func sameHistogram(a, b report.DriftHistogram) bool {
+	same := func(x, y []report.Number) bool {
+		if len(x) != len(y) {
+			return false
+		}
+		for i := range x {
+			if math.Abs(float64(x[i])-float64(y[i])) > 1e-12 {
+				return false
+			}
+		}
+		return true
+	}
+	return same(a.Edges, b.Edges) && same(a.BaseShares, b.BaseShares) && same(a.Shares, b.Shares) &&
+		same([]report.Number{a.Below, a.Above}, []report.Number{b.Below, b.Above})
 }

@@ -176,8 +176,9 @@ type Result struct {
 	// Joint is set by joint rules: the estimate, the cutoff, the rows not
 	// judged, and what a distance plot needs (see Joint).
 	Joint *Joint `json:"joint,omitempty"`
-	// Drift is set by drift rules: what the column was compared with and
-	// where it moved (see Drift).
+	// Drift is set by drift rules: what the column was compared with,
+	// where it moved and, for numbers, the histograms of both sides at the
+	// same edges (see Drift and DriftHistogram).
 	Drift *Drift `json:"drift,omitempty"`
 }
 
