@@ -55,7 +55,13 @@ func (d *drafter) write() []byte {
 
 func (d *drafter) writeColumn(w *strings.Builder, cd colDraft) {
 	c := cd.c
-	fmt.Fprintf(w, "  %s:\n", str(c.name))
+	if k := str(c.name); len(k) > 1000 {
+		// YAML allows implicit keys up to 1024 characters; a longer
+		// one is written as an explicit key.
+		fmt.Fprintf(w, "  ? %s\n  :\n", k)
+	} else {
+		fmt.Fprintf(w, "  %s:\n", k)
+	}
 	comment(w, "    ", "seen: "+strings.Join(cd.seen, "; "))
 	if c.typ != "" {
 		fmt.Fprintf(w, "    type: %s\n", c.typ)
