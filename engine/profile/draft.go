@@ -383,6 +383,9 @@ func distance(s gof.Sorted, d dist.Dist) (float64, error) {
 func (d *drafter) relations() []pairDraft {
 	var out []pairDraft
 	num := d.st.num
+	// A pair rule's id joins its columns with "+": columns whose names
+	// hold a "+" could give two pairs one id, and the later is left out.
+	ids := map[string]bool{}
 	for i := range num {
 		for j := i + 1; j < len(num); j++ {
 			m := d.st.pairs[i][j]
@@ -420,7 +423,10 @@ func (d *drafter) relations() []pairDraft {
 			default:
 				continue
 			}
-			out = append(out, p)
+			if id := p.x + "+" + p.y; !ids[id] {
+				ids[id] = true
+				out = append(out, p)
+			}
 		}
 	}
 	return out

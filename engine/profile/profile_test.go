@@ -440,6 +440,8 @@ func TestWhatIsDrafted(t *testing.T) {
 			nil, []string{"table.key", "columns.a.unique"}},
 		{"monotonic pair", func(i int) string { return fmt.Sprintf("%d,%.6g", i, math.Exp(float64(i)/4)) }, "x,y",
 			[]string{"pairs.x+y.correlation"}, []string{"pairs.x+y.residuals"}},
+		{"pair ids that would clash", func(i int) string { return fmt.Sprintf("%d,%d,%d,%d", i, 2*i, 3*i, 4*i) }, "a+b,c,a,b+c",
+			[]string{"pairs.a+b+c.correlation", "pairs.a+b+a.correlation"}, nil},
 		{"few distinct numbers", func(i int) string { return []string{"0.5", "1.5", "2.5"}[i%3] }, "v",
 			[]string{"columns.v.minimum"}, []string{"columns.v.distribution", "columns.v.enum"}},
 		{"too few for a family", func(i int) string { return fmt.Sprintf("%d.5", i*i%37) }, "x",
