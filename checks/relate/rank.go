@@ -285,7 +285,10 @@ func KendallTest(x, y []float64) (Correlation, error) {
 	z := sNum / math.Sqrt(v)
 	c.Statistic = Statistic{Name: "z", Value: z}
 	c.PMethod = Normal
-	c.PValue = math.Min(1, 2*distuv.UnitNormal.Survival(math.Abs(z)))
+	// Two-sided normal tail 2·Q(|z|) = erfc(|z|/√2), from erfc so that it
+	// keeps its relative precision far out (gonum's Normal.Survival is
+	// 1 - erf and underflows to 0 near 8 sd).
+	c.PValue = math.Min(1, math.Erfc(math.Abs(z)/math.Sqrt2))
 	return c, nil
 }
 
