@@ -110,7 +110,7 @@ func chartsWanted(rep *report.Report) map[string]int {
 			has = append(has, pr.Points != nil)
 		}
 		if d := res.Drift; d != nil {
-			has = append(has, len(d.Moves) > 0)
+			has = append(has, d.Histogram != nil)
 		}
 		n := 0
 		for _, h := range has {
@@ -121,6 +121,28 @@ func chartsWanted(rep *report.Report) map[string]int {
 		want["rule-"+res.ID] = n
 	}
 	return want
+}
+
+// failingReports checks policy, whose data fail, writing the HTML report
+// to page, and returns the JSON report of the same run.
+func failingReports(t *testing.T, policy, page string) *report.Report {
+	t.Helper()
+	jsonPath := filepath.Join(t.TempDir(), "report.json")
+	var out, errb bytes.Buffer
+	code := run(context.Background(), []string{"check", policy, "--report", "html=" + page, "--report", "json=" + jsonPath},
+		nil, &out, &errb)
+	if code != exitFail {
+		t.Fatalf("check %s exited %d, want %d (its data fail)\n%s", policy, code, exitFail, errb.String())
+	}
+	data, err := os.ReadFile(jsonPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var rep report.Report
+	if err := json.Unmarshal(data, &rep); err != nil {
+		t.Fatal(err)
+	}
+	return &rep
 }
 
 // TestBrowser writes the demo's HTML report, opens it in headless
@@ -140,21 +162,7 @@ func TestBrowser(t *testing.T) {
 		t.Fatal(err)
 	}
 	page := filepath.Join(dir, "report.html")
-	jsonPath := filepath.Join(t.TempDir(), "report.json")
-	var out, errb bytes.Buffer
-	code := run(context.Background(), []string{"check", demoPolicy, "--report", "html=" + page, "--report", "json=" + jsonPath},
-		nil, &out, &errb)
-	if code != exitFail {
-		t.Fatalf("demo check exited %d, want %d (the demo data fails)\n%s", code, exitFail, errb.String())
-	}
-	data, err := os.ReadFile(jsonPath)
-	if err != nil {
-		t.Fatal(err)
-	}
-	var rep report.Report
-	if err := json.Unmarshal(data, &rep); err != nil {
-		t.Fatal(err)
-	}
+	rep := failingReports(t, demoPolicy, page)
 
 	dom, console := browse(t, bin, page, "--dump-dom")
 	t.Run("console", func(t *testing.T) {
@@ -176,7 +184,7 @@ func TestBrowser(t *testing.T) {
 	})
 
 	t.Run("charts", func(t *testing.T) {
-		got, want := chartsInDOM(string(dom)), chartsWanted(&rep)
+		got, want := chartsInDOM(string(dom)), chartsWanted(rep)
 		total := 0
 		for id, n := range want {
 			total += n
@@ -216,4 +224,35 @@ func TestBrowser(t *testing.T) {
 			t.Logf("screenshot %s (%d bytes)", png, len(b))
 		}
 	})
+}
+
+// TestBrowserDrift renders the report of the drift conformance case,
+// which the demo lacks, and checks that every numeric drift rule's
+// section holds the chart of both histograms in the DOM, as many charts as
+// the JSON report's plot data call for.
+func TestBrowserDrift(t *testing.T) {
+	bin := chromium(t)
+	page := filepath.Join(t.TempDir(), "drift.html")
+	rep := failingReports(t, "../../testdata/conformance/drift-planted/policy.yaml", page)
+	dom, console := browse(t, bin, page, "--dump-dom")
+	if len(console) > 0 {
+		t.Errorf("the report logged console messages:\n%s", strings.Join(console, "\n"))
+	}
+	got, want := chartsInDOM(string(dom)), chartsWanted(rep)
+	overlays := 0
+	for _, res := range rep.Results {
+		id := "rule-" + res.ID
+		if got[id] != want[id] {
+			t.Errorf("section %s has %d charts in the DOM, want %d", id, got[id], want[id])
+		}
+		if res.Drift != nil && res.Drift.Histogram != nil {
+			overlays++
+		}
+	}
+	if n := strings.Count(string(dom), ">Histograms of "); n != 2*overlays {
+		t.Errorf("%d titles and captions of overlaid histograms in the DOM, want %d (two for each of %d numeric drift rules)", n, 2*overlays, overlays)
+	}
+	if overlays == 0 {
+		t.Error("the drift case has no numeric drift rule with histograms")
+	}
 }

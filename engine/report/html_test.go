@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"encoding/xml"
+	"fmt"
 	"io"
 	"math"
 	"slices"
@@ -302,9 +303,11 @@ func relationReport() *Report {
 }
 
 // driftReport is a report with the results of drift rules: a numeric
-// column whose values grew a thousandfold, with the ranges that changed
-// most, and a categorical one with a new value. The numbers are made up
-// for the rendering.
+// column whose values grew a thousandfold (all of them now above the
+// baseline's range), one that shifted against a reference whose smallest
+// value holds a fifth of it (a first bin of no width), each with both
+// histograms, and a categorical one with a new value. The numbers are
+// made up for the rendering.
 func driftReport() *Report {
 	open := Number(math.NaN())
 	return &Report{
@@ -313,10 +316,10 @@ func driftReport() *Report {
 		Policy:  Policy{Name: "batches", File: "batches.yaml", Hash: "sha256:0e0f"},
 		Rows:    1000,
 		Sources: []Source{{Path: "batch.csv", Format: "csv", Rows: 1000}},
-		Counts:  Counts{Fail: 2},
+		Counts:  Counts{Fail: 2, Warn: 1},
 		Tool:    Tool{Name: "assay", Version: "0.1.0"},
 		Started: time.Date(2025, 6, 9, 11, 0, 0, 0, time.UTC),
-		Units:   map[string]string{"weight": "kg"},
+		Units:   map[string]string{"weight": "kg", "yield": "t/ha"},
 		Results: []Result{
 			{
 				ID: "columns.weight.drift.ks", Check: "drift", Columns: []string{"weight"}, Status: OK, Verdict: Fail,
@@ -329,6 +332,31 @@ func driftReport() *Report {
 						{Lower: 66.91, Upper: open, BaseShare: 0.049, Share: 1},
 						{Lower: 45.55, Upper: 46.87, BaseShare: 0.053, Share: 0},
 						{Lower: open, Upper: 33.79, BaseShare: 0.052, Share: 0},
+					},
+					Histogram: &DriftHistogram{
+						Edges:      []Number{22.4, 33.79, 38.2, 42, 45.55, 46.87, 51.3, 57, 66.91, 81.2},
+						BaseShares: []Number{0.052, 0.11, 0.13, 0.15, 0.053, 0.16, 0.17, 0.126, 0.049},
+						Shares:     []Number{0, 0, 0, 0, 0, 0, 0, 0, 0},
+						Above:      1,
+					},
+				},
+			},
+			{
+				ID: "columns.yield.drift.psi", Check: "drift", Columns: []string{"yield"}, Status: OK, Verdict: Warn,
+				Measure:   Measure{Name: "PSI", Value: 0.16, Unit: "value"},
+				Tolerance: Tolerance{Direction: "at most", Warn: Number(0.1), Fail: Number(0.25)},
+				Drift: &Drift{
+					Against: "reference", Source: "reference.csv", BaseRows: 1000, Rows: 1000, Exact: true,
+					Moves: []DriftMove{
+						{Lower: 4, Upper: 6, BaseShare: 0.2, Share: 0.35},
+						{Lower: open, Upper: 0, BaseShare: 0.2, Share: 0.1},
+					},
+					Histogram: &DriftHistogram{
+						Edges:      []Number{0, 0, 2, 4, 6, 9},
+						BaseShares: []Number{0.2, 0.2, 0.2, 0.2, 0.2},
+						Shares:     []Number{0.08, 0.15, 0.2, 0.35, 0.1},
+						Below:      0.02,
+						Above:      0.1,
 					},
 				},
 			},
@@ -430,9 +458,32 @@ func TestHTMLStructure(t *testing.T) {
 						t.Errorf("%s: chart without a title or a description", res.ID)
 					}
 				}
+				if d := res.Drift; d != nil && d.Histogram != nil {
+					overlay(t, res, svgs)
+				}
 			}
 		})
 	}
+}
+
+// overlay checks that a numeric drift result's section has the chart of
+// both histograms: titled so, and its description giving the number of
+// bins.
+func overlay(t *testing.T, res Result, svgs []*node) {
+	t.Helper()
+	h := res.Drift.Histogram
+	for _, svg := range svgs {
+		title := svg.find(func(n *node) bool { return n.tag == "title" })
+		if title == nil || !strings.HasPrefix(title.text(), "Histograms of "+res.Columns[0]+" now and in the "+res.Drift.Against) {
+			continue
+		}
+		desc := svg.find(func(n *node) bool { return n.tag == "desc" })
+		if want := fmt.Sprintf("in each of %d bins", len(h.Shares)); desc == nil || !strings.Contains(desc.text(), want) {
+			t.Errorf("%s: overlay description lacks %q", res.ID, want)
+		}
+		return
+	}
+	t.Errorf("%s: no chart of the histograms overlaid", res.ID)
 }
 
 // chartData counts the kinds of plot data a result carries.
@@ -451,7 +502,7 @@ func chartData(res Result) int {
 		has = append(has, pr.Points != nil)
 	}
 	if d := res.Drift; d != nil {
-		has = append(has, len(d.Moves) > 0)
+		has = append(has, d.Histogram != nil)
 	}
 	n := 0
 	for _, h := range has {
