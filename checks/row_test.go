@@ -118,7 +118,7 @@ rows:
 		{"rows.block", 2, 8, rules.Pos{File: "t.yaml", Line: 11, Col: 14},
 			"t.yaml:8:5: rule rows.block: expression, at t.yaml:11:14: invalid operation: * (mismatched types string and int)"},
 		{"rows.not-a-condition", 0, 0, rules.Pos{File: "t.yaml", Line: 13, Col: 12},
-			"t.yaml:12:5: rule rows.not-a-condition: expression: expected bool, but got float64"},
+			"t.yaml:12:5: rule rows.not-a-condition: expression: the expression must be true or false, but gives a number"},
 	}
 	for _, tc := range tests {
 		var r *rules.Rule

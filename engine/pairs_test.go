@@ -177,7 +177,7 @@ pairs:
 	}
 	for i, want := range []string{
 		path + ":4:5: rule columns.a.nulls: where: expression, at " + path + ":5:18: invalid operation: > (mismatched types string and int)",
-		path + ":7:5: rule pairs.a+b.ordered: where: expression, at " + path + ":9:14: invalid operation: < (mismatched types int64 and string)",
+		path + ":7:5: rule pairs.a+b.ordered: where: expression, at " + path + ":9:14: invalid operation: < (mismatched types integer and string)",
 	} {
 		if mis.Problems[i] != want {
 			t.Errorf("problem %d:\ngot  %s\nwant %s", i, mis.Problems[i], want)

@@ -147,14 +147,7 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 		pl.checks = append(pl.checks, c)
 	}
 	if len(problems) > 0 {
-		slices.SortStableFunc(problems, func(a, b problem) int {
-			return cmp.Or(cmp.Compare(a.pos.Line, b.pos.Line), cmp.Compare(a.pos.Col, b.pos.Col))
-		})
-		msgs := make([]string, len(problems))
-		for i, pr := range problems {
-			msgs[i] = pr.msg
-		}
-		return nil, &MismatchError{Policy: p.File, Problems: slices.Compact(msgs)}
+		return nil, &MismatchError{Policy: p.File, Problems: sortedMessages(problems)}
 	}
 	return pl, nil
 }
@@ -165,15 +158,34 @@ type problem struct {
 	msg string
 }
 
-// MismatchError lists every way a policy does not fit the data it was given.
+// sortedMessages returns the problems' messages in policy order, without
+// repeats.
+func sortedMessages(problems []problem) []string {
+	slices.SortStableFunc(problems, func(a, b problem) int {
+		return cmp.Or(cmp.Compare(a.pos.Line, b.pos.Line), cmp.Compare(a.pos.Col, b.pos.Col))
+	})
+	msgs := make([]string, len(problems))
+	for i, pr := range problems {
+		msgs[i] = pr.msg
+	}
+	return slices.Compact(msgs)
+}
+
+// MismatchError lists every way a policy does not fit the data it was given
+// or, from Validate, the types it declares.
 type MismatchError struct {
 	Policy   string
 	Problems []string
+	NoData   bool // found by Validate, before any data
 }
 
 func (e *MismatchError) Error() string {
 	var b strings.Builder
-	fmt.Fprintf(&b, "policy %s does not fit the data (%d problem", e.Policy, len(e.Problems))
+	what := "does not fit the data"
+	if e.NoData {
+		what = "does not fit its declared types"
+	}
+	fmt.Fprintf(&b, "policy %s %s (%d problem", e.Policy, what, len(e.Problems))
 	if len(e.Problems) != 1 {
 		b.WriteString("s")
 	}

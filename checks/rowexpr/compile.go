@@ -296,9 +296,9 @@ func zeroOf(k kind) any {
 func compileError(err error, env map[string]any, unreadable map[string]arrow.DataType) error {
 	var fe *file.Error
 	if !errors.As(err, &fe) {
-		return &Error{Msg: err.Error()}
+		return &Error{Msg: userWords(err.Error())}
 	}
-	e := &Error{Msg: fe.Message}
+	e := &Error{Msg: userWords(fe.Message)}
 	if fe.Line > 0 {
 		e.Line, e.Col, e.Offset = fe.Line, fe.Column+1, fe.From
 	}
@@ -311,6 +311,19 @@ func compileError(err error, env map[string]any, unreadable map[string]arrow.Dat
 	}
 	return e
 }
+
+// goTypeWords maps the Go type names in expr-lang's messages to the type
+// names a policy uses, so that a message speaks the user's language.
+var goTypeWords = strings.NewReplacer(
+	"expected bool, but got float64", "the expression must be true or false, but gives a number",
+	"expected bool, but got int64", "the expression must be true or false, but gives an integer",
+	"expected bool, but got int", "the expression must be true or false, but gives an integer",
+	"expected bool, but got string", "the expression must be true or false, but gives a string",
+	"float64", "number", "int64", "integer", "time.Time", "timestamp",
+)
+
+// userWords rewrites an expr-lang message in the policy's type names.
+func userWords(msg string) string { return goTypeWords.Replace(msg) }
 
 // candidates are the names an unknown name may be a misspelling of: the
 // columns and the functions.

@@ -21,7 +21,7 @@ func TestCompileErrors(t *testing.T) {
 		line, col, offset int
 		msg               string
 	}{
-		{`a + s > 1`, 1, 3, 2, "invalid operation: + (mismatched types int64 and string)"},
+		{`a + s > 1`, 1, 3, 2, "invalid operation: + (mismatched types integer and string)"},
 		{"a > 1 &&\n  weight_kgs > 2", 2, 3, 11, "unknown name weight_kgs (did you mean weight_kg?)"},
 		{"s == \"é\" &&\n\tzz > 1", 2, 2, 13, "unknown name zz"},
 		{`lowr(s) == "x"`, 1, 1, 0, "unknown name lowr (did you mean lower?)"},
@@ -30,8 +30,8 @@ func TestCompileErrors(t *testing.T) {
 		{`a % 0 == 1 || 1 % 0 == 1`, 1, 17, 16, "integer divide by zero"},
 		{`a > (b`, 1, 6, 5, "unexpected token EOF"}, // expr points at the last token
 		{`p && "yes"`, 1, 3, 2, "invalid operation: && (mismatched types bool and string)"},
-		{`a`, 0, 0, 0, "expected bool, but got int64"},
-		{`a + 1`, 0, 0, 0, "expected bool, but got int"},
+		{`a`, 0, 0, 0, "the expression must be true or false, but gives an integer"},
+		{`a + 1`, 0, 0, 0, "the expression must be true or false, but gives an integer"},
 		// expr accepts these, and its machine gives a value that is no verdict.
 		{`a > 0 || (a ?? 0)`, 1, 13, 12, "the right side of || is not known to be a boolean" + untypedHint},
 		{`(a ?? p) && true`, 1, 4, 3, "the left side of && is not known to be a boolean" + untypedHint},

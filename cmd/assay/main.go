@@ -114,6 +114,9 @@ func runExplain(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return trouble(stderr, err)
 	}
+	if err := engine.Validate(pol); err != nil {
+		return trouble(stderr, err)
+	}
 	if err := rules.Explain(stdout, pol); err != nil {
 		return trouble(stderr, err)
 	}
@@ -165,7 +168,7 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	fs := flag.NewFlagSet("check", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	fs.StringVar(&f.format, "format", "text", "report format on standard output (or --output): "+orList(formats))
-	fs.StringVar(&f.output, "output", "", "write the report to this file (atomically) instead of standard output")
+	fs.StringVar(&f.output, "output", "", "write the report to this file (atomically) instead of standard output; - is standard output")
 	fs.Var(&f.reports, "report", "also write a report in FORMAT to PATH (atomically), as FORMAT=PATH; repeatable")
 	fs.BoolVar(&f.strict, "strict", false, "count a warning as a failure in the exit code")
 	fs.IntVar(&f.maxRowsListed, "max-rows-listed", engine.DefaultMaxRowsListed, "offending rows listed per rule (counts stay exact)")
@@ -184,6 +187,9 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	if len(pos) == 0 {
 		fs.Usage()
 		return exitTrouble
+	}
+	if f.output == "-" {
+		f.output = ""
 	}
 	if err := f.validate(); err != nil {
 		return trouble(stderr, err)

@@ -80,6 +80,7 @@ func TestExitCodes(t *testing.T) {
 		{"standard input", string(good), []string{"check", pol, "-"}, 0, []string{"10 rows"}},
 		{"several files", "", []string{"check", pol, "testdata/soil/good.csv", "testdata/soil/bad.csv"}, 1, []string{"18 rows from 2 files", "testdata/soil/bad.csv"}},
 		{"glob", "", []string{"check", pol, "testdata/soil/batches/*.csv"}, 0, []string{"13 rows from 2 files"}},
+		{"output - is standard output", "", []string{"check", pol, "testdata/soil/good.csv", "--output", "-"}, 0, []string{"verdict: PASS"}},
 		{"no rows listed", "", []string{"check", "--max-rows-listed", "0", pol, "testdata/soil/bad.csv"}, 1, []string{"verdict: FAIL"}},
 	}
 	for _, tt := range tests {
@@ -164,6 +165,7 @@ func TestTrouble(t *testing.T) {
 		{"missing policy", []string{"check", "testdata/soil/nopolicy.yaml", "testdata/soil/good.csv"}, []string{"nopolicy.yaml"}},
 		{"no data", []string{"check", pol}, []string{"names no data"}},
 		{"unknown format", []string{"check", "--format", "xml", pol, "testdata/soil/good.csv"}, []string{"--format"}},
+		{"expression types without data", []string{"explain", "testdata/soil/mixed.yaml"}, []string{"mixed.yaml:7:18", "mismatched types number and string"}},
 		{"unknown flag", []string{"check", "--fast", pol}, []string{"-fast"}},
 		{"unknown command", []string{"chek"}, []string{`unknown command "chek"`}},
 	}
