@@ -8,6 +8,8 @@ import (
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/assay-project/assay/checks/internal/order"
 )
 
 // Properties that hold whatever the data: monotonicity, bounds,
@@ -540,8 +542,8 @@ func TestSelectKth(t *testing.T) {
 		s := slices.Clone(a)
 		slices.Sort(s)
 		k := rng.IntN(n)
-		if got := selectKth(a, k); got != s[k] {
-			t.Fatalf("selectKth(k = %d) = %v, want %v", k, got, s[k])
+		if got := order.Select(a, k); got != s[k] {
+			t.Fatalf("order.Select(k = %d) = %v, want %v", k, got, s[k])
 		}
 		for i := range k {
 			if a[i] > a[k] {

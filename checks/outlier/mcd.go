@@ -3,13 +3,14 @@ package outlier
 import (
 	"fmt"
 	"math"
-	"math/bits"
 	"math/rand/v2"
 	"slices"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat/distuv"
+
+	"github.com/assay-project/assay/checks/internal/order"
 )
 
 // MCDOptions tune FastMCD. The zero value gives the defaults of Rousseeuw &
@@ -493,13 +494,13 @@ func (r *mcdRun) kth(d2 []float64, k int) float64 {
 			}
 		}
 		if below <= k && k < below+len(band) {
-			r.guess = selectKth(band, k-below)
+			r.guess = order.Select(band, k-below)
 			return r.guess
 		}
 	}
 	tmp := r.tmp[:m]
 	copy(tmp, d2)
-	r.guess, r.guessM = selectKth(tmp, k), m
+	r.guess, r.guessM = order.Select(tmp, k), m
 	return r.guess
 }
 
@@ -712,54 +713,4 @@ func (b *keepBest) add(e estimate, keep int) {
 	if len(b.list) > keep {
 		b.list = b.list[:keep]
 	}
-}
-
-// selectKth reorders a so that a[k] holds its k-th smallest value (0-based)
-// and returns it: Hoare's selection with a median-of-three pivot, falling
-// back to sorting the remaining range when partitions keep coming out
-// lopsided, so the worst case is O(n log n) and the usual one O(n).
-func selectKth(a []float64, k int) float64 {
-	lo, hi := 0, len(a)-1
-	budget := 2*bits.Len(uint(len(a))) + 4
-	for hi > lo {
-		if budget == 0 {
-			slices.Sort(a[lo : hi+1])
-			return a[k]
-		}
-		budget--
-		mid := lo + (hi-lo)/2
-		if a[mid] < a[lo] {
-			a[mid], a[lo] = a[lo], a[mid]
-		}
-		if a[hi] < a[lo] {
-			a[hi], a[lo] = a[lo], a[hi]
-		}
-		if a[hi] < a[mid] {
-			a[hi], a[mid] = a[mid], a[hi]
-		}
-		pivot := a[mid]
-		i, j := lo, hi
-		for i <= j {
-			for a[i] < pivot {
-				i++
-			}
-			for a[j] > pivot {
-				j--
-			}
-			if i <= j {
-				a[i], a[j] = a[j], a[i]
-				i++
-				j--
-			}
-		}
-		switch {
-		case k <= j:
-			hi = j
-		case k >= i:
-			lo = i
-		default:
-			return a[k]
-		}
-	}
-	return a[k]
 }

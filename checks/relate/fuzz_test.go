@@ -5,6 +5,8 @@ import (
 	"math"
 	"slices"
 	"testing"
+
+	"github.com/assay-project/assay/checks/internal/order"
 )
 
 // fuzzValues turns bytes into up to 64 finite values with many ties: each
@@ -36,12 +38,12 @@ func FuzzSelect(f *testing.F) {
 		slices.Sort(sorted)
 		for k := range v {
 			a := slices.Clone(v)
-			if got := selectK(a, k); got != sorted[k] {
-				t.Fatalf("selectK(%v, %d) = %v, want %v", v, k, got, sorted[k])
+			if got := order.Select(a, k); got != sorted[k] {
+				t.Fatalf("order.Select(%v, %d) = %v, want %v", v, k, got, sorted[k])
 			}
 			slices.Sort(a)
 			if !slices.Equal(a, sorted) {
-				t.Fatalf("selectK changed the values of %v", v)
+				t.Fatalf("order.Select changed the values of %v", v)
 			}
 		}
 		h := len(sorted) / 2

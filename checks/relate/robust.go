@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+
+	"github.com/assay-project/assay/checks/internal/order"
 )
 
 // madConstant turns the median absolute residual into a scale that is
@@ -183,10 +185,10 @@ func theilSenSampled(x, y []float64, opt TheilSenOptions) (TheilSenFit, error) {
 	u := min(m, int(math.Ceil(float64(m)/2+half))+1)
 	h := m / 2
 	// medianInPlace left slopes[:h] <= slopes[h] <= slopes[h+1:].
-	lo := selectK(slopes[:h], min(l-1, h-1))
+	lo := order.Select(slopes[:h], min(l-1, h-1))
 	hi := b
 	if u-1 > h {
-		hi = selectK(slopes[h+1:], u-1-(h+1))
+		hi = order.Select(slopes[h+1:], u-1-(h+1))
 	}
 	return TheilSenFit{RobustLine: RobustLine{Slope: b}, Pairs: int64(m), Sampled: true, SlopeLow: lo, SlopeHigh: hi}, nil
 }
