@@ -11,6 +11,7 @@ import (
 
 	"github.com/apache/arrow-go/v18/arrow/array"
 
+	"github.com/assay-project/assay/checks/internal/fsum"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
@@ -162,31 +163,8 @@ func (s Int128) Big() *big.Int {
 	return x.Add(x, new(big.Int).SetUint64(s.Lo))
 }
 
-// Neumaier is a compensated sum (Neumaier 1974): Sum plus Carry, the
-// rounding error Sum has lost so far.
-type Neumaier struct {
-	Sum, Carry float64
-}
-
-// Add adds x to s.
-func (s *Neumaier) Add(x float64) {
-	t := s.Sum + x
-	if math.Abs(s.Sum) >= math.Abs(x) {
-		s.Carry += (s.Sum - t) + x
-	} else {
-		s.Carry += (x - t) + s.Sum
-	}
-	s.Sum = t
-}
-
-// AddNeumaier adds t to s.
-func (s *Neumaier) AddNeumaier(t Neumaier) {
-	s.Add(t.Sum)
-	s.Carry += t.Carry
-}
-
-// Value is the sum.
-func (s Neumaier) Value() float64 { return s.Sum + s.Carry }
+// Neumaier is the compensated sum a float column's mean is taken from.
+type Neumaier = fsum.Neumaier
 
 // SummaryAccumulator is one run of a summary rule.
 type SummaryAccumulator struct {
@@ -347,7 +325,7 @@ func (a *SummaryAccumulator) Merge(other Accumulator) error {
 	a.Count += o.Count
 	a.NaN += o.NaN
 	a.Sum.AddInt128(o.Sum)
-	a.FloatSum.AddNeumaier(o.FloatSum)
+	a.FloatSum.Merge(o.FloatSum)
 	a.Floats = append(a.Floats, o.Floats...)
 	a.Ints = append(a.Ints, o.Ints...)
 	for k := range o.Distinct {

@@ -1,6 +1,10 @@
 package gof
 
-import "math"
+import (
+	"math"
+
+	"github.com/assay-project/assay/checks/internal/fsum"
+)
 
 // andersonDarling returns A² of a sorted sample against ref, and the
 // Kolmogorov distance found on the way:
@@ -16,7 +20,7 @@ import "math"
 // (beyond the floating-point tail of F) makes A² infinite and its p-value 0.
 func andersonDarling(s Sorted, ref CDF) (float64, KSDistance) {
 	n := len(s.x)
-	var sum neumaier
+	var sum fsum.Neumaier
 	var k ksAcc
 	inf := false
 	for i, v := range s.x {
@@ -27,30 +31,13 @@ func andersonDarling(s Sorted, ref CDF) (float64, KSDistance) {
 			inf = true
 			continue
 		}
-		sum.add(term)
+		sum.Add(term)
 	}
 	if inf {
 		return math.Inf(1), k.result()
 	}
-	return -float64(n) - sum.value()/float64(n), k.result()
+	return -float64(n) - sum.Value()/float64(n), k.result()
 }
-
-// neumaier is a compensated sum (Neumaier 1974).
-type neumaier struct {
-	s, c float64
-}
-
-func (a *neumaier) add(v float64) {
-	t := a.s + v
-	if math.Abs(a.s) >= math.Abs(v) {
-		a.c += (a.s - t) + v
-	} else {
-		a.c += (v - t) + a.s
-	}
-	a.s = t
-}
-
-func (a *neumaier) value() float64 { return a.s + a.c }
 
 // adSpecifiedP returns P(A²_n >= z) for a fully specified continuous
 // reference by Marsaglia, G. & Marsaglia, J. (2004), "Evaluating the

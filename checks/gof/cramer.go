@@ -1,6 +1,10 @@
 package gof
 
-import "math"
+import (
+	"math"
+
+	"github.com/assay-project/assay/checks/internal/fsum"
+)
 
 // cramerVonMises returns W² of a sorted sample against ref, and the
 // Kolmogorov distance found on the way:
@@ -11,15 +15,15 @@ import "math"
 func cramerVonMises(s Sorted, ref CDF) (float64, KSDistance) {
 	n := len(s.x)
 	nf := float64(n)
-	var sum neumaier
+	var sum fsum.Neumaier
 	var k ksAcc
 	for i, v := range s.x {
 		u := ref.CDF(v)
 		k.add(i, n, u)
 		d := u - float64(2*i+1)/(2*nf)
-		sum.add(d * d)
+		sum.Add(d * d)
 	}
-	return 1/(12*nf) + sum.value(), k.result()
+	return 1/(12*nf) + sum.Value(), k.result()
 }
 
 // cvmSpecifiedP returns P(W²_n >= w) for a fully specified continuous

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+
+	"github.com/assay-project/assay/checks/internal/fsum"
 )
 
 // edfStatistic returns the statistic of test t of a sorted sample against
@@ -218,22 +220,22 @@ func lillieforsDW(n int, d float64) float64 {
 // (0 for n < 2), by two passes.
 func meanSD(x []float64) (float64, float64) {
 	n := float64(len(x))
-	var s neumaier
+	var s fsum.Neumaier
 	for _, v := range x {
-		s.add(v)
+		s.Add(v)
 	}
-	mu := s.value() / n
+	mu := s.Value() / n
 	if len(x) < 2 {
 		return mu, 0
 	}
-	var ss, c neumaier
+	var ss, c fsum.Neumaier
 	for _, v := range x {
-		ss.add((v - mu) * (v - mu))
-		c.add(v - mu)
+		ss.Add((v - mu) * (v - mu))
+		c.Add(v - mu)
 	}
 	// The corrected two-pass formula (Chan, Golub & LeVeque 1983).
-	cv := c.value()
-	return mu, math.Sqrt((ss.value() - cv*cv/n) / (n - 1))
+	cv := c.Value()
+	return mu, math.Sqrt((ss.Value() - cv*cv/n) / (n - 1))
 }
 
 // normalRef is N(mu, sigma²) with a bootstrap sampler. Both tails come
