@@ -323,14 +323,7 @@ func (v *ruleView) fit(res Result) {
 	f := res.Fit
 	family := f.Family
 	if len(res.Estimates) > 0 {
-		how := "estimated by maximum likelihood"
-		switch {
-		case f.Estimated == 0:
-			how = "given"
-		case f.Estimated < len(res.Estimates):
-			how = "partly given, the rest estimated by maximum likelihood"
-		}
-		family += ": " + estimates(res.Estimates) + " (" + how + ")"
+		family += ": " + estimates(res.Estimates) + " (" + paramSource(res) + ")"
 	}
 	v.Facts = append(v.Facts, fact{"family", family})
 	if s := res.Statistic; s != nil {

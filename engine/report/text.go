@@ -346,20 +346,25 @@ func groupDigits(n int64) string {
 	return b.String()
 }
 
+// paramSource says where a distribution result's parameters came from: the
+// policy, the data, or both.
+func paramSource(res Result) string {
+	switch {
+	case res.Fit.Estimated == 0:
+		return "given"
+	case res.Fit.Estimated < len(res.Estimates):
+		return "partly given, the rest estimated by maximum likelihood"
+	}
+	return "estimated by maximum likelihood"
+}
+
 // fit prints what a distribution rule found: the family and its
 // parameters, the test, the sample, the candidates and where the data
 // exceed the fit.
 func (p *printer) fit(res Result) {
 	f := res.Fit
 	if len(res.Estimates) > 0 {
-		how := "estimated by maximum likelihood"
-		switch {
-		case f.Estimated == 0:
-			how = "given"
-		case f.Estimated < len(res.Estimates):
-			how = "partly given, the rest estimated by maximum likelihood"
-		}
-		p.printf("  %s: %s (%s)\n", f.Family, estimates(res.Estimates), how)
+		p.printf("  %s: %s (%s)\n", f.Family, estimates(res.Estimates), paramSource(res))
 	}
 	if res.Statistic != nil && res.PValue != nil {
 		p.printf("  test: %s %s = %s, p-value %s, n = %s", f.Test, res.Statistic.Name, sig4(float64(res.Statistic.Value)),
