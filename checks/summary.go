@@ -12,6 +12,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/array"
 
 	"github.com/assay-project/assay/checks/internal/fsum"
+	"github.com/assay-project/assay/checks/internal/order"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
@@ -405,27 +406,8 @@ func (a *SummaryAccumulator) value() (float64, string) {
 	}
 	if a.check.col.class == classNumber {
 		slices.Sort(a.Floats)
-		return quantile7(a.Floats, a.check.q), ""
+		return order.Quantile7(a.Floats, a.check.q), ""
 	}
 	slices.Sort(a.Ints)
-	return quantile7(a.Ints, a.check.q) / per, ""
-}
-
-// quantile7 is the p-quantile of the sorted values x by definition 7 of
-// Hyndman & Fan (1996), R's default type: h = 1 + (n-1)p, j = floor(h),
-// g = h - j, Q = (1-g) x_j + g x_{j+1} (1-based), and x_j alone when g is 0
-// or x_j = x_{j+1}. It is computed as R's quantile.default computes it, so
-// the two agree to the last bit. NaN for no values.
-func quantile7[T int64 | float64](x []T, p float64) float64 {
-	if len(x) == 0 {
-		return math.NaN()
-	}
-	h := 1 + float64(len(x)-1)*p
-	j := math.Floor(h)
-	g := h - j
-	lo := x[int(j)-1]
-	if g == 0 || x[int(j)] == lo {
-		return float64(lo)
-	}
-	return (1-g)*float64(lo) + g*float64(x[int(j)])
+	return order.Quantile7(a.Ints, a.check.q) / per, ""
 }

@@ -16,6 +16,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/memory"
 
+	"github.com/assay-project/assay/checks/internal/order"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
@@ -429,7 +430,7 @@ func TestQuantile7R(t *testing.T) {
 		if len(f) != 3 || err1 != nil || err2 != nil || !ok {
 			t.Fatalf("quantile7.golden:%d: %q", i+1, line)
 		}
-		if got := quantile7(xs, p); got != want {
+		if got := order.Quantile7(xs, p); got != want {
 			t.Errorf("%s p=%v: %.17g, R says %.17g", f[0], p, got, want)
 		}
 		if f[0] == "lew" { // Lew's values are integers: the int64 path too
@@ -437,7 +438,7 @@ func TestQuantile7R(t *testing.T) {
 			for k, x := range xs {
 				ints[k] = int64(x)
 			}
-			if got := quantile7(ints, p); got != want {
+			if got := order.Quantile7(ints, p); got != want {
 				t.Errorf("lew as int64 p=%v: %.17g, R says %.17g", p, got, want)
 			}
 		}

@@ -9,6 +9,8 @@ import (
 
 	"gonum.org/v1/gonum/mathext"
 	"gonum.org/v1/gonum/optimize"
+
+	"github.com/assay-project/assay/checks/internal/order"
 )
 
 // Maximum-likelihood estimators. Each fills the free entries of theta from a
@@ -272,29 +274,18 @@ func distinct(x []float64) (vals, counts []float64) {
 	return vals, counts
 }
 
-// quantile7 returns the p-quantile of sorted values by linear
-// interpolation between order statistics (Hyndman & Fan 1996, type 7).
-func quantile7(sorted []float64, p float64) float64 {
-	h := p * float64(len(sorted)-1)
-	i := int(h)
-	if i+1 >= len(sorted) {
-		return sorted[len(sorted)-1]
-	}
-	return sorted[i] + (h-float64(i))*(sorted[i+1]-sorted[i])
-}
-
 // robustStart returns the median and a robust scale of x: the median
 // absolute deviation scaled by 1.4826 (consistent for the normal sd), or
 // the sd when ties make the MAD 0.
 func robustStart(x []float64) (median, scale float64) {
 	s := slices.Clone(x)
 	slices.Sort(s)
-	median = quantile7(s, 0.5)
+	median = order.Quantile7(s, 0.5)
 	for i, v := range s {
 		s[i] = math.Abs(v - median)
 	}
 	slices.Sort(s)
-	if mad := quantile7(s, 0.5); mad > 0 {
+	if mad := order.Quantile7(s, 0.5); mad > 0 {
 		return median, 1.4826 * mad
 	}
 	_, v := meanVar(x, identity)
@@ -451,8 +442,8 @@ func estimateCauchy(x, theta []float64, _ []bool) error {
 	if s[0] == s[len(s)-1] {
 		return errAllEqual(x)
 	}
-	med := quantile7(s, 0.5)
-	g0 := (quantile7(s, 0.75) - quantile7(s, 0.25)) / 2
+	med := order.Quantile7(s, 0.5)
+	g0 := (order.Quantile7(s, 0.75) - order.Quantile7(s, 0.25)) / 2
 	if !(g0 > 0) {
 		g0 = (s[len(s)-1] - s[0]) / 4
 	}

@@ -3,6 +3,8 @@ package outlier
 import (
 	"fmt"
 	"math"
+
+	"github.com/assay-project/assay/checks/internal/order"
 )
 
 // Quantile7 returns the p-quantile, 0 <= p <= 1, of values sorted in
@@ -15,20 +17,7 @@ import (
 // R's quantile.default does, so the two agree to the last bit. It returns NaN
 // for no values or p outside [0, 1]; for unsorted input the result is
 // meaningless.
-func Quantile7(sorted []float64, p float64) float64 {
-	n := len(sorted)
-	if n == 0 || !(p >= 0 && p <= 1) {
-		return math.NaN()
-	}
-	h := 1 + float64(n-1)*p
-	j := math.Floor(h)
-	lo := sorted[int(j)-1]
-	g := h - j
-	if g == 0 || sorted[int(j)] == lo {
-		return lo
-	}
-	return (1-g)*lo + g*sorted[int(j)]
-}
+func Quantile7(sorted []float64, p float64) float64 { return order.Quantile7(sorted, p) }
 
 // checkSorted reports the first value of x that is not finite or is smaller
 // than the one before it.

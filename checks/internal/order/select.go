@@ -1,8 +1,9 @@
 // Package order holds order-statistic routines shared by the statistical
-// packages of checks.
+// packages of checks: selection and the type-7 quantile.
 package order
 
 import (
+	"math"
 	"math/bits"
 	"slices"
 )
@@ -57,4 +58,29 @@ func Select(a []float64, k int) float64 {
 		}
 	}
 	return a[k]
+}
+
+// Quantile7 returns the p-quantile, 0 <= p <= 1, of values sorted in
+// ascending order by definition 7 of Hyndman & Fan (1996), the default of R
+// and NumPy: with h = 1 + (n−1)p, j = floor(h) and g = h − j,
+//
+//	Q(p) = (1−g) x_(j) + g x_(j+1)    (1-based order statistics)
+//
+// and x_(j) alone when g = 0 or x_(j) = x_(j+1). The arithmetic is the one
+// R's quantile.default does, so the two agree to the last bit; integers are
+// read exactly, whatever their size. It returns NaN for no values or p
+// outside [0, 1]; for unsorted input the result is meaningless.
+func Quantile7[T int64 | float64](sorted []T, p float64) float64 {
+	n := len(sorted)
+	if n == 0 || !(p >= 0 && p <= 1) {
+		return math.NaN()
+	}
+	h := 1 + float64(n-1)*p
+	j := math.Floor(h)
+	lo := sorted[int(j)-1]
+	g := h - j
+	if g == 0 || sorted[int(j)] == lo {
+		return float64(lo)
+	}
+	return (1-g)*float64(lo) + g*float64(sorted[int(j)])
 }
