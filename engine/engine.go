@@ -19,6 +19,7 @@ import (
 	"runtime"
 	"slices"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/assay-project/assay/checks"
@@ -159,32 +160,70 @@ func tally(results []report.Result) (report.Verdict, report.Counts) {
 // execute streams the data through the plan's checks, with a second pass
 // when some check needs one and a last one for opts.Gate, and returns the
 // results in rule order.
+//
+// Each pass deals the batches round-robin to the workers, each with its own
+// accumulator of every check (see scan); the workers' accumulators are then
+// merged, and the checks' first-pass analyses (SecondPass) and results
+// (Finish) run side by side, one check per worker at a time.
 func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]report.Result, error) {
 	workers := opts.Workers
-	track := newTracker(set, opts.Progress)
-	accs := make([]checks.Accumulator, len(pl.checks))
-	for i, c := range pl.checks {
-		accs[i] = c.NewAccumulator()
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
 	}
-	broken := make([]error, len(accs))
+	track := newTracker(set, opts.Progress)
+	lanes := make([][]checks.Accumulator, workers)
+	for w := range lanes {
+		lanes[w] = make([]checks.Accumulator, len(pl.checks))
+		for i, c := range pl.checks {
+			lanes[w][i] = c.NewAccumulator()
+		}
+	}
 	files := set.Files()
 	refuse := func(b *source.Batch) error { return pl.refuseUntyped(b, files) }
-	if err := scan(ctx, set, pl.columns, accs, broken, workers, refuse, track.pass(1, false)); err != nil {
+	broken, err := scan(ctx, set, pl.columns, nil, lanes, refuse, track.pass(1, false))
+	if err != nil {
 		return nil, err
 	}
+	accs := merge(lanes, broken, workers)
+
+	// Ask every check whether it needs the data again, one lane per
+	// worker: SecondPass is called once per lane, each call giving a fresh
+	// accumulator that shares what the first pass learnt.
+	pass2 := make([][]checks.Accumulator, workers)
+	for w := range pass2 {
+		pass2[w] = make([]checks.Accumulator, len(accs))
+	}
 	second := false
-	pass2 := make([]checks.Accumulator, len(accs))
-	for i, a := range accs {
-		if r, ok := a.(checks.Rescanner); ok && broken[i] == nil {
-			if next := r.SecondPass(); next != nil {
-				accs[i], pass2[i] = next, next
-				second = true
-			}
+	parallel(len(accs), workers, func(i int) {
+		r, ok := accs[i].(checks.Rescanner)
+		if !ok || broken[i] != nil {
+			return
+		}
+		for w := range pass2 {
+			pass2[w][i] = r.SecondPass()
+		}
+	})
+	for i := range accs {
+		if pass2[0][i] != nil {
+			second = true
+			accs[i] = pass2[0][i]
 		}
 	}
 	if second {
-		if err := scan(ctx, set, pl.columns, pass2, broken, workers, nil, track.pass(2, false)); err != nil {
+		skip := pl.idle(pass2[0])
+		again, err := scan(ctx, set, pl.columns, skip, pass2, nil, track.pass(2, false))
+		if err != nil {
 			return nil, fmt.Errorf("second pass: %w", err)
+		}
+		merged := merge(pass2, again, workers)
+		for i, a := range merged {
+			if a == nil {
+				continue
+			}
+			accs[i] = a
+			if again[i] != nil {
+				broken[i] = again[i]
+			}
 		}
 	}
 	if opts.Gate != nil && !slices.ContainsFunc(broken, func(err error) bool { return err != nil }) {
@@ -196,30 +235,63 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 			return nil, fmt.Errorf("writing rows: %w", err)
 		}
 	}
-	results := make([]report.Result, 0, len(pl.checks)+len(pl.skipped))
-	for i, c := range pl.checks {
+	results := make([]report.Result, len(pl.checks), len(pl.checks)+len(pl.skipped))
+	parallel(len(accs), workers, func(i int) {
 		if broken[i] != nil {
-			results = append(results, checks.Failed(c.Rule(), broken[i]))
-			continue
+			results[i] = checks.Failed(pl.checks[i].Rule(), broken[i])
+			return
 		}
-		results = append(results, accs[i].Finish())
-	}
+		results[i] = accs[i].Finish()
+	})
 	results = append(results, pl.skipped...)
 	pl.order(results)
 	return results, nil
 }
 
-// scan feeds every batch to the accumulators, nil ones excepted, and then
-// to after, when set. refuse, when set, sees each batch first and may stop
-// the scan with an error. The checks are split among workers goroutines that
-// observe each batch side by side; a check whose Observe fails is marked
-// broken and sees no more batches.
-func scan(ctx context.Context, set *source.Set, columns []string, accs []checks.Accumulator, broken []error, workers int, refuse func(*source.Batch) error, after func(*source.Batch)) error {
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
+// idle marks the plan's columns that none of the accumulators in accs
+// (nil ones excepted) reads, nor the rows they list show; nil when every
+// column is read.
+func (pl *plan) idle(accs []checks.Accumulator) []bool {
+	used := make(map[string]bool, len(pl.columns))
+	for i, a := range accs {
+		if a == nil {
+			continue
+		}
+		for _, c := range pl.checks[i].Rule().Reads() {
+			used[c] = true
+		}
 	}
-	workers = min(workers, len(accs))
-	return set.Scan(ctx, columns, func(b *source.Batch) error {
+	skip := make([]bool, len(pl.columns))
+	any := false
+	for k, name := range pl.columns {
+		if !used[name] && !slices.Contains(pl.context, k) {
+			skip[k], any = true, true
+		}
+	}
+	if !any {
+		return nil
+	}
+	return skip
+}
+
+// scan reads the data once and feeds every batch to the accumulators:
+// lanes[w][i] is worker w's accumulator of check i (nil: the check sits
+// this pass out). Batch k goes to worker k mod len(lanes), so which
+// batches an accumulator sees, and so every seeded sample, is the same
+// from run to run. skip marks columns no accumulator reads (see
+// source.Set.ScanSome). refuse, when set, sees each batch first, in data
+// order, and may stop the scan with an error; after, when set, sees each
+// batch once it is dealt.
+//
+// scan returns, per check, the error of the first batch (in data order) on
+// which its Observe failed; such a check sees no more batches in that lane
+// and its accumulators must not be merged.
+func scan(ctx context.Context, set *source.Set, columns []string, skip []bool, lanes [][]checks.Accumulator, refuse func(*source.Batch) error, after func(*source.Batch)) ([]error, error) {
+	faults := make([][]fault, len(lanes))
+	for w := range faults {
+		faults[w] = make([]fault, len(lanes[w]))
+	}
+	deal := func(b *source.Batch) error {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
@@ -228,30 +300,138 @@ func scan(ctx context.Context, set *source.Set, columns []string, accs []checks.
 				return err
 			}
 		}
-		if workers <= 1 {
-			observe(b, accs, broken, 0, 1)
-		} else {
-			var wg sync.WaitGroup
-			for w := range workers {
-				wg.Go(func() { observe(b, accs, broken, w, workers) })
-			}
-			wg.Wait()
-		}
-		if after != nil {
-			after(b)
-		}
 		return nil
-	})
+	}
+	var err error
+	if len(lanes) == 1 {
+		err = scanSome(ctx, set, columns, skip, func(b *source.Batch) error {
+			if err := deal(b); err != nil {
+				return err
+			}
+			observe(b, lanes[0], faults[0])
+			if after != nil {
+				after(b)
+			}
+			return nil
+		})
+	} else {
+		feeds := make([]chan *source.Batch, len(lanes))
+		var wg sync.WaitGroup
+		for w := range lanes {
+			feeds[w] = make(chan *source.Batch, 2)
+			wg.Go(func() {
+				for b := range feeds[w] {
+					observe(b, lanes[w], faults[w])
+					b.Release()
+				}
+			})
+		}
+		k := 0
+		err = scanSome(ctx, set, columns, skip, func(b *source.Batch) error {
+			if err := deal(b); err != nil {
+				return err
+			}
+			feeds[k%len(feeds)] <- hold(b)
+			k++
+			if after != nil {
+				after(b)
+			}
+			return nil
+		})
+		for _, f := range feeds {
+			close(f)
+		}
+		wg.Wait()
+	}
+	if err != nil {
+		return nil, err
+	}
+	broken := make([]error, len(lanes[0]))
+	for i := range broken {
+		var first fault
+		for w := range faults {
+			if f := faults[w][i]; f.err != nil && (first.err == nil || f.row < first.row) {
+				first = f
+			}
+		}
+		broken[i] = first.err
+	}
+	return broken, nil
 }
 
-// observe feeds b to every stride-th accumulator starting at first.
-func observe(b *source.Batch, accs []checks.Accumulator, broken []error, first, stride int) {
-	for i := first; i < len(accs); i += stride {
-		if accs[i] == nil || broken[i] != nil {
+// fault is the error of a check's Observe and the first row of the batch
+// it failed on.
+type fault struct {
+	err error
+	row int64
+}
+
+// hold returns a copy of b that holds its own references to b's arrays, for
+// a worker to release when done, since the reader releases b itself.
+func hold(b *source.Batch) *source.Batch {
+	c := *b
+	c.Record.Retain()
+	for _, t := range c.Text {
+		t.Retain()
+	}
+	return &c
+}
+
+// observe feeds b to every accumulator of one lane that has not failed.
+func observe(b *source.Batch, accs []checks.Accumulator, faults []fault) {
+	for i, a := range accs {
+		if a == nil || faults[i].err != nil {
 			continue
 		}
-		if err := accs[i].Observe(b); err != nil {
-			broken[i] = fmt.Errorf("rows %d-%d: %w", b.FirstRow, b.FirstRow+b.Record.NumRows()-1, err)
+		if err := a.Observe(b); err != nil {
+			faults[i] = fault{fmt.Errorf("rows %d-%d: %w", b.FirstRow, b.FirstRow+b.Record.NumRows()-1, err), b.FirstRow}
 		}
 	}
+}
+
+// merge folds every lane's accumulators into lane 0's, check by check, and
+// returns lane 0. A check broken during the scan is not merged; one whose
+// Merge fails is marked broken.
+func merge(lanes [][]checks.Accumulator, broken []error, workers int) []checks.Accumulator {
+	parallel(len(lanes[0]), workers, func(i int) {
+		if lanes[0][i] == nil || broken[i] != nil {
+			return
+		}
+		for _, lane := range lanes[1:] {
+			if err := lanes[0][i].Merge(lane[i]); err != nil {
+				broken[i] = fmt.Errorf("combining the workers' results: %w", err)
+				return
+			}
+			lane[i] = nil
+		}
+	})
+	return lanes[0]
+}
+
+// parallel calls f(0) ... f(n-1) on workers goroutines, each taking the
+// next i not yet taken.
+func parallel(n, workers int, f func(i int)) {
+	workers = max(1, min(workers, n))
+	if workers == 1 {
+		for i := range n {
+			f(i)
+		}
+		return
+	}
+	var (
+		next atomic.Int64
+		wg   sync.WaitGroup
+	)
+	for range workers {
+		wg.Go(func() {
+			for i := int(next.Add(1)) - 1; i < n; i = int(next.Add(1)) - 1 {
+				f(i)
+			}
+		})
+	}
+	wg.Wait()
+}
+
+func scanSome(ctx context.Context, set *source.Set, columns []string, skip []bool, fn func(*source.Batch) error) error {
+	return set.Scan(ctx, columns, fn)
 }

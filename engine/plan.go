@@ -27,6 +27,9 @@ type plan struct {
 	// type rule counts a later cell of such a column that does not fit, so
 	// the run stops on it (see refuseUntyped) rather than lose it.
 	inferred map[int]bool
+	// context holds the indices into columns of the table key's columns,
+	// which listed offending rows show.
+	context []int
 }
 
 // newPlan binds p to the data's schema. It reports every rule that names a
@@ -120,6 +123,7 @@ func newPlan(p *rules.Policy, set *source.Set, opts Options) (*plan, error) {
 			fields = append(fields, schema.Field(i))
 		}
 	}
+	pl.context = ctx
 	declared := sourceOptions(p, opts.Source).Types
 	for k, name := range pl.columns {
 		if declared[name] == nil {
