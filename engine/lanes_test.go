@@ -91,4 +91,3 @@ func near(x, y float64) bool {
 	}
 	return math.Abs(x-y) <= 1e-9*max(math.Abs(x), math.Abs(y))
 }
-
