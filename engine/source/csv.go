@@ -212,8 +212,11 @@ func (s *Set) inspectCSV(in *input) error {
 	return nil
 }
 
-// scanCSV reads input i in batches of BatchRows rows.
-func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Schema, first int64, fn func(*Batch) error) (int64, error) {
+// scanCSV reads input i in batches of BatchRows rows. The fields of skipped
+// columns are split out of each record but not converted; only the length
+// of a skipped string column's text is counted, so that batches end where
+// Scan ends them.
+func (s *Set) scanCSV(ctx context.Context, i int, sc *scan, first int64) (int64, error) {
 	in := s.inputs[i]
 	c, err := s.openCSV(in)
 	if err != nil {
@@ -233,13 +236,21 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 		}
 	}
 
-	cols := make([]*column, len(proj))
-	slots := make([]*column, width) // by position in the file; nil when not read
+	proj, schema := sc.proj, sc.schema
+	cols := make([]*column, len(proj)) // nil when skipped
+	slots := make([]*column, width)    // by position in the file; nil when not read
 	var texts []*column
-	for k, sc := range proj {
+	var skipped []skippedText
+	for k, c := range proj {
 		kd, _ := kindOf(schema.Field(k).Type)
+		if sc.skipped(k) {
+			if kd == kString {
+				skipped = append(skipped, skippedText{pos: in.pos[c]})
+			}
+			continue
+		}
 		cols[k] = newColumn(kd, s.nulls, s.opts.Allocator)
-		slots[in.pos[sc]] = cols[k]
+		slots[in.pos[c]] = cols[k]
 		if kd == kString {
 			texts = append(texts, cols[k])
 		}
@@ -250,9 +261,9 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 	if s.text {
 		raw, rawSlots = make([]*column, len(proj)), make([]*column, width)
 		verbatim := newNullSet(nil)
-		for k, sc := range proj {
+		for k, c := range proj {
 			raw[k] = newColumn(kString, verbatim, s.opts.Allocator)
-			rawSlots[in.pos[sc]] = raw[k]
+			rawSlots[in.pos[c]] = raw[k]
 		}
 		texts = append(texts, raw...)
 	}
@@ -268,19 +279,22 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 			return c.rows, err
 		}
 		for _, col := range cols {
-			col.start(capRows)
+			if col != nil {
+				col.start(capRows)
+			}
 		}
 		for _, col := range raw {
 			col.start(capRows)
+		}
+		for k := range skipped {
+			skipped[k].dlen = 0
 		}
 		lines := make([]int64, 0, capRows)
 		for len(lines) < capRows {
 			if !pending {
 				ok, err := c.record(width, noHeader)
 				if err != nil {
-					for _, col := range append(cols, raw...) {
-						col.release()
-					}
+					releaseColumns(cols, raw)
 					return c.rows, err
 				}
 				if !ok {
@@ -297,21 +311,29 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 					rawSlots[j].append(c.sp.field(f))
 				}
 			}
+			for k := range skipped {
+				sk := &skipped[k]
+				if b := c.sp.field(c.sp.fields[sk.pos]); !s.nulls.has(b) {
+					sk.dlen += len(b)
+				}
+			}
 			lines = append(lines, c.sp.recLine)
-			if full(texts) {
+			if full(texts, skipped) {
 				break
 			}
 		}
 		n := len(lines)
 		if n == 0 {
-			for _, col := range append(cols, raw...) {
-				col.release()
-			}
+			releaseColumns(cols, raw)
 			break
 		}
 		arrs := make([]arrow.Array, len(cols))
 		var invalid map[int][]InvalidCell
 		for k, col := range cols {
+			if col == nil {
+				arrs[k] = sc.nulls.get(schema.Field(k).Type, n)
+				continue
+			}
 			if col.invalid != nil {
 				if invalid == nil {
 					invalid = make(map[int][]InvalidCell)
@@ -334,7 +356,7 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 		for _, a := range arrs {
 			a.Release()
 		}
-		err := fn(b)
+		err := sc.fn(b)
 		b.Release()
 		if err != nil {
 			return c.rows, err
@@ -343,12 +365,36 @@ func (s *Set) scanCSV(ctx context.Context, i int, proj []int, schema *arrow.Sche
 	return c.rows, nil
 }
 
-// full reports whether a string column holds as much text as a batch may.
-func full(texts []*column) bool {
+// skippedText counts the text of a skipped string column in a batch.
+type skippedText struct {
+	pos  int // the column's position in the file
+	dlen int // bytes of its cells that are not null tokens, as a column's dlen
+}
+
+// full reports whether a string column, read or skipped, holds as much text
+// as a batch may.
+func full(texts []*column, skipped []skippedText) bool {
 	for _, c := range texts {
 		if c.dlen >= maxBatchBytes {
 			return true
 		}
 	}
+	for _, sk := range skipped {
+		if sk.dlen >= maxBatchBytes {
+			return true
+		}
+	}
 	return false
+}
+
+// releaseColumns lets go of the buffers of the columns being filled.
+func releaseColumns(cols, raw []*column) {
+	for _, col := range cols {
+		if col != nil {
+			col.release()
+		}
+	}
+	for _, col := range raw {
+		col.release()
+	}
 }

@@ -375,7 +375,7 @@ func TestStdin(t *testing.T) {
 }
 
 // TestScanStops checks that an error from the callback and a cancelled
-// context end the scan.
+// context end the scan, whether it reads its column or skips it.
 func TestScanStops(t *testing.T) {
 	mem := checkedMem(t)
 	paths := writeFiles(t, t.TempDir(), []inFile{{"a.csv", "k\n1\n2\n3\n"}})
@@ -384,17 +384,19 @@ func TestScanStops(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer s.Close()
-	stop := errors.New("stop")
-	calls := 0
-	err = s.Scan(context.Background(), nil, func(*Batch) error { calls++; return stop })
-	if err != stop || calls != 1 {
-		t.Errorf("Scan returned %v after %d calls; want the callback's error after 1", err, calls)
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	calls = 0
-	err = s.Scan(ctx, nil, func(*Batch) error { calls++; cancel(); return nil })
-	if !errors.Is(err, context.Canceled) || calls != 1 {
-		t.Errorf("Scan returned %v after %d calls; want context.Canceled after 1", err, calls)
+	for _, skip := range [][]bool{nil, {true}} {
+		stop := errors.New("stop")
+		calls := 0
+		err = s.ScanSome(context.Background(), nil, skip, func(*Batch) error { calls++; return stop })
+		if err != stop || calls != 1 {
+			t.Errorf("skip %v: scan returned %v after %d calls; want the callback's error after 1", skip, err, calls)
+		}
+		ctx, cancel := context.WithCancel(context.Background())
+		calls = 0
+		err = s.ScanSome(ctx, nil, skip, func(*Batch) error { calls++; cancel(); return nil })
+		if !errors.Is(err, context.Canceled) || calls != 1 {
+			t.Errorf("skip %v: scan returned %v after %d calls; want context.Canceled after 1", skip, err, calls)
+		}
 	}
 }
 

@@ -256,12 +256,10 @@ func detectName(path string) string {
 	return "arrow-stream"
 }
 
-// TestMixedFormats reads CSV, Parquet and an Arrow file with a dictionary
-// column as one table: row numbers run on, the Parquet float column widens
-// the CSV integers, and lines are known only for the CSV rows.
-func TestMixedFormats(t *testing.T) {
-	mem := checkedMem(t)
-	dir := t.TempDir()
+// mixedFiles writes a.csv, b.parquet and c.arrow, all of the columns id and
+// cat, into dir.
+func mixedFiles(t *testing.T, dir string) []string {
+	t.Helper()
 	paths := writeFiles(t, dir, []inFile{{"a.csv", "id,cat\n1,red\n\"2\",blue\n"}})
 	pq := filepath.Join(dir, "b.parquet")
 	writeParquet(t, pq, fixture{
@@ -276,7 +274,15 @@ func TestMixedFormats(t *testing.T) {
 	}, 10)
 	af := filepath.Join(dir, "c.arrow")
 	writeArrow(t, af, dict, false, 3)
-	paths = append(paths, pq, af)
+	return append(paths, pq, af)
+}
+
+// TestMixedFormats reads CSV, Parquet and an Arrow file with a dictionary
+// column as one table: row numbers run on, the Parquet float column widens
+// the CSV integers, and lines are known only for the CSV rows.
+func TestMixedFormats(t *testing.T) {
+	mem := checkedMem(t)
+	paths := mixedFiles(t, t.TempDir())
 	diff(t, openDump(t, paths, Options{Allocator: mem}, nil), `schema: id:number cat:string
 batch source=0 first=1 rows=2
   row 1 line 2: id=1 cat="red"

@@ -73,8 +73,8 @@ func (s *Set) openArrowStream(in *input, f *os.File, size int64) (*ipc.Reader, e
 }
 
 // scanArrow reads input i, an Arrow IPC file or stream, one stored record
-// batch at a time.
-func (s *Set) scanArrow(ctx context.Context, i int, proj []int, schema *arrow.Schema, first int64, fn func(*Batch) error) (int64, error) {
+// batch at a time. Skipped columns are decoded with the batch and dropped.
+func (s *Set) scanArrow(ctx context.Context, i int, sc *scan, first int64) (int64, error) {
 	in := s.inputs[i]
 	f, size, err := openFile(in)
 	if err != nil {
@@ -115,7 +115,7 @@ func (s *Set) scanArrow(ctx context.Context, i int, proj []int, schema *arrow.Sc
 			return rec, nil
 		}
 	}
-	stored := make([]arrow.Array, len(proj))
+	stored := make([]arrow.Array, len(sc.proj))
 	var rows int64
 	for {
 		if err := ctx.Err(); err != nil {
@@ -134,10 +134,10 @@ func (s *Set) scanArrow(ctx context.Context, i int, proj []int, schema *arrow.Sc
 		}
 		n := rec.NumRows()
 		if n > 0 {
-			for k, sc := range proj {
-				stored[k] = rec.Column(in.pos[sc])
+			for k, c := range sc.proj {
+				stored[k] = rec.Column(in.pos[c])
 			}
-			err = s.deliver(in, i, stored, n, proj, schema, first+rows, fn)
+			err = s.deliver(in, i, sc, stored, n, first+rows)
 		}
 		rec.Release()
 		if err != nil {

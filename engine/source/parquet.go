@@ -78,8 +78,8 @@ func leaves(dst []int, f *pqarrow.SchemaField) []int {
 }
 
 // scanParquet reads input i by record batches of at most BatchRows rows,
-// decoding only the projected columns.
-func (s *Set) scanParquet(ctx context.Context, i int, proj []int, schema *arrow.Schema, first int64, fn func(*Batch) error) (int64, error) {
+// decoding only the projected columns that are not skipped.
+func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (int64, error) {
 	in := s.inputs[i]
 	f, size, err := openFile(in)
 	if err != nil {
@@ -95,8 +95,15 @@ func (s *Set) scanParquet(ctx context.Context, i int, proj []int, schema *arrow.
 	if total == 0 {
 		return 0, nil
 	}
-	if len(proj) == 0 {
-		return total, emitRows(ctx, i, schema, first, total, int64(s.opts.BatchRows), fn)
+	// read lists the columns of the batches to decode, in order.
+	read := make([]int, 0, len(sc.proj))
+	for k := range sc.proj {
+		if !sc.skipped(k) {
+			read = append(read, k)
+		}
+	}
+	if len(read) == 0 {
+		return total, emitRows(ctx, i, sc, first, total, int64(s.opts.BatchRows))
 	}
 	props := pqarrow.ArrowReadProperties{BatchSize: int64(s.opts.BatchRows)}
 	fr, err := pqarrow.NewFileReader(r, props, s.opts.Allocator)
@@ -104,15 +111,16 @@ func (s *Set) scanParquet(ctx context.Context, i int, proj []int, schema *arrow.
 		return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet schema: " + err.Error()}
 	}
 	var cols []int
-	for _, sc := range proj {
-		cols = leaves(cols, &fr.Manifest.Fields[in.pos[sc]])
+	for _, k := range read {
+		cols = leaves(cols, &fr.Manifest.Fields[in.pos[sc.proj[k]]])
 	}
 	rr, err := fr.GetRecordReader(ctx, cols, nil)
 	if err != nil {
 		return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet columns: " + err.Error()}
 	}
 	defer rr.Release()
-	// The reader's columns come in the order of proj, as cols lists them.
+	// The reader's columns come in the order of read, as cols lists them.
+	stored := make([]arrow.Array, len(sc.proj))
 	var rows int64
 	for {
 		more, err := guard(func() (bool, error) { return rr.Next(), nil })
@@ -127,7 +135,10 @@ func (s *Set) scanParquet(ctx context.Context, i int, proj []int, schema *arrow.
 			return rows, err
 		}
 		rec := rr.RecordBatch()
-		if err := s.deliver(in, i, rec.Columns(), rec.NumRows(), proj, schema, first+rows, fn); err != nil {
+		for j, k := range read {
+			stored[k] = rec.Column(j)
+		}
+		if err := s.deliver(in, i, sc, stored, rec.NumRows(), first+rows); err != nil {
 			return rows, err
 		}
 		rows += rec.NumRows()
@@ -153,14 +164,19 @@ func guard[T any](step func() (T, error)) (v T, err error) {
 	return step()
 }
 
-// deliver converts columns as stored, stored[k] holding the Set's column
-// proj[k], into a Batch of rows rows and hands it to fn.
-func (s *Set) deliver(in *input, i int, stored []arrow.Array, rows int64, proj []int, schema *arrow.Schema, firstRow int64, fn func(*Batch) error) error {
-	cols := make([]arrow.Array, len(proj))
+// deliver converts columns as stored, stored[k] holding column k of the
+// batches (ignored when skipped), into a Batch of rows rows and hands it to
+// sc.fn.
+func (s *Set) deliver(in *input, i int, sc *scan, stored []arrow.Array, rows int64, firstRow int64) error {
+	cols := make([]arrow.Array, len(sc.proj))
 	var invalid map[int][]InvalidCell
-	for k, sc := range proj {
+	for k, c := range sc.proj {
+		if sc.skipped(k) {
+			cols[k] = sc.nulls.get(sc.schema.Field(k).Type, int(rows))
+			continue
+		}
 		a := stored[k]
-		conv := in.conv[sc]
+		conv := in.conv[c]
 		if conv == nil {
 			a.Retain()
 			cols[k] = a
@@ -175,25 +191,32 @@ func (s *Set) deliver(in *input, i int, stored []arrow.Array, rows int64, proj [
 			invalid[k] = bad
 		}
 	}
-	b := &Batch{Record: array.NewRecordBatch(schema, cols, rows), Source: i, FirstRow: firstRow, Invalid: invalid}
+	b := &Batch{Record: array.NewRecordBatch(sc.schema, cols, rows), Source: i, FirstRow: firstRow, Invalid: invalid}
 	for _, c := range cols {
 		c.Release()
 	}
-	err := fn(b)
+	err := sc.fn(b)
 	b.Release()
 	return err
 }
 
-// emitRows delivers batches without columns for total rows, when a scan
-// asks for no column.
-func emitRows(ctx context.Context, i int, schema *arrow.Schema, first, total, batchRows int64, fn func(*Batch) error) error {
+// emitRows delivers batches of total rows in which every column is null:
+// none when the scan asks for no column, or all skipped.
+func emitRows(ctx context.Context, i int, sc *scan, first, total, batchRows int64) error {
+	cols := make([]arrow.Array, len(sc.proj))
 	for done := int64(0); done < total; {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
 		n := min(batchRows, total-done)
-		b := &Batch{Record: array.NewRecordBatch(schema, nil, n), Source: i, FirstRow: first + done}
-		err := fn(b)
+		for k := range cols {
+			cols[k] = sc.nulls.get(sc.schema.Field(k).Type, int(n))
+		}
+		b := &Batch{Record: array.NewRecordBatch(sc.schema, cols, n), Source: i, FirstRow: first + done}
+		for _, c := range cols {
+			c.Release()
+		}
+		err := sc.fn(b)
 		b.Release()
 		if err != nil {
 			return err

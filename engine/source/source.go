@@ -516,20 +516,42 @@ func isNumber(t arrow.DataType) bool {
 // keep it longer. An error from fn stops the scan and is returned as is.
 // Scan may be called again for another pass.
 func (s *Set) Scan(ctx context.Context, columns []string, fn func(*Batch) error) error {
+	return s.ScanSome(ctx, columns, nil, fn)
+}
+
+// ScanSome is Scan that leaves out the values of some columns: skip[i]
+// true skips columns[i] (with columns nil, the i-th column of Schema). The
+// batches have the schema of Scan(columns), but a skipped column comes as
+// an all-null array of its type, with no Invalid cells; row numbers, lines
+// and batch boundaries are those of Scan. A nil skip is Scan.
+//
+// What a skipped column saves depends on the format: Parquet does not read
+// its column chunks at all (so damage confined to them goes unnoticed), CSV
+// still splits its fields but does not convert them, and Arrow IPC decodes
+// the stored batch and drops the column.
+func (s *Set) ScanSome(ctx context.Context, columns []string, skip []bool, fn func(*Batch) error) error {
 	proj, schema, err := s.project(columns)
 	if err != nil {
 		return err
 	}
+	if skip != nil && len(skip) != len(proj) {
+		return &Error{Msg: fmt.Sprintf("%d skip flags for %d columns (give one per column)", len(skip), len(proj))}
+	}
+	if !slices.Contains(skip, true) {
+		skip = nil
+	}
+	sc := &scan{proj: proj, schema: schema, skip: skip, nulls: newNullArrays(s.opts.Allocator), fn: fn}
+	defer sc.nulls.release()
 	first := int64(1)
 	for i, in := range s.inputs {
 		var rows int64
 		switch in.Format {
 		case CSV:
-			rows, err = s.scanCSV(ctx, i, proj, schema, first, fn)
+			rows, err = s.scanCSV(ctx, i, sc, first)
 		case Parquet:
-			rows, err = s.scanParquet(ctx, i, proj, schema, first, fn)
+			rows, err = s.scanParquet(ctx, i, sc, first)
 		default:
-			rows, err = s.scanArrow(ctx, i, proj, schema, first, fn)
+			rows, err = s.scanArrow(ctx, i, sc, first)
 		}
 		if err != nil {
 			return err
@@ -539,6 +561,18 @@ func (s *Set) Scan(ctx context.Context, columns []string, fn func(*Batch) error)
 	}
 	return nil
 }
+
+// scan is what one Scan or ScanSome call reads and where it delivers.
+type scan struct {
+	proj   []int         // for each column of the batches, its index in the Set's schema
+	schema *arrow.Schema // of the batches
+	skip   []bool        // by column of the batches; nil when none is skipped
+	nulls  *nullArrays   // the all-null stand-ins of skipped columns
+	fn     func(*Batch) error
+}
+
+// skipped reports whether column k of the batches is skipped.
+func (sc *scan) skipped(k int) bool { return sc.skip != nil && sc.skip[k] }
 
 // ScanText is Scan with the cells of CSV inputs also kept as written, in
 // Batch.Text, for a caller that copies rows out as they were (at the cost
