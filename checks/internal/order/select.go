@@ -1,5 +1,7 @@
 // Package order holds order-statistic routines shared by the statistical
-// packages of checks: selection and the type-7 quantile.
+// packages of checks: selection, the type-7 quantile (from sorted values,
+// or by selection from unsorted ones), and the chunked store the rules
+// that keep a column's values put them in.
 package order
 
 import (
@@ -12,8 +14,9 @@ import (
 // ascending order, with no larger value before it and no smaller one after
 // it, and returns a[k]. Quickselect (Hoare 1961, "Algorithm 65: find") with
 // a median-of-three pivot, in expected O(n); after 3 log2(n) rounds it
-// sorts what is left, so the worst case stays O(n log n).
-func Select(a []float64, k int) float64 {
+// sorts what is left, so the worst case stays O(n log n). The values must
+// not be NaN.
+func Select[T int64 | float64](a []T, k int) T {
 	lo, hi := 0, len(a)-1
 	budget := 3 * bits.Len(uint(len(a)))
 	for hi > lo {
@@ -83,4 +86,68 @@ func Quantile7[T int64 | float64](sorted []T, p float64) float64 {
 		return float64(lo)
 	}
 	return (1-g)*float64(lo) + g*float64(sorted[int(j)])
+}
+
+// SelectRanks reorders a so that a[r] holds the value of rank r (0-based,
+// ascending) for every r in ranks, which must be ascending (repeats
+// allowed) and within [0, len(a)). The ranks are selected in increasing
+// order, each in the part of a above the previous one: after rank r is in
+// place, a[r+1:] holds exactly the values of ranks r+1 and up, so the next
+// rank is found there, by a scan for the least value when it is r+1 and by
+// Select otherwise. The values must not be NaN.
+func SelectRanks[T int64 | float64](a []T, ranks []int) {
+	lo := 0 // a[:lo] is in place: no value of a[lo:] is smaller
+	for _, r := range ranks {
+		switch {
+		case r < lo: // a repeat
+			continue
+		case r == lo:
+			least := lo
+			for i := lo + 1; i < len(a); i++ {
+				if a[i] < a[least] {
+					least = i
+				}
+			}
+			a[lo], a[least] = a[least], a[lo]
+		default:
+			Select(a[lo:], r-lo)
+		}
+		lo = r + 1
+	}
+}
+
+// Quantiles7 returns the p-quantiles of a, each p in [0, 1] (NaN for
+// another p), by definition 7 of Hyndman & Fan (1996) (see
+// Quantile7), without sorting: the order statistics x_(j) and x_(j+1) each
+// quantile reads are put in place by SelectRanks, in expected O(n) for a
+// few quantiles, and Quantile7 reads them where sorting would have put
+// them, so the results are those of sorting to the last bit. It reorders
+// a, which must hold no NaN, and returns NaNs for no values.
+func Quantiles7[T int64 | float64](a []T, ps ...float64) []float64 {
+	out := make([]float64, len(ps))
+	n := len(a)
+	if n == 0 {
+		for i := range out {
+			out[i] = math.NaN()
+		}
+		return out
+	}
+	ranks := make([]int, 0, 2*len(ps))
+	for _, p := range ps {
+		if !(p >= 0 && p <= 1) {
+			continue
+		}
+		h := 1 + float64(n-1)*p
+		j := int(math.Floor(h)) // x_(j) is a[j-1]; x_(j+1) is a[j]
+		ranks = append(ranks, j-1)
+		if h > float64(j) { // g > 0, so j < n
+			ranks = append(ranks, j)
+		}
+	}
+	slices.Sort(ranks)
+	SelectRanks(a, ranks)
+	for i, p := range ps {
+		out[i] = Quantile7(a, p)
+	}
+	return out
 }

@@ -1,0 +1,57 @@
+package order
+
+// Chunks are the values a rule keeps from a column, as a list of slices,
+// one per batch, each allocated at its final size: nothing is copied as
+// they grow (a slice grown by append copies its values again at each
+// doubling and holds up to twice their size while it does), and two lists
+// are joined by moving slices, not values. Flatten copies them once into
+// one slice when an array is needed.
+type Chunks[T int64 | float64] struct {
+	parts [][]T
+	n     int
+}
+
+// Add appends part to c, which keeps it: the caller must not change it
+// afterwards. An empty part is dropped; a part whose capacity exceeds its
+// length by more than an eighth is copied to its length, so that values
+// dropped after allocating (nulls, NaNs) do not hold memory.
+func (c *Chunks[T]) Add(part []T) {
+	if len(part) == 0 {
+		return
+	}
+	if cap(part)-len(part) > len(part)/8 {
+		part = append(make([]T, 0, len(part)), part...)
+	}
+	c.parts = append(c.parts, part)
+	c.n += len(part)
+}
+
+// Splice moves o's parts to the end of c's and leaves o empty.
+func (c *Chunks[T]) Splice(o *Chunks[T]) {
+	c.parts = append(c.parts, o.parts...)
+	c.n += o.n
+	*o = Chunks[T]{}
+}
+
+// Len is the number of values.
+func (c *Chunks[T]) Len() int { return c.n }
+
+// Flatten returns the values in the order they were added, in one slice
+// of exactly their number, which c then holds as its only part (later
+// calls return it at no cost). Each part is let go as soon as it is
+// copied. The slice is c's own: reordering it reorders c.
+func (c *Chunks[T]) Flatten() []T {
+	switch len(c.parts) {
+	case 0:
+		return nil
+	case 1:
+		return c.parts[0]
+	}
+	all := make([]T, 0, c.n)
+	for i, p := range c.parts {
+		all = append(all, p...)
+		c.parts[i] = nil
+	}
+	c.parts = [][]T{all}
+	return all
+}
