@@ -67,6 +67,12 @@ type Accumulator interface {
 // listing (a distribution that fits); the receiver's own Finish then gives
 // the result, and the data is read a second time only if another check
 // asks for it.
+//
+// The engine reads with several workers, each with its own accumulators,
+// merged after each pass. So SecondPass may be called several times on the
+// merged first-pass accumulator, once per worker: each call returns a fresh
+// accumulator, which may share what the first pass learnt (read only, as
+// the workers observe side by side), and which merges with the others.
 type Rescanner interface {
 	Accumulator
 	SecondPass() Accumulator

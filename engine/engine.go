@@ -43,8 +43,11 @@ type Options struct {
 	// Source holds reader settings that the policy's `csv` block does not
 	// set (the policy wins where it does).
 	Source source.Options
-	// Workers is how many goroutines evaluate checks on each batch; 0 means
-	// GOMAXPROCS.
+	// Workers is how many goroutines share the batches of each pass, each
+	// with its own accumulator of every check, merged after the pass; 0
+	// means GOMAXPROCS. Results agree for any number, save the last digits
+	// of sums and the members of samples drawn from more rows than they
+	// hold (each worker seeds its own from the rows it sees first).
 	Workers int
 	// Now returns the time a run starts; nil means time.Now. Tests fix it.
 	Now func() time.Time
