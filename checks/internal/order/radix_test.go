@@ -31,10 +31,14 @@ func TestSortUint64(t *testing.T) {
 		{"low byte only", func(n int) []uint64 { return fill(n, func(int) uint64 { return uint64(rng.IntN(256)) }) }},
 		{"top byte only", func(n int) []uint64 { return fill(n, func(int) uint64 { return uint64(rng.IntN(256)) << 56 }) }},
 		{"three bytes", func(n int) []uint64 {
-			return fill(n, func(int) uint64 { return uint64(rng.IntN(256))<<8 | uint64(rng.IntN(256))<<24 | uint64(rng.IntN(256))<<40 })
+			return fill(n, func(int) uint64 {
+				return uint64(rng.IntN(256))<<8 | uint64(rng.IntN(256))<<24 | uint64(rng.IntN(256))<<40
+			})
 		}},
 		{"top bits shared", func(n int) []uint64 { return fill(n, func(int) uint64 { return 0xabc<<52 | rng.Uint64()>>12 }) }},
-		{"ties", func(n int) []uint64 { return fill(n, func(int) uint64 { return rng.Uint64() % 7 * 0x0101010101010101 }) }},
+		{"ties", func(n int) []uint64 {
+			return fill(n, func(int) uint64 { return rng.Uint64() % 7 * 0x0101010101010101 })
+		}},
 		{"ascending", func(n int) []uint64 { return fill(n, func(i int) uint64 { return uint64(i) }) }},
 		{"descending", func(n int) []uint64 { return fill(n, func(i int) uint64 { return uint64(n - i) }) }},
 		{"extremes", func(n int) []uint64 {
