@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"regexp"
 
-	"github.com/apache/arrow-go/v18/arrow"
-
 	"github.com/assay-project/assay/rules"
 )
 
@@ -25,12 +23,6 @@ func newPatternCheck(r *rules.Rule, s rules.PatternSpec, env *Env) (Check, error
 		}
 	}
 	vc := &valueCheck{rule: r, env: env, col: c, breaks: "fail to match " + re.String()}
-	vc.scan = func(a arrow.Array, _ *scratch, hit func(int, float64)) {
-		eachString(a, func(i int, v string) {
-			if !re.MatchString(v) {
-				hit(i, 1)
-			}
-		})
-	}
+	vc.scan = scanText(func(v string) verdict { return verdict{breaks: !re.MatchString(v), score: 1} })
 	return vc, nil
 }

@@ -2,8 +2,10 @@ package checks
 
 import (
 	"fmt"
+	"strings"
 
 	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
 
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -28,10 +30,88 @@ type valueCheck struct {
 }
 
 // scratch holds an accumulator's reusable buffers for widening narrow
-// Arrow arrays.
+// Arrow arrays, and its memo of verdicts on strings.
 type scratch struct {
 	ints   []int64
 	floats []float64
+	memo   verdicts
+}
+
+// verdict is what a rule on single strings says of one value: whether it
+// breaks the rule, and its score when it does.
+type verdict struct {
+	breaks bool
+	score  float64
+}
+
+// Bounds of a verdicts memo. memoMax distinct strings cost about 1 MiB;
+// memoTrial is how many lookups a full memo gets to show that it pays.
+const (
+	memoMax   = 1 << 14
+	memoTrial = 1 << 16
+)
+
+// verdicts remembers the verdict of a rule on each of the first memoMax
+// distinct strings of a column, so that a column of few distinct values
+// (device codes, country names) runs an expensive test such as a regular
+// expression once per distinct value instead of once per row. When the
+// memo is full and, over memoTrial further lookups, misses outnumber hits,
+// the column has too many distinct values for it to pay and it is no
+// longer consulted. It belongs to one accumulator, so workers never share
+// it; the verdicts are those judge would give, so results do not change.
+type verdicts struct {
+	seen         map[string]verdict
+	off          bool
+	hits, misses int
+}
+
+// judge returns judge(s), from the memo when s is in it.
+func (m *verdicts) judge(s string, judge func(string) verdict) verdict {
+	if m.off {
+		return judge(s)
+	}
+	if v, ok := m.seen[s]; ok {
+		m.hits++
+		return v
+	}
+	v := judge(s)
+	if len(m.seen) < memoMax {
+		if m.seen == nil {
+			m.seen = make(map[string]verdict)
+		}
+		m.seen[strings.Clone(s)] = v // s points into the batch's buffers
+		return v
+	}
+	if m.misses++; m.hits+m.misses >= memoTrial {
+		if m.misses > m.hits {
+			m.off, m.seen = true, nil
+		}
+		m.hits, m.misses = 0, 0
+	}
+	return v
+}
+
+// scanText makes the scan of a rule on single strings from its verdict on
+// one value, which it remembers per distinct value (verdicts).
+func scanText(judge func(string) verdict) func(arrow.Array, *scratch, func(int, float64)) {
+	return func(a arrow.Array, s *scratch, hit func(int, float64)) {
+		if str, ok := a.(*array.String); ok { // the common case, without a call per value
+			v := validOf(str)
+			for i := range str.Len() {
+				if v.at(i) {
+					if r := s.memo.judge(str.Value(i), judge); r.breaks {
+						hit(i, r.score)
+					}
+				}
+			}
+			return
+		}
+		eachString(a, func(i int, v string) {
+			if r := s.memo.judge(v, judge); r.breaks {
+				hit(i, r.score)
+			}
+		})
+	}
 }
 
 func (c *valueCheck) Rule() *rules.Rule { return c.rule }
