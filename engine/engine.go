@@ -31,6 +31,14 @@ import (
 // Version is the tool version written into reports.
 const Version = "0.1.0"
 
+// Lanes is how many sets of accumulators share the batches of each pass:
+// batch k goes to lane k mod Lanes, and the lanes' accumulators are merged
+// in lane order after the pass. The number is fixed, not taken from the
+// machine, so that which rows each accumulator sees, and so every sum's
+// rounding and every seeded sample, is the same on any machine and for any
+// Options.Workers; each worker serves whole lanes.
+const Lanes = 4
+
 // DefaultMaxRowsListed is how many offending rows a result lists when
 // Options.MaxRowsListed is zero.
 const DefaultMaxRowsListed = 20
@@ -43,11 +51,8 @@ type Options struct {
 	// Source holds reader settings that the policy's `csv` block does not
 	// set (the policy wins where it does).
 	Source source.Options
-	// Workers is how many goroutines share the batches of each pass, each
-	// with its own accumulator of every check, merged after the pass; 0
-	// means GOMAXPROCS. Results agree for any number, save the last digits
-	// of sums and the members of samples drawn from more rows than they
-	// hold (each worker seeds its own from the rows it sees first).
+	// Workers is how many goroutines evaluate the checks, at most Lanes;
+	// 0 means GOMAXPROCS. Results do not depend on it (see Lanes).
 	Workers int
 	// Now returns the time a run starts; nil means time.Now. Tests fix it.
 	Now func() time.Time
@@ -173,8 +178,9 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
+	workers = min(workers, Lanes)
 	track := newTracker(set, opts.Progress)
-	lanes := make([][]checks.Accumulator, workers)
+	lanes := make([][]checks.Accumulator, Lanes)
 	for w := range lanes {
 		lanes[w] = make([]checks.Accumulator, len(pl.checks))
 		for i, c := range pl.checks {
@@ -183,16 +189,16 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 	}
 	files := set.Files()
 	refuse := func(b *source.Batch) error { return pl.refuseUntyped(b, files) }
-	broken, err := scan(ctx, set, pl.columns, nil, lanes, refuse, track.pass(1, false))
+	broken, err := scan(ctx, set, pl.columns, nil, lanes, workers, refuse, track.pass(1, false))
 	if err != nil {
 		return nil, err
 	}
 	accs := merge(lanes, broken, workers)
 
-	// Ask every check whether it needs the data again, one lane per
-	// worker: SecondPass is called once per lane, each call giving a fresh
-	// accumulator that shares what the first pass learnt.
-	pass2 := make([][]checks.Accumulator, workers)
+	// Ask every check whether it needs the data again: SecondPass is
+	// called once per lane, each call giving a fresh accumulator that
+	// shares what the first pass learnt.
+	pass2 := make([][]checks.Accumulator, Lanes)
 	for w := range pass2 {
 		pass2[w] = make([]checks.Accumulator, len(accs))
 	}
@@ -214,7 +220,7 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 	}
 	if second {
 		skip := pl.idle(pass2[0])
-		again, err := scan(ctx, set, pl.columns, skip, pass2, nil, track.pass(2, false))
+		again, err := scan(ctx, set, pl.columns, skip, pass2, workers, nil, track.pass(2, false))
 		if err != nil {
 			return nil, fmt.Errorf("second pass: %w", err)
 		}
@@ -278,23 +284,44 @@ func (pl *plan) idle(accs []checks.Accumulator) []bool {
 }
 
 // scan reads the data once and feeds every batch to the accumulators:
-// lanes[w][i] is worker w's accumulator of check i (nil: the check sits
-// this pass out). Batch k goes to worker k mod len(lanes), so which
-// batches an accumulator sees, and so every seeded sample, is the same
-// from run to run. skip marks columns no accumulator reads (see
-// source.Set.ScanSome). refuse, when set, sees each batch first, in data
-// order, and may stop the scan with an error; after, when set, sees each
-// batch once it is dealt.
+// lanes[l][i] is lane l's accumulator of check i (nil: the check sits this
+// pass out). Batch k goes to lane k mod len(lanes); worker w serves the
+// lanes l with l mod workers = w, so a lane sees its batches in order
+// whatever the number of workers. skip marks columns no accumulator reads
+// (see source.Set.ScanSome). refuse, when set, sees each batch first, in
+// data order, and may stop the scan with an error; after, when set, sees
+// each batch once it is dealt.
 //
 // scan returns, per check, the error of the first batch (in data order) on
 // which its Observe failed; such a check sees no more batches in that lane
 // and its accumulators must not be merged.
-func scan(ctx context.Context, set *source.Set, columns []string, skip []bool, lanes [][]checks.Accumulator, refuse func(*source.Batch) error, after func(*source.Batch)) ([]error, error) {
+func scan(ctx context.Context, set *source.Set, columns []string, skip []bool, lanes [][]checks.Accumulator, workers int, refuse func(*source.Batch) error, after func(*source.Batch)) ([]error, error) {
 	faults := make([][]fault, len(lanes))
-	for w := range faults {
-		faults[w] = make([]fault, len(lanes[w]))
+	for l := range faults {
+		faults[l] = make([]fault, len(lanes[l]))
 	}
-	deal := func(b *source.Batch) error {
+	type dealt struct {
+		b    *source.Batch
+		lane int
+	}
+	var (
+		feeds []chan dealt
+		wg    sync.WaitGroup
+	)
+	if workers > 1 {
+		feeds = make([]chan dealt, workers)
+		for w := range feeds {
+			feeds[w] = make(chan dealt, 2)
+			wg.Go(func() {
+				for d := range feeds[w] {
+					observe(d.b, lanes[d.lane], faults[d.lane])
+					d.b.Release()
+				}
+			})
+		}
+	}
+	k := 0
+	err := set.ScanSome(ctx, columns, skip, func(b *source.Batch) error {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
@@ -303,57 +330,30 @@ func scan(ctx context.Context, set *source.Set, columns []string, skip []bool, l
 				return err
 			}
 		}
+		lane := k % len(lanes)
+		k++
+		if feeds == nil {
+			observe(b, lanes[lane], faults[lane])
+		} else {
+			feeds[lane%len(feeds)] <- dealt{hold(b), lane}
+		}
+		if after != nil {
+			after(b)
+		}
 		return nil
+	})
+	for _, f := range feeds {
+		close(f)
 	}
-	var err error
-	if len(lanes) == 1 {
-		err = scanSome(ctx, set, columns, skip, func(b *source.Batch) error {
-			if err := deal(b); err != nil {
-				return err
-			}
-			observe(b, lanes[0], faults[0])
-			if after != nil {
-				after(b)
-			}
-			return nil
-		})
-	} else {
-		feeds := make([]chan *source.Batch, len(lanes))
-		var wg sync.WaitGroup
-		for w := range lanes {
-			feeds[w] = make(chan *source.Batch, 2)
-			wg.Go(func() {
-				for b := range feeds[w] {
-					observe(b, lanes[w], faults[w])
-					b.Release()
-				}
-			})
-		}
-		k := 0
-		err = scanSome(ctx, set, columns, skip, func(b *source.Batch) error {
-			if err := deal(b); err != nil {
-				return err
-			}
-			feeds[k%len(feeds)] <- hold(b)
-			k++
-			if after != nil {
-				after(b)
-			}
-			return nil
-		})
-		for _, f := range feeds {
-			close(f)
-		}
-		wg.Wait()
-	}
+	wg.Wait()
 	if err != nil {
 		return nil, err
 	}
 	broken := make([]error, len(lanes[0]))
 	for i := range broken {
 		var first fault
-		for w := range faults {
-			if f := faults[w][i]; f.err != nil && (first.err == nil || f.row < first.row) {
+		for l := range faults {
+			if f := faults[l][i]; f.err != nil && (first.err == nil || f.row < first.row) {
 				first = f
 			}
 		}
@@ -392,9 +392,9 @@ func observe(b *source.Batch, accs []checks.Accumulator, faults []fault) {
 	}
 }
 
-// merge folds every lane's accumulators into lane 0's, check by check, and
-// returns lane 0. A check broken during the scan is not merged; one whose
-// Merge fails is marked broken.
+// merge folds every lane's accumulators into lane 0's, in lane order, check
+// by check on workers goroutines, and returns lane 0. A check broken during
+// the scan is not merged; one whose Merge fails is marked broken.
 func merge(lanes [][]checks.Accumulator, broken []error, workers int) []checks.Accumulator {
 	parallel(len(lanes[0]), workers, func(i int) {
 		if lanes[0][i] == nil || broken[i] != nil {
@@ -402,7 +402,7 @@ func merge(lanes [][]checks.Accumulator, broken []error, workers int) []checks.A
 		}
 		for _, lane := range lanes[1:] {
 			if err := lanes[0][i].Merge(lane[i]); err != nil {
-				broken[i] = fmt.Errorf("combining the workers' results: %w", err)
+				broken[i] = fmt.Errorf("combining the lanes' results: %w", err)
 				return
 			}
 			lane[i] = nil
@@ -433,8 +433,4 @@ func parallel(n, workers int, f func(i int)) {
 		})
 	}
 	wg.Wait()
-}
-
-func scanSome(ctx context.Context, set *source.Set, columns []string, skip []bool, fn func(*source.Batch) error) error {
-	return set.Scan(ctx, columns, fn)
 }

@@ -19,15 +19,18 @@ import (
 // TestNorrisThroughPairRule fits the NIST StRD Norris problem
 // (itl.nist.gov/div898/strd/lls/, lower difficulty) with a linear pair
 // rule, end to end: CSV in batches of 5 rows, the moments streamed and
-// merged batch by batch (relate.Moments), the line from them. The slope,
-// intercept, R² and residual sd the result reports are compared with
-// NIST's certified values (checks/relate/testdata) by the log relative
-// error LRE = -log10(|got - certified| / |certified|). Measured on
-// linux/amd64: b1 14.4, b0 12.4, R² 15 or more, s 11.7 (b0 ≈ -0.26 is
-// the difference of ȳ ≈ 429 and b1 x̄; s comes from SSE = Syy - Sxy²/Sxx,
-// a difference of two numbers near 4.3e6); the test asserts 11.5 for
-// each. McCullough (1998) expects about 9 of good software on the
-// lower-difficulty sets.
+// merged batch by batch (relate.Moments) within each of the engine's
+// lanes and then across lanes, the line from them. The slope, intercept,
+// R² and residual sd the result reports are compared with NIST's certified
+// values (checks/relate/testdata) by the log relative error
+// LRE = -log10(|got - certified| / |certified|). Measured on linux/amd64:
+// b1 14.4, b0 12.8, R² 15 or more, s 10.8 (b0 ≈ -0.26 is the difference
+// of ȳ ≈ 429 and b1 x̄; s comes from SSE = Syy - Sxy²/Sxx, a difference of
+// two numbers near 4.3e6 whose relative rounding error is magnified by
+// 1/(1 - R²) ≈ 1.6e5, so s moves in its 11th digit with the order of the
+// merges: 11.7 when one accumulator saw every batch); the test asserts
+// 10.5 for each. McCullough (1998) expects about 9 of good software on
+// the lower-difficulty sets.
 func TestNorrisThroughPairRule(t *testing.T) {
 	dir := t.TempDir()
 	x, y := norris(t)
@@ -76,8 +79,8 @@ pairs:
 		for q, v := range got {
 			c := cert[q]
 			lre := -math.Log10(math.Abs(v-c) / math.Abs(c))
-			if math.IsNaN(lre) || lre < 11.5 {
-				t.Errorf("%s %s: %.15g, certified %.15g, LRE %.1f, want 11.5 or more", r.ID, q, v, c, lre)
+			if math.IsNaN(lre) || lre < 10.5 {
+				t.Errorf("%s %s: %.15g, certified %.15g, LRE %.1f, want 10.5 or more", r.ID, q, v, c, lre)
 			}
 			t.Logf("%s %s LRE %.1f", r.ID, q, min(lre, 15))
 		}
