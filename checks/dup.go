@@ -6,11 +6,14 @@ import (
 	"fmt"
 	"hash/maphash"
 	"math"
+	"math/bits"
+	"math/rand/v2"
 	"slices"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 
+	"github.com/assay-project/assay/checks/internal/order"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
@@ -25,12 +28,19 @@ import (
 // strings and unparsed text), so equal bytes mean equal values. Floats are
 // written as their bits with -0 as 0 and every NaN as one value.
 //
-// The first pass keeps only how often each 64-bit hash of those bytes
-// occurred (HashCounts). The second pass looks again at the rows whose hash
-// occurred more than once, groups them by their actual bytes, so a hash
-// collision cannot make a false duplicate, and counts exactly
-// (DuplicateState), keeping per duplicated value its bytes, its count and
-// its first MaxRowsListed rows.
+// Each row gets a 64-bit hash: of its bytes by default; when the rule has
+// one column of integers, numbers or times, a row holding a value is hashed
+// from the value's 64 bits alone by a seeded bijective mixer (see mix13),
+// without writing bytes, so two different values never share a hash there.
+// Either way the hash is a function of the row's cells, the same in both
+// passes and in every batch.
+//
+// The first pass keeps the hashes themselves, 8 bytes a row (HashCounts),
+// and sorts them to find those that occur more than once (findRuns). The
+// second pass looks again at the rows whose hash occurred more than once,
+// groups them by their actual bytes, so a hash collision cannot make a
+// false duplicate, and counts exactly (DuplicateState), keeping per
+// duplicated value its bytes, its count and its first MaxRowsListed rows.
 type dupCheck struct {
 	rule *rules.Rule
 	env  *Env
@@ -40,8 +50,13 @@ type dupCheck struct {
 	key bool
 	// noun names what is counted: "values" or "rows".
 	noun string
-	// hash hashes a row's bytes; a test may put a poorer one in its place.
+	// words is set when the rule has one column of integers, numbers or
+	// times: a row holding a value is then hashed by word.
+	words bool
+	// hash hashes a row's bytes, word a value's 64 bits; a test may put
+	// poorer ones in their place.
 	hash func([]byte) uint64
+	word func(uint64) uint64
 }
 
 func newDupCheck(r *rules.Rule, env *Env, key bool) (*dupCheck, error) {
@@ -59,45 +74,140 @@ func newDupCheck(r *rules.Rule, env *Env, key bool) (*dupCheck, error) {
 		}
 		c.cols = append(c.cols, col)
 	}
+	if len(c.cols) == 1 {
+		switch c.cols[0].class {
+		case classInteger, classNumber, classTime:
+			c.words = true
+		}
+	}
 	seed := maphash.MakeSeed()
 	c.hash = func(b []byte) uint64 { return maphash.Bytes(seed, b) }
+	wordSeed := rand.Uint64()
+	c.word = func(x uint64) uint64 { return mix13(x ^ wordSeed) }
 	return c, nil
+}
+
+// mix13 is Stafford's "Mix13" 64-bit finaliser (David Stafford 2011,
+// "Better Bit Mixing - Improving on MurmurHash3's 64-bit Finalizer"), the
+// output function of SplitMix64 (Steele, Lea & Flood 2014, "Fast Splittable
+// Pseudorandom Number Generators", OOPSLA): xor-shifts by 30, 27 and 31
+// around multiplications by two odd constants. Each step is invertible, so
+// it is a bijection of uint64; every input bit flips each output bit with
+// probability close to 1/2.
+func mix13(x uint64) uint64 {
+	x ^= x >> 30
+	x *= 0xbf58476d1ce4e5b9
+	x ^= x >> 27
+	x *= 0x94d049bb133111eb
+	return x ^ x>>31
 }
 
 func (c *dupCheck) Rule() *rules.Rule { return c.rule }
 
 func (c *dupCheck) NewAccumulator() Accumulator {
-	return &HashAccumulator{check: c, HashCounts: HashCounts{Hashes: map[uint64]int64{}}}
+	return &HashAccumulator{check: c}
 }
 
-// eachRow calls f with the bytes of every row of b that counts, and the
-// row's index.
-func (c *dupCheck) eachRow(b *source.Batch, buf []byte, f func(i int, key []byte)) ([]byte, error) {
-	writers := make([]cellWriter, len(c.cols))
+// batchRows is one batch as a unique or key rule reads it.
+type batchRows struct {
+	n int
+	// first is the rule's first column.
+	first arrow.Array
+	// counted tells the rows that count: unique, those holding a value in
+	// the column; key, every row (the zero valid).
+	counted valid
+	// writers writes each column's cell of a row.
+	writers []cellWriter
+}
+
+// rows reads batch b.
+func (c *dupCheck) rows(b *source.Batch) (batchRows, error) {
+	r := batchRows{n: int(b.Record.NumRows()), writers: make([]cellWriter, len(c.cols))}
 	for k, col := range c.cols {
 		arr, err := col.in(b)
 		if err != nil {
-			return buf, err
+			return r, err
 		}
 		var invalid map[int]string
 		if c.key {
 			invalid = invalidTexts(b, col.index)
 		}
-		writers[k] = writerFor(arr, invalid)
-	}
-	first := b.Record.Column(c.cols[0].index)
-	v := validOf(first)
-	for i := range int(b.Record.NumRows()) {
-		if !c.key && !v.at(i) {
-			continue
+		r.writers[k] = writerFor(arr, invalid)
+		if k == 0 {
+			r.first = arr
 		}
-		buf = buf[:0]
-		for _, w := range writers {
-			buf = w(buf, i)
-		}
-		f(i, buf)
 	}
-	return buf, nil
+	if !c.key {
+		r.counted = validOf(r.first)
+	}
+	return r, nil
+}
+
+// count is how many rows count.
+func (r *batchRows) count() int {
+	if r.counted.bits == nil {
+		return r.n
+	}
+	return r.n - r.first.NullN()
+}
+
+// key writes the bytes of row i into buf, overwriting it.
+func (r *batchRows) key(buf []byte, i int) []byte {
+	buf = buf[:0]
+	for _, w := range r.writers {
+		buf = w(buf, i)
+	}
+	return buf
+}
+
+// hashScratch is what hashing reuses from one batch to the next.
+type hashScratch struct {
+	buf    []byte
+	ints   []int64
+	floats []float64
+}
+
+// appendHashes appends to dst the hash of every row of r that counts, in
+// row order.
+func (c *dupCheck) appendHashes(dst []uint64, r *batchRows, s *hashScratch) []uint64 {
+	if !c.words {
+		for i := range r.n {
+			if r.counted.at(i) {
+				s.buf = r.key(s.buf, i)
+				dst = append(dst, c.hash(s.buf))
+			}
+		}
+		return dst
+	}
+	start := len(dst)
+	if c.cols[0].class == classNumber {
+		for i, x := range float64s(r.first, &s.floats) {
+			if r.counted.at(i) {
+				dst = append(dst, floatKey(x))
+			}
+		}
+	} else {
+		for i, x := range int64s(r.first, &s.ints) {
+			if r.counted.at(i) {
+				dst = append(dst, uint64(x))
+			}
+		}
+	}
+	for j := start; j < len(dst); j++ {
+		dst[j] = c.word(dst[j])
+	}
+	// A key counts the rows without a value too (one per row, so row i is
+	// at start+i); they are hashed by their bytes.
+	if c.key && r.first.NullN() > 0 {
+		v := validOf(r.first)
+		for i := range r.n {
+			if !v.at(i) {
+				s.buf = r.key(s.buf, i)
+				dst[start+i] = c.hash(s.buf)
+			}
+		}
+	}
+	return dst
 }
 
 // cellWriter appends the bytes of row i of one column to buf.
@@ -164,54 +274,81 @@ func invalidTexts(b *source.Batch, col int) map[int]string {
 
 // HashCounts is the first-pass state of unique and key: Of is how many
 // values (unique: non-null values) or rows (key) were hashed, the measure's
-// denominator; Hashes counts each 64-bit hash of their bytes.
+// denominator; Hashes holds their 64-bit hashes, Of in all, in chunks (one
+// or more batches' worth each) in no particular order. The hashes that
+// occur more than once are what the second pass looks at again.
 type HashCounts struct {
 	Of     int64
-	Hashes map[uint64]int64
+	Hashes [][]uint64
 }
 
 // HashAccumulator is the first pass of a unique or key rule.
 type HashAccumulator struct {
 	HashCounts
-	check *dupCheck
-	buf   []byte
+	check   *dupCheck
+	scratch hashScratch
+	// runs caches what findRuns found in Hashes, for Finish and SecondPass;
+	// nil until one of them asks, and again after a Merge.
+	runs *hashRuns
 }
 
-// Observe counts the hashes of the batch's values or key combinations.
+// chunkMax is the largest chunk Observe starts: one engine batch of hashes.
+const chunkMax = 1 << 16
+
+// Observe appends the hashes of the batch's values or key combinations to
+// the last chunk when it has room for them, else to a new chunk holding at
+// least as many hashes as are kept already, up to chunkMax: chunks never
+// grow by copying, and small accumulators (the groups of a segmented rule)
+// keep few.
 func (a *HashAccumulator) Observe(b *source.Batch) error {
-	var err error
-	a.buf, err = a.check.eachRow(b, a.buf, func(_ int, key []byte) {
-		a.Of++
-		a.Hashes[a.check.hash(key)]++
-	})
-	return err
+	r, err := a.check.rows(b)
+	if err != nil {
+		return err
+	}
+	n := r.count()
+	last := len(a.Hashes) - 1
+	if last < 0 || cap(a.Hashes[last])-len(a.Hashes[last]) < n {
+		size := max(n, min(max(int(a.Of), 64), chunkMax))
+		a.Hashes = append(a.Hashes, make([]uint64, 0, size))
+		last++
+	}
+	a.Hashes[last] = a.check.appendHashes(a.Hashes[last], &r, &a.scratch)
+	a.Of += int64(n)
+	a.runs = nil
+	return nil
 }
 
-// Merge adds other's hash counts to a.
+// Merge takes other's chunks of hashes, without copying them.
 func (a *HashAccumulator) Merge(other Accumulator) error {
 	o, ok := other.(*HashAccumulator)
 	if !ok || o.check != a.check {
 		return errMerge(a.check.rule, a, other)
 	}
 	a.Of += o.Of
-	for h, n := range o.Hashes {
-		a.Hashes[h] += n
+	// Clip the chunks taken so that a later Observe never writes into
+	// the room left in other's last one.
+	for _, h := range o.Hashes {
+		a.Hashes = append(a.Hashes, slices.Clip(h))
 	}
+	a.runs = nil
 	return nil
+}
+
+// found returns what the hashes show, finding it once.
+func (a *HashAccumulator) found() *hashRuns {
+	if a.runs == nil {
+		a.runs = findRuns(a.Hashes)
+	}
+	return a.runs
 }
 
 // Finish judges the duplicates as the hashes count them, without listing
 // rows: the engine runs the second pass, whose Finish is exact. A hash
-// collision can only make this count too high.
+// collision can only make this count too high. It reorders the hashes
+// within each chunk.
 func (a *HashAccumulator) Finish() report.Result {
-	var s DuplicateState
-	s.Of = a.Of
-	for _, n := range a.Hashes {
-		if n > 1 {
-			s.Rows += n
-			s.Groups++
-		}
-	}
+	runs := a.found()
+	s := DuplicateState{Of: a.Of, Rows: runs.rows, Groups: runs.groups}
 	res := s.result(a.check)
 	res.Message += " (counted by hash; the second pass lists the rows)"
 	return res
@@ -220,18 +357,157 @@ func (a *HashAccumulator) Finish() report.Result {
 // SecondPass returns the accumulator that groups, by their actual bytes,
 // the rows whose hash occurred more than once.
 func (a *HashAccumulator) SecondPass() Accumulator {
-	suspects := make(map[uint64]struct{})
-	for h, n := range a.Hashes {
-		if n > 1 {
-			suspects[h] = struct{}{}
-		}
-	}
 	return &DuplicateAccumulator{
 		DuplicateState: DuplicateState{Of: a.Of},
 		check:          a.check,
-		suspects:       suspects,
+		suspects:       &a.found().suspects,
 		groups:         map[string]*dupGroup{},
 	}
+}
+
+// hashRuns is what the first pass learns from its hashes: rows hashes lie
+// in groups runs of equal hashes longer than one, the suspects.
+type hashRuns struct {
+	rows, groups int64
+	suspects     suspectSet
+}
+
+// rangeBits sets the size of the ranges findRuns sorts one at a time:
+// about 2^rangeBits hashes, 128 KiB, which a core's cache holds.
+const rangeBits = 14
+
+// findRuns sorts the hashes and reads off the runs of equal ones, without
+// a second copy of them all. It cuts the hash space into 2^b ranges by
+// their top b bits, b chosen so that a range holds about 2^rangeBits of n
+// uniform hashes; partitions each chunk in place by range with one stable
+// counting pass (Knuth 1998, TAOCP vol. 3, §5.2.5; scratch of one chunk);
+// then, range by range, gathers that range's hashes from every chunk,
+// sorts them with order.SortUint64 and counts their runs. Ranges come in
+// increasing order, so the suspects come out sorted. Time O(n), memory
+// beyond the hashes one chunk and two ranges (a range holds every hash
+// when a poor hash puts them all in one). The chunks are left partitioned.
+func findRuns(chunks [][]uint64) *hashRuns {
+	n, longest := 0, 0
+	for _, ch := range chunks {
+		n += len(ch)
+		longest = max(longest, len(ch))
+	}
+	b := min(max(bits.Len(uint(n))-rangeBits, 0), 16)
+	// top is the range of a hash: its top b bits (0 when b is 0, a shift
+	// by 64 giving 0).
+	top := func(h uint64) uint64 { return h >> (64 - b) }
+	if b > 0 {
+		scratch := make([]uint64, longest)
+		start := make([]int, 1<<b)
+		for _, ch := range chunks {
+			clear(start)
+			for _, h := range ch {
+				start[top(h)]++
+			}
+			next := 0
+			for k, m := range start {
+				start[k] = next
+				next += m
+			}
+			copy(scratch, ch)
+			for _, h := range scratch[:len(ch)] {
+				t := top(h)
+				ch[start[t]] = h
+				start[t]++
+			}
+		}
+	}
+	runs := &hashRuns{}
+	var suspects []uint64
+	at := make([]int, len(chunks))
+	var part, scratch []uint64
+	for r := range uint64(1) << b {
+		part = part[:0]
+		for k, ch := range chunks {
+			j := at[k]
+			for j < len(ch) && top(ch[j]) == r {
+				j++
+			}
+			part = append(part, ch[at[k]:j]...)
+			at[k] = j
+		}
+		if len(scratch) < len(part) {
+			scratch = make([]uint64, len(part))
+		}
+		order.SortUint64(part, scratch)
+		for i := 0; i < len(part); {
+			j := i + 1
+			for j < len(part) && part[j] == part[i] {
+				j++
+			}
+			if j-i > 1 {
+				runs.rows += int64(j - i)
+				runs.groups++
+				suspects = append(suspects, part[i])
+			}
+			i = j
+		}
+	}
+	runs.suspects = newSuspectSet(suspects)
+	return runs
+}
+
+// suspectSet is a sorted set of hashes with two indexes by their top bits.
+// The hashes whose top b bits are t are hashes[start[t]:start[t+1]], 2^b
+// being between half the set's size and its size; bit u of seen is set
+// when some hash has u for its top b+4 bits. A hash not in the set finds
+// its bit clear 15 times in 16 or more, so most rows, which are not
+// suspects, cost one bit test that the branch predictor gets right; the
+// others read two index entries and compare one or two hashes, the few
+// runs that a poor hash makes long being binary-searched. Memory: 8 bytes
+// a hash and at most 10 of index.
+type suspectSet struct {
+	hashes []uint64
+	start  []int
+	seen   []uint64
+	shift  uint // 64-b
+}
+
+// seenBits is how many more top bits seen tells apart than start.
+const seenBits = 4
+
+func newSuspectSet(sorted []uint64) suspectSet {
+	b := max(bits.Len(uint(len(sorted)))-1, 0)
+	s := suspectSet{
+		hashes: sorted,
+		start:  make([]int, 1<<b+1),
+		seen:   make([]uint64, (1<<(b+seenBits)+63)/64),
+		shift:  uint(64 - b),
+	}
+	for _, h := range sorted {
+		s.start[h>>s.shift+1]++
+		u := h >> (s.shift - seenBits)
+		s.seen[u/64] |= 1 << (u % 64)
+	}
+	for t := 1; t < len(s.start); t++ {
+		s.start[t] += s.start[t-1]
+	}
+	return s
+}
+
+// has reports whether h is in the set.
+func (s *suspectSet) has(h uint64) bool {
+	u := h >> (s.shift - seenBits)
+	if s.seen[u/64]&(1<<(u%64)) == 0 {
+		return false
+	}
+	t := h >> s.shift
+	lo, hi := s.start[t], s.start[t+1]
+	if hi-lo > 8 {
+		_, ok := slices.BinarySearch(s.hashes[lo:hi], h)
+		return ok
+	}
+	for ; lo < hi; lo++ {
+		if s.hashes[lo] >= h {
+			return s.hashes[lo] == h
+		}
+	}
+	return false
 }
 
 // DuplicateState is the exact outcome of unique and key: of Of values or
@@ -247,9 +523,10 @@ type DuplicateState struct {
 type DuplicateAccumulator struct {
 	DuplicateState
 	check    *dupCheck
-	suspects map[uint64]struct{} // shared, read only
+	suspects *suspectSet // shared, read only
 	groups   map[string]*dupGroup
-	buf      []byte
+	scratch  hashScratch
+	hashes   []uint64 // the hashes of one batch
 }
 
 // dupGroup is the rows sharing one value's bytes.
@@ -267,11 +544,7 @@ type rowRef struct {
 // Observe groups the batch's suspect rows by their bytes.
 func (a *DuplicateAccumulator) Observe(b *source.Batch) error {
 	limit := a.check.env.MaxRowsListed
-	var err error
-	a.buf, err = a.check.eachRow(b, a.buf, func(i int, key []byte) {
-		if _, ok := a.suspects[a.check.hash(key)]; !ok {
-			return
-		}
+	return a.eachSuspect(b, func(i int, key []byte) {
 		g := a.groups[string(key)]
 		if g == nil {
 			g = &dupGroup{}
@@ -283,7 +556,29 @@ func (a *DuplicateAccumulator) Observe(b *source.Batch) error {
 			g.rows = append(g.rows, rowRef{row: b.Row(i), line: b.Line(i), source: b.Source})
 		}
 	})
-	return err
+}
+
+// eachSuspect calls f with the index and the bytes of every row of b that
+// counts and whose hash is a suspect. The bytes are overwritten by the next
+// call.
+func (a *DuplicateAccumulator) eachSuspect(b *source.Batch, f func(i int, key []byte)) error {
+	r, err := a.check.rows(b)
+	if err != nil || len(a.suspects.hashes) == 0 {
+		return err
+	}
+	a.hashes = a.check.appendHashes(slices.Grow(a.hashes[:0], r.count()), &r, &a.scratch)
+	j := 0
+	for i := range r.n {
+		if !r.counted.at(i) {
+			continue
+		}
+		if a.suspects.has(a.hashes[j]) {
+			a.scratch.buf = r.key(a.scratch.buf, i)
+			f(i, a.scratch.buf)
+		}
+		j++
+	}
+	return nil
 }
 
 // count updates Rows and Groups for a group of had rows that gains more.

@@ -84,14 +84,9 @@ func (a *RowAccumulator) Reject(b *source.Batch, bad []bool) error {
 // first of each group as well as the others: the rule cannot tell which of
 // them is the right one.
 func (a *DuplicateAccumulator) Reject(b *source.Batch, bad []bool) error {
-	var err error
-	a.buf, err = a.check.eachRow(b, a.buf, func(i int, key []byte) {
-		if _, ok := a.suspects[a.check.hash(key)]; !ok {
-			return
-		}
+	return a.eachSuspect(b, func(i int, key []byte) {
 		if g := a.groups[string(key)]; g != nil && g.count > 1 {
 			bad[i] = true
 		}
 	})
-	return err
 }

@@ -74,15 +74,12 @@ func TestKeyDecode(t *testing.T) {
 	release(t, b)
 	c := compile(t, newRule(rules.KeySpec{}, atMost(0), "s", "x", "b", "d"), envOf(b, 10))
 	d := c.(*dupCheck)
+	r, err := d.rows(b)
+	if err != nil {
+		t.Fatal(err)
+	}
 	for i := range 2 {
-		var got map[string]any
-		if _, err := d.eachRow(b, nil, func(j int, key []byte) {
-			if j == i {
-				got = d.decode(string(key))
-			}
-		}); err != nil {
-			t.Fatal(err)
-		}
+		got := d.decode(string(r.key(nil, i)))
 		want := RowAt(d.env, b, i, []int{0, 1, 2, 3}).Values
 		if !reflect.DeepEqual(got, want) {
 			t.Errorf("row %d decodes to %v, want %v", i, got, want)
