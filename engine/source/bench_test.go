@@ -216,11 +216,12 @@ func reportRates(b *testing.B, rows int64) {
 // a 10000-row sample for inference) and a full Scan of all columns.
 func BenchmarkCSVSource(b *testing.B) {
 	path, _ := benchFiles(b)
-	benchSource(b, path)
+	benchSource(b, path, benchSchema)
 }
 
-// benchSource opens path and scans all its columns, b.N times.
-func benchSource(b *testing.B, path string) {
+// benchSource opens path and scans all its columns, b.N times, checking
+// the schema against want unless nil.
+func benchSource(b *testing.B, path string, want *arrow.Schema) {
 	b.Helper()
 	b.SetBytes(fileSize(b, path))
 	b.ReportAllocs()
@@ -236,8 +237,8 @@ func benchSource(b *testing.B, path string) {
 			b.Fatal(err)
 		}
 		s.Close()
-		if got := s.Schema(); !got.Equal(benchSchema) {
-			b.Fatalf("schema %v; want %v", got, benchSchema)
+		if got := s.Schema(); want != nil && !got.Equal(want) {
+			b.Fatalf("schema %v; want %v", got, want)
 		}
 	}
 	reportRates(b, rows)
@@ -338,7 +339,50 @@ func BenchmarkCSVArrowReader(b *testing.B) {
 // file (Snappy, row groups of 131072 rows); bytes are those of the file.
 func BenchmarkParquetSource(b *testing.B) {
 	_, path := benchFiles(b)
-	benchSource(b, path)
+	benchSource(b, path, benchSchema)
+}
+
+// refParquet is the Parquet file of the repository's benchmark at one
+// million rows (bench/run.sh 1000000 makes it).
+const refParquet = "../../bench/out/data/ref-1000000-s1.parquet"
+
+// BenchmarkParquetRef scans all columns of refParquet (12 columns, one
+// row group, every column dictionary-encoded), skipping when it has not
+// been made.
+func BenchmarkParquetRef(b *testing.B) {
+	if _, err := os.Stat(refParquet); err != nil {
+		b.Skipf("no %s (make it with bench/run.sh 1000000): %v", refParquet, err)
+	}
+	benchSource(b, refParquet, nil)
+}
+
+// BenchmarkParquetRefSome scans refParquet with ScanSome reading two of
+// its columns (a number and a string) and skipping the other ten, as the
+// engine's second pass does.
+func BenchmarkParquetRefSome(b *testing.B) {
+	if _, err := os.Stat(refParquet); err != nil {
+		b.Skipf("no %s (make it with bench/run.sh 1000000): %v", refParquet, err)
+	}
+	b.SetBytes(fileSize(b, refParquet))
+	b.ReportAllocs()
+	s, err := Open([]string{refParquet}, Options{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer s.Close()
+	skip := make([]bool, s.Schema().NumFields())
+	for i, f := range s.Schema().Fields() {
+		skip[i] = f.Name != "temp_c" && f.Name != "device"
+	}
+	var rows int64
+	for b.Loop() {
+		rows = 0
+		err := s.ScanSome(context.Background(), nil, skip, func(bt *Batch) error { rows += bt.Record.NumRows(); return nil })
+		if err != nil {
+			b.Fatal(err)
+		}
+	}
+	reportRates(b, rows)
 }
 
 func fileSize(b *testing.B, path string) int64 {

@@ -28,17 +28,23 @@ func (fx fixture) record(t *testing.T) arrow.RecordBatch {
 }
 
 // writeParquet writes fx as Parquet with row groups of at most groupRows
-// rows.
+// rows, storing its Arrow schema.
 func writeParquet(t *testing.T, path string, fx fixture, groupRows int64) {
 	t.Helper()
 	rec := fx.record(t)
 	defer rec.Release()
+	writeRecord(t, path, rec, parquet.NewWriterProperties(parquet.WithMaxRowGroupLength(groupRows)),
+		pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
+}
+
+// writeRecord writes rec as Parquet with the given properties.
+func writeRecord(t *testing.T, path string, rec arrow.RecordBatch, props *parquet.WriterProperties, arrowProps pqarrow.ArrowWriterProperties) {
+	t.Helper()
 	f, err := os.Create(path)
 	if err != nil {
 		t.Fatal(err)
 	}
-	props := parquet.NewWriterProperties(parquet.WithMaxRowGroupLength(groupRows))
-	w, err := pqarrow.NewFileWriter(rec.Schema(), f, props, pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
+	w, err := pqarrow.NewFileWriter(rec.Schema(), f, props, arrowProps)
 	if err != nil {
 		t.Fatal(err)
 	}

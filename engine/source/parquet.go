@@ -105,49 +105,111 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 	if len(read) == 0 {
 		return total, emitRows(ctx, i, sc, first, total, int64(s.opts.BatchRows))
 	}
-	props := pqarrow.ArrowReadProperties{BatchSize: int64(s.opts.BatchRows)}
-	fr, err := pqarrow.NewFileReader(r, props, s.opts.Allocator)
+	batchRows := int64(s.opts.BatchRows)
+	fr, err := pqarrow.NewFileReader(r, pqarrow.ArrowReadProperties{BatchSize: batchRows}, s.opts.Allocator)
 	if err != nil {
 		return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet schema: " + err.Error()}
 	}
-	var cols []int
+	// Flat columns are read by flatColumn, the others by pqarrow's record
+	// reader; both deliver batches of batchRows rows, the last one of the
+	// file shorter, so their arrays line up.
+	flat := make([]*flatColumn, len(sc.proj))
+	var cols, viaArrow []int // leaves and batch columns of the record reader
 	for _, k := range read {
-		cols = leaves(cols, &fr.Manifest.Fields[in.pos[sc.proj[k]]])
+		j := in.pos[sc.proj[k]]
+		field := &fr.Manifest.Fields[j]
+		if field.IsLeaf() {
+			flat[k] = newFlatColumn(r, field.ColIndex, in.types[j], s.opts.Allocator)
+		}
+		if flat[k] == nil {
+			cols = leaves(cols, field)
+			viaArrow = append(viaArrow, k)
+		}
 	}
-	rr, err := fr.GetRecordReader(ctx, cols, nil)
-	if err != nil {
-		return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet columns: " + err.Error()}
+	defer func() {
+		for _, fc := range flat {
+			if fc != nil {
+				fc.close()
+			}
+		}
+	}()
+	var rr pqarrow.RecordReader
+	if len(viaArrow) > 0 {
+		rr, err = fr.GetRecordReader(ctx, cols, nil)
+		if err != nil {
+			return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet columns: " + err.Error()}
+		}
+		defer rr.Release()
 	}
-	defer rr.Release()
-	// The reader's columns come in the order of read, as cols lists them.
+	decodeErr := func(rows int64, err error) error {
+		return &Error{Path: in.name, Row: rows + 1, Err: err, Msg: fmt.Sprintf(
+			"cannot decode the Parquet data after row %d: %v (the file is damaged; copy it again)", rows, err)}
+	}
 	stored := make([]arrow.Array, len(sc.proj))
 	var rows int64
-	for {
-		more, err := guard(func() (bool, error) { return rr.Next(), nil })
-		if err != nil {
-			return rows, &Error{Path: in.name, Row: rows + 1, Err: err, Msg: fmt.Sprintf(
-				"cannot decode the Parquet data after row %d: %v (the file is damaged; copy it again)", rows, err)}
-		}
-		if !more {
-			break
-		}
+	for rows < total {
 		if err := ctx.Err(); err != nil {
 			return rows, err
 		}
-		rec := rr.RecordBatch()
-		for j, k := range read {
-			stored[k] = rec.Column(j)
+		n := min(batchRows, total-rows)
+		if rr != nil {
+			more, err := guard(func() (bool, error) { return rr.Next(), nil })
+			if err != nil {
+				return rows, decodeErr(rows, err)
+			}
+			if !more {
+				break
+			}
+			rec := rr.RecordBatch()
+			if rec.NumRows() != n {
+				return rows, decodeErr(rows, fmt.Errorf("a batch of %d rows where %d were due", rec.NumRows(), n))
+			}
+			for j, k := range viaArrow {
+				stored[k] = rec.Column(j)
+			}
 		}
-		if err := s.deliver(in, i, sc, stored, rec.NumRows(), first+rows); err != nil {
+		err := s.readFlat(flat, stored, int(n))
+		if err == nil {
+			err = s.deliver(in, i, sc, stored, n, first+rows)
+		} else {
+			err = decodeErr(rows, err)
+		}
+		for k, fc := range flat {
+			if fc != nil && stored[k] != nil {
+				stored[k].Release()
+				stored[k] = nil
+			}
+		}
+		if err != nil {
 			return rows, err
 		}
-		rows += rec.NumRows()
+		rows += n
 	}
-	if err := rr.Err(); err != nil {
-		return rows, &Error{Path: in.name, Row: rows + 1, Err: err, Msg: fmt.Sprintf(
-			"cannot read the Parquet data after row %d: %v (the file is damaged; copy it again)", rows, err)}
+	if rr != nil {
+		if err := rr.Err(); err != nil {
+			return rows, &Error{Path: in.name, Row: rows + 1, Err: err, Msg: fmt.Sprintf(
+				"cannot read the Parquet data after row %d: %v (the file is damaged; copy it again)", rows, err)}
+		}
+	}
+	if rows < total {
+		return rows, decodeErr(rows, fmt.Errorf("the data ends after %d of the %d rows the footer declares", rows, total))
 	}
 	return rows, nil
+}
+
+// readFlat reads the next n rows of the flat columns into stored.
+func (s *Set) readFlat(flat []*flatColumn, stored []arrow.Array, n int) error {
+	for k, fc := range flat {
+		if fc == nil {
+			continue
+		}
+		a, err := fc.read(n)
+		if err != nil {
+			return err
+		}
+		stored[k] = a
+	}
+	return nil
 }
 
 // guard calls step, which runs arrow-go's decoders. They can panic on a

@@ -1,0 +1,344 @@
+package source
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"unsafe"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/bitutil"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/file"
+)
+
+// flatColumn reads one flat Parquet column straight into Arrow buffers of
+// exactly a batch's size, one row group after another.
+//
+// pqarrow's record reader, which the other columns go through, reserves
+// room for the next power of two above the batch size (twice the batch
+// when BatchRows is itself a power of two, as the default is) and grows a
+// builder for text; arrays made here hold no slack. A flat column is one
+// without repetition and with at most one definition level (required or
+// optional), whose physical values are its Arrow values: INT32 as int32 or
+// date32, INT64 as int64 or a timestamp, FLOAT, DOUBLE, BOOLEAN, and
+// BYTE_ARRAY as string or binary. These are the types for which pqarrow
+// copies or references the values unchanged, so both readers give the same
+// arrays.
+type flatColumn struct {
+	r    *file.Reader
+	leaf int            // the column's leaf index in the file
+	typ  arrow.DataType // as pqarrow maps it
+	mem  memory.Allocator
+	opt  bool // optional: values come with definition levels
+
+	group int                    // next row group to open
+	cr    file.ColumnChunkReader // of the current row group; nil before the first
+	left  int64                  // rows of the current row group not read yet
+
+	defs  []int16             // definition levels of a batch, reused
+	bools []bool              // boolean values of a batch, reused
+	texts []parquet.ByteArray // byte-array values of one page read, reused
+	dlen  int                 // text bytes of the previous batch, a size guess
+}
+
+// newFlatColumn returns the reader of leaf column leaf of r, read as typ,
+// or nil when the column is not flat.
+func newFlatColumn(r *file.Reader, leaf int, typ arrow.DataType, mem memory.Allocator) *flatColumn {
+	descr := r.MetaData().Schema.Column(leaf)
+	if descr.MaxRepetitionLevel() != 0 || descr.MaxDefinitionLevel() > 1 {
+		return nil
+	}
+	ok := false
+	switch descr.PhysicalType() {
+	case parquet.Types.Int32:
+		ok = typ.ID() == arrow.INT32 || typ.ID() == arrow.DATE32
+	case parquet.Types.Int64:
+		ok = typ.ID() == arrow.INT64 || typ.ID() == arrow.TIMESTAMP
+	case parquet.Types.Float:
+		ok = typ.ID() == arrow.FLOAT32
+	case parquet.Types.Double:
+		ok = typ.ID() == arrow.FLOAT64
+	case parquet.Types.Boolean:
+		ok = typ.ID() == arrow.BOOL
+	case parquet.Types.ByteArray:
+		ok = typ.ID() == arrow.STRING || typ.ID() == arrow.BINARY
+	}
+	if !ok {
+		return nil
+	}
+	return &flatColumn{r: r, leaf: leaf, typ: typ, mem: mem, opt: descr.MaxDefinitionLevel() == 1}
+}
+
+// close lets go of the current row group's column chunk.
+func (fc *flatColumn) close() {
+	if fc.cr != nil {
+		_ = fc.cr.Close()
+		fc.cr = nil
+	}
+}
+
+// errShort is a column chunk with fewer values than its row group has rows.
+var errShort = errors.New("a column chunk holds fewer values than its row group has rows")
+
+// advance makes sure the current row group has rows left, opening the next
+// one when it has none.
+func (fc *flatColumn) advance() error {
+	for fc.left == 0 {
+		fc.close()
+		if fc.group == fc.r.NumRowGroups() {
+			return errShort
+		}
+		rg := fc.r.RowGroup(fc.group)
+		cr, err := guard(func() (file.ColumnChunkReader, error) { return rg.Column(fc.leaf) })
+		if err != nil {
+			return err
+		}
+		fc.cr, fc.left = cr, rg.NumRows()
+		fc.group++
+	}
+	return nil
+}
+
+// read returns the next n values of the column as an array of fc.typ; the
+// caller owns it.
+func (fc *flatColumn) read(n int) (arrow.Array, error) {
+	var valid *memory.Buffer
+	var bits []byte
+	if fc.opt {
+		valid = zeroed(fc.mem, int(bitutil.BytesForBits(int64(n))))
+		bits = valid.Bytes()
+		if cap(fc.defs) < n {
+			fc.defs = make([]int16, n)
+		}
+	}
+	var buffers []*memory.Buffer
+	var nulls int
+	var err error
+	switch fc.typ.ID() {
+	case arrow.INT32, arrow.DATE32:
+		buffers, nulls, err = readFixed(fc, n, bits, func(cr file.ColumnChunkReader, m int64, v []int32, d []int16) (int64, int, error) {
+			return cr.(*file.Int32ColumnChunkReader).ReadBatch(m, v, d, nil)
+		})
+	case arrow.INT64, arrow.TIMESTAMP:
+		buffers, nulls, err = readFixed(fc, n, bits, func(cr file.ColumnChunkReader, m int64, v []int64, d []int16) (int64, int, error) {
+			return cr.(*file.Int64ColumnChunkReader).ReadBatch(m, v, d, nil)
+		})
+	case arrow.FLOAT32:
+		buffers, nulls, err = readFixed(fc, n, bits, func(cr file.ColumnChunkReader, m int64, v []float32, d []int16) (int64, int, error) {
+			return cr.(*file.Float32ColumnChunkReader).ReadBatch(m, v, d, nil)
+		})
+	case arrow.FLOAT64:
+		buffers, nulls, err = readFixed(fc, n, bits, func(cr file.ColumnChunkReader, m int64, v []float64, d []int16) (int64, int, error) {
+			return cr.(*file.Float64ColumnChunkReader).ReadBatch(m, v, d, nil)
+		})
+	case arrow.BOOL:
+		buffers, nulls, err = fc.readBools(n, bits)
+	default:
+		buffers, nulls, err = fc.readTexts(n, bits)
+	}
+	if err != nil {
+		if valid != nil {
+			valid.Release()
+		}
+		return nil, err
+	}
+	if nulls == 0 && valid != nil {
+		valid.Release()
+		valid = nil
+	}
+	buffers = append([]*memory.Buffer{valid}, buffers...)
+	data := array.NewData(fc.typ, n, buffers, nil, nulls, 0)
+	arr := array.MakeFromData(data)
+	data.Release()
+	for _, b := range buffers {
+		if b != nil {
+			b.Release()
+		}
+	}
+	return arr, nil
+}
+
+// fixed are the Go types of fixed-width Parquet values.
+type fixed interface {
+	int32 | int64 | float32 | float64
+}
+
+// readFixed reads n fixed-width values into a buffer of exactly n values.
+// It returns the values buffer and the null count.
+func readFixed[T fixed](fc *flatColumn, n int, bits []byte, readBatch func(file.ColumnChunkReader, int64, []T, []int16) (int64, int, error)) ([]*memory.Buffer, int, error) {
+	var zero T
+	buf := memory.NewResizableBuffer(fc.mem)
+	buf.Resize(n * int(unsafe.Sizeof(zero)))
+	nulls, err := readRows(fc, arrow.GetData[T](buf.Bytes()), bits, readBatch)
+	if err != nil {
+		buf.Release()
+		return nil, 0, err
+	}
+	return []*memory.Buffer{buf}, nulls, nil
+}
+
+// readRows fills vals, one value per row, crossing row groups as needed:
+// each read fills the values of the rows it covers densely, and the values
+// of an optional column are then spread to their rows from the back, in
+// place, as its definition levels place them, bits getting their validity.
+// It returns the null count.
+func readRows[T any](fc *flatColumn, vals []T, bits []byte, readBatch func(file.ColumnChunkReader, int64, []T, []int16) (int64, int, error)) (int, error) {
+	nulls := 0
+	for done := 0; done < len(vals); {
+		if err := fc.advance(); err != nil {
+			return 0, err
+		}
+		want := min(int64(len(vals)-done), fc.left)
+		part := vals[done : done+int(want)]
+		var defs []int16
+		if fc.opt {
+			defs = fc.defs[:want]
+		}
+		rows, got, err := guardRead(func() (int64, int, error) { return readBatch(fc.cr, want, part, defs) })
+		if err == nil && rows != want {
+			err = errShort
+		}
+		if err != nil {
+			return 0, err
+		}
+		if fc.opt {
+			nulls += spread(part, got, defs, bits, done)
+		}
+		done += int(want)
+		fc.left -= want
+	}
+	return nulls, nil
+}
+
+// guardRead runs one read of a column chunk reader under guard: the rows
+// it covered, the values it read and its error.
+func guardRead(read func() (int64, int, error)) (int64, int, error) {
+	type counts struct {
+		rows int64
+		got  int
+	}
+	c, err := guard(func() (counts, error) {
+		rows, got, err := read()
+		return counts{rows, got}, err
+	})
+	return c.rows, c.got, err
+}
+
+// spread moves the got dense values at the front of vals to the rows whose
+// definition level is 1, from the back so that no value is overwritten
+// before it moves, zeroes the null rows, sets the validity bits of the
+// rows (offset by first) and returns the null count.
+func spread[T any](vals []T, got int, defs []int16, bits []byte, first int) int {
+	var zero T
+	j := got - 1
+	for i := len(defs) - 1; i >= 0; i-- {
+		if defs[i] == 1 {
+			vals[i] = vals[j]
+			j--
+			bitutil.SetBit(bits, first+i)
+		} else {
+			vals[i] = zero
+		}
+	}
+	return len(defs) - got
+}
+
+// readBools reads n booleans into a bitmap.
+func (fc *flatColumn) readBools(n int, bits []byte) ([]*memory.Buffer, int, error) {
+	if cap(fc.bools) < n {
+		fc.bools = make([]bool, n)
+	}
+	vals := fc.bools[:n]
+	nulls, err := readRows(fc, vals, bits, func(cr file.ColumnChunkReader, m int64, v []bool, d []int16) (int64, int, error) {
+		return cr.(*file.BooleanColumnChunkReader).ReadBatch(m, v, d, nil)
+	})
+	if err != nil {
+		return nil, 0, err
+	}
+	buf := zeroed(fc.mem, int(bitutil.BytesForBits(int64(n))))
+	out := buf.Bytes()
+	for i, v := range vals {
+		if v {
+			bitutil.SetBit(out, i)
+		}
+	}
+	return []*memory.Buffer{buf}, nulls, nil
+}
+
+// readTexts reads n byte arrays into int32 offsets and one data buffer,
+// one page at a time: a page's values point into the page, so they are
+// copied out before the next read. The data buffer starts at the previous
+// batch's size.
+func (fc *flatColumn) readTexts(n int, bits []byte) ([]*memory.Buffer, int, error) {
+	offBuf := memory.NewResizableBuffer(fc.mem)
+	offBuf.Resize((n + 1) * 4)
+	offs := arrow.Int32Traits.CastFromBytes(offBuf.Bytes())
+	offs[0] = 0
+	data := memory.NewResizableBuffer(fc.mem)
+	data.Reserve(max(fc.dlen+fc.dlen/8, 4096))
+	dbuf, dlen := data.Buf(), 0
+	fail := func(err error) ([]*memory.Buffer, int, error) {
+		offBuf.Release()
+		data.Release()
+		return nil, 0, err
+	}
+	nulls := 0
+	for row := 0; row < n; {
+		if err := fc.advance(); err != nil {
+			return fail(err)
+		}
+		want := min(int64(n-row), fc.left)
+		if int64(cap(fc.texts)) < want {
+			fc.texts = make([]parquet.ByteArray, want)
+		}
+		vals := fc.texts[:want]
+		var defs []int16
+		if fc.opt {
+			defs = fc.defs[:want]
+		}
+		rows, got, err := guardRead(func() (int64, int, error) {
+			return fc.cr.(*file.ByteArrayColumnChunkReader).ReadBatchInPage(want, vals, defs, nil)
+		})
+		if err == nil && rows == 0 {
+			err = errShort
+		}
+		if err != nil {
+			return fail(err)
+		}
+		k := 0 // next dense value
+		for i := range int(rows) {
+			if fc.opt && defs[i] != 1 {
+				offs[row+i+1] = int32(dlen)
+				nulls++
+				continue
+			}
+			v := vals[k]
+			k++
+			end := dlen + len(v)
+			if end > math.MaxInt32 {
+				return fail(fmt.Errorf("the text of a column exceeds 2 GiB in %d rows", n))
+			}
+			if end > len(dbuf) {
+				data.Reserve(max(end, 2*len(dbuf)))
+				dbuf = data.Buf()
+			}
+			copy(dbuf[dlen:], v)
+			dlen = end
+			offs[row+i+1] = int32(end)
+			if fc.opt {
+				bitutil.SetBit(bits, row+i)
+			}
+		}
+		if k != got {
+			return fail(fmt.Errorf("%d values for %d defined rows", got, k))
+		}
+		row += int(rows)
+		fc.left -= rows
+	}
+	data.ResizeNoShrink(dlen)
+	fc.dlen = dlen
+	return []*memory.Buffer{offBuf, data}, nulls, nil
+}

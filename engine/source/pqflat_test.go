@@ -1,0 +1,202 @@
+package source
+
+import (
+	"context"
+	"fmt"
+	"math/rand/v2"
+	"path/filepath"
+	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/file"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// flatFixture is a table of every flat column type, required and optional,
+// with nulls, empty and repeated strings, and n rows drawn from a seeded
+// source.
+func flatFixture(n int) fixture {
+	opt := func(name string, t arrow.DataType) arrow.Field {
+		return arrow.Field{Name: name, Type: t, Nullable: true}
+	}
+	req := func(name string, t arrow.DataType) arrow.Field { return arrow.Field{Name: name, Type: t} }
+	return fixture{
+		fields: []arrow.Field{
+			opt("i32", arrow.PrimitiveTypes.Int32), req("i64", arrow.PrimitiveTypes.Int64),
+			opt("f32", arrow.PrimitiveTypes.Float32), req("f64", arrow.PrimitiveTypes.Float64),
+			opt("f64n", arrow.PrimitiveTypes.Float64), opt("b", arrow.FixedWidthTypes.Boolean),
+			req("breq", arrow.FixedWidthTypes.Boolean), opt("s", arrow.BinaryTypes.String),
+			req("sreq", arrow.BinaryTypes.String), opt("bin", arrow.BinaryTypes.Binary),
+			opt("ts", arrow.FixedWidthTypes.Timestamp_us), opt("ms", arrow.FixedWidthTypes.Timestamp_ms),
+			opt("d", arrow.FixedWidthTypes.Date32),
+		},
+		rows: func(b *array.RecordBuilder) {
+			rng := rand.New(rand.NewPCG(3, 5))
+			null := func(f array.Builder, p int) bool {
+				if rng.IntN(100) < p {
+					f.AppendNull()
+					return true
+				}
+				return false
+			}
+			words := []string{"", "a", "queen", "a much longer piece of text than the others", "ü"}
+			for i := range n {
+				if !null(b.Field(0), 10) {
+					b.Field(0).(*array.Int32Builder).Append(int32(rng.IntN(1000) - 500))
+				}
+				b.Field(1).(*array.Int64Builder).Append(int64(i) * 7919)
+				if !null(b.Field(2), 30) {
+					b.Field(2).(*array.Float32Builder).Append(rng.Float32())
+				}
+				b.Field(3).(*array.Float64Builder).Append(rng.NormFloat64())
+				if !null(b.Field(4), 97) {
+					b.Field(4).(*array.Float64Builder).Append(float64(rng.IntN(3)))
+				}
+				if !null(b.Field(5), 20) {
+					b.Field(5).(*array.BooleanBuilder).Append(rng.IntN(2) == 0)
+				}
+				b.Field(6).(*array.BooleanBuilder).Append(i%3 == 0)
+				if !null(b.Field(7), 15) {
+					b.Field(7).(*array.StringBuilder).Append(words[rng.IntN(len(words))])
+				}
+				b.Field(8).(*array.StringBuilder).Append(fmt.Sprintf("row %d", i))
+				if !null(b.Field(9), 50) {
+					b.Field(9).(*array.BinaryBuilder).Append([]byte{byte(i), 0, byte(i >> 8)})
+				}
+				if !null(b.Field(10), 5) {
+					b.Field(10).(*array.TimestampBuilder).Append(arrow.Timestamp(1_700_000_000_000_000 + int64(i)*1_000_003))
+				}
+				if !null(b.Field(11), 5) {
+					b.Field(11).(*array.TimestampBuilder).Append(arrow.Timestamp(-int64(i) * 1009))
+				}
+				if !null(b.Field(12), 5) {
+					b.Field(12).(*array.Date32Builder).Append(arrow.Date32(19000 + i%400))
+				}
+			}
+		},
+	}
+}
+
+// TestFlatColumn reads each column of files written with several layouts
+// (row groups, page sizes, dictionary or plain encoding) with flatColumn in
+// batches of several sizes, and checks every batch against the same rows
+// as pqarrow reads them.
+func TestFlatColumn(t *testing.T) {
+	const rows = 3000
+	fx := flatFixture(rows)
+	rec := fx.record(t)
+	defer rec.Release()
+	layouts := []struct {
+		name  string
+		props []parquet.WriterProperty
+	}{
+		{"one group", nil},
+		{"groups of 777, small pages", []parquet.WriterProperty{parquet.WithMaxRowGroupLength(777), parquet.WithDataPageSize(512)}},
+		{"plain, groups of 1000", []parquet.WriterProperty{parquet.WithMaxRowGroupLength(1000), parquet.WithDictionaryDefault(false)}},
+		{"data page v2", []parquet.WriterProperty{parquet.WithMaxRowGroupLength(1200), parquet.WithDataPageVersion(parquet.DataPageV2), parquet.WithDataPageSize(2048)}},
+	}
+	for _, lay := range layouts {
+		path := filepath.Join(t.TempDir(), "flat.parquet")
+		writeRecord(t, path, rec, parquet.NewWriterProperties(lay.props...), pqarrow.DefaultWriterProps())
+		for _, batch := range []int{rows, 1000, 333, 1} {
+			t.Run(fmt.Sprintf("%s/batch=%d", lay.name, batch), func(t *testing.T) {
+				checkFlat(t, path, rec, batch)
+			})
+		}
+	}
+}
+
+// checkFlat reads every column of path with flatColumn in batches of
+// batch rows and compares them with want.
+func checkFlat(t *testing.T, path string, want arrow.RecordBatch, batch int) {
+	t.Helper()
+	mem := checkedMem(t)
+	r, err := file.OpenParquetFile(path, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	fr, err := pqarrow.NewFileReader(r, pqarrow.ArrowReadProperties{}, mem)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for c, field := range fr.Manifest.Fields {
+		typ := want.Schema().Field(c).Type
+		fc := newFlatColumn(r, field.ColIndex, field.Field.Type, mem)
+		if fc == nil {
+			t.Fatalf("column %s (%s) is not read as flat", field.Field.Name, typ)
+		}
+		if !arrow.TypeEqual(field.Field.Type, typ) {
+			t.Fatalf("column %s: pqarrow maps it to %s; the fixture has %s", field.Field.Name, field.Field.Type, typ)
+		}
+		for lo := 0; lo < int(want.NumRows()); lo += batch {
+			n := min(batch, int(want.NumRows())-lo)
+			got, err := fc.read(n)
+			if err != nil {
+				t.Fatalf("column %s, rows %d-%d: %v", field.Field.Name, lo, lo+n, err)
+			}
+			exp := array.NewSlice(want.Column(c), int64(lo), int64(lo+n))
+			if !array.Equal(got, exp) || got.NullN() != exp.NullN() {
+				t.Errorf("column %s, rows %d-%d:\n got %v\nwant %v", field.Field.Name, lo, lo+n, got, exp)
+			}
+			got.Release()
+			exp.Release()
+		}
+		if _, err := fc.read(1); err == nil {
+			t.Errorf("column %s: a read past the last row succeeded", field.Field.Name)
+		}
+		fc.close()
+	}
+}
+
+// TestFlatScanMatchesArrow scans a file through a Set, where flat columns
+// go through flatColumn and a list column through pqarrow in the same
+// batches, and checks the rows against the record written.
+func TestFlatScanMatchesArrow(t *testing.T) {
+	mem := checkedMem(t)
+	fx := flatFixture(2500)
+	fx.fields = append(fx.fields, arrow.Field{Name: "l", Type: arrow.ListOf(arrow.PrimitiveTypes.Int64), Nullable: true})
+	base := fx.rows
+	fx.rows = func(b *array.RecordBuilder) {
+		base(b)
+		lb := b.Field(len(fx.fields) - 1).(*array.ListBuilder)
+		for i := range 2500 {
+			lb.Append(true)
+			for k := range i % 3 {
+				lb.ValueBuilder().(*array.Int64Builder).Append(int64(i + k))
+			}
+		}
+	}
+	rec := fx.record(t)
+	defer rec.Release()
+	path := filepath.Join(t.TempDir(), "mixed.parquet")
+	writeParquet(t, path, fx, 900)
+	s, err := Open([]string{path}, Options{Allocator: mem, BatchRows: 1024})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	cols := []string{"l", "s", "i64", "b", "bin"}
+	next := int64(1)
+	err = s.Scan(context.Background(), cols, func(b *Batch) error {
+		if b.FirstRow != next {
+			t.Errorf("batch starts at row %d; want %d", b.FirstRow, next)
+		}
+		n := b.Record.NumRows()
+		for k, name := range cols {
+			c := rec.Schema().FieldIndices(name)[0]
+			exp := array.NewSlice(rec.Column(c), b.FirstRow-1, b.FirstRow-1+n)
+			if got := b.Record.Column(k); !arrow.TypeEqual(got.DataType(), exp.DataType()) || !array.Equal(got, exp) {
+				t.Errorf("column %s, rows from %d:\n got %v\nwant %v", name, b.FirstRow, got, exp)
+			}
+			exp.Release()
+		}
+		next += n
+		return nil
+	})
+	if err != nil || next != 2501 {
+		t.Errorf("scan ended at row %d with %v; want 2501 rows and no error", next, err)
+	}
+}
