@@ -1,6 +1,7 @@
 package checks
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -177,17 +178,63 @@ type DistributionState struct {
 	Outside []OutsideValues
 	// Counts counts each listed category, in the policy's order, and
 	// Unlisted the values of no listed category, of which UnlistedValues
-	// keeps the first few (categorical rules).
+	// keeps the first few distinct ones, first seen at data rows
+	// UnlistedRows (categorical rules).
 	Counts         []int64
 	Unlisted       int64
 	UnlistedValues []string
+	UnlistedRows   []int64
 }
 
 // OutsideValues counts the values outside a family's support and keeps
-// the first few.
+// the first few, of data rows Rows.
 type OutsideValues struct {
 	Count  int64
 	Values []float64
+	Rows   []int64
+}
+
+// add counts value v of data row row, keeping it if it is among the first.
+func (o *OutsideValues) add(v float64, row int64) {
+	o.Count++
+	if len(o.Values) < maxListedVals {
+		o.Values = append(o.Values, v)
+		o.Rows = append(o.Rows, row)
+	}
+}
+
+// merge adds p's count to o and keeps the values of the first rows of
+// both. Each accumulator kept its first values, so the first of all the
+// rows are among them whichever batches each saw.
+func (o *OutsideValues) merge(p OutsideValues) {
+	o.Count += p.Count
+	o.Values, o.Rows = firstByRow(o.Values, o.Rows, p.Values, p.Rows, func(float64) bool { return true })
+}
+
+// firstByRow returns the values of a and b (of data rows ra and rb) in
+// row order, keeping at most maxListedVals; a value already taken is
+// skipped when fresh reports it seen (distinct listings).
+func firstByRow[T any](a []T, ra []int64, b []T, rb []int64, fresh func(T) bool) ([]T, []int64) {
+	type kept struct {
+		v   T
+		row int64
+	}
+	all := make([]kept, 0, len(a)+len(b))
+	for i, v := range a {
+		all = append(all, kept{v, ra[i]})
+	}
+	for i, v := range b {
+		all = append(all, kept{v, rb[i]})
+	}
+	slices.SortStableFunc(all, func(x, y kept) int { return cmp.Compare(x.row, y.row) })
+	var vs []T
+	var rows []int64
+	for _, k := range all {
+		if len(vs) < maxListedVals && fresh(k.v) {
+			vs, rows = append(vs, k.v), append(rows, k.row)
+		}
+	}
+	return vs, rows
 }
 
 // DistributionAccumulator is the first pass of a distribution rule.
@@ -200,34 +247,24 @@ type DistributionAccumulator struct {
 }
 
 // Observe counts the batch's values, tests them against each candidate's
-// support and offers the finite ones to the sample.
+// support and offers the finite ones to the sample, at the batch's first
+// row (gof.Reservoir.AddAllAt), so that accumulators of interleaved
+// batches merge into the sample one accumulator would keep while it keeps
+// every value.
 func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 	arr, err := a.check.col.in(b)
 	if err != nil {
 		return err
 	}
 	if a.check.categorical() {
-		eachText(arr, func(_ int, s string) { a.count(s) })
+		eachText(arr, func(i int, s string) { a.count(s, b.Row(i)) })
 		return nil
 	}
-	a.vals = numbers(arr, &a.scratch, a.vals[:0])
-	a.N += int64(len(a.vals))
-	finite := a.vals[:0] // compacted in place: it never overtakes the loop
-	for _, v := range a.vals {
-		for i, in := range a.check.inside {
-			if !in(v) {
-				o := &a.Outside[i]
-				o.Count++
-				if len(o.Values) < maxListedVals {
-					o.Values = append(o.Values, v)
-				}
-			}
-		}
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			continue
-		}
-		a.Min, a.Max = min(a.Min, v), max(a.Max, v)
-		finite = append(finite, v)
+	var finite []float64
+	if a.check.col.class == classNumber {
+		finite = observeValues(a, b, validOf(arr), float64s(arr, &a.scratch.floats))
+	} else {
+		finite = observeValues(a, b, validOf(arr), int64s(arr, &a.scratch.ints))
 	}
 	if len(finite) == 0 {
 		return nil
@@ -240,12 +277,38 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 			return err
 		}
 	}
-	a.Sample.AddAll(finite)
+	a.Sample.AddAllAt(b.FirstRow, finite)
 	return nil
 }
 
-// count adds one categorical value.
-func (a *DistributionAccumulator) count(s string) {
+// observeValues counts the non-null values of xs (valid says which), as
+// float64, tests each against every candidate's support and returns the
+// finite ones, in a's buffer: one pass over the array, read in place.
+func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batch, v valid, xs []T) []float64 {
+	finite := a.vals[:0]
+	for i, x := range xs {
+		if !v.at(i) {
+			continue
+		}
+		a.N++
+		f := float64(x)
+		for k, in := range a.check.inside {
+			if !in(f) {
+				a.Outside[k].add(f, b.Row(i))
+			}
+		}
+		if math.IsNaN(f) || math.IsInf(f, 0) {
+			continue
+		}
+		a.Min, a.Max = min(a.Min, f), max(a.Max, f)
+		finite = append(finite, f)
+	}
+	a.vals = finite
+	return finite
+}
+
+// count adds one categorical value, of data row row.
+func (a *DistributionAccumulator) count(s string, row int64) {
 	a.N++
 	if i, ok := a.check.category[s]; ok {
 		a.Counts[i]++
@@ -254,6 +317,7 @@ func (a *DistributionAccumulator) count(s string) {
 	a.Unlisted++
 	if len(a.UnlistedValues) < maxListedVals && !slices.Contains(a.UnlistedValues, s) {
 		a.UnlistedValues = append(a.UnlistedValues, strings.Clone(s))
+		a.UnlistedRows = append(a.UnlistedRows, row)
 	}
 }
 
@@ -262,26 +326,6 @@ func (a *DistributionAccumulator) count(s string) {
 // and that row, so shards draw independent samples.
 func shardSeed(seed uint64, first int64) uint64 {
 	return rand.New(rand.NewPCG(seed, uint64(first))).Uint64()
-}
-
-// numbers appends the non-null values of an integer or float array to dst
-// as float64.
-func numbers(a arrow.Array, s *scratch, dst []float64) []float64 {
-	v := validOf(a)
-	if classOf(a.DataType()) == classNumber {
-		for i, x := range float64s(a, &s.floats) {
-			if v.at(i) {
-				dst = append(dst, x)
-			}
-		}
-		return dst
-	}
-	for i, x := range int64s(a, &s.ints) {
-		if v.at(i) {
-			dst = append(dst, float64(x))
-		}
-	}
-	return dst
 }
 
 // eachText calls f with the text of every non-null value of a string,
@@ -309,7 +353,9 @@ func eachText(arr arrow.Array, f func(i int, s string)) {
 	}
 }
 
-// Merge folds other's counts and sample into a.
+// Merge folds other's counts and sample into a. The values listed are
+// those of the first rows of both, so the result does not depend on which
+// batches each accumulator saw.
 func (a *DistributionAccumulator) Merge(other Accumulator) error {
 	o, ok := other.(*DistributionAccumulator)
 	if !ok || o.check != a.check {
@@ -318,22 +364,19 @@ func (a *DistributionAccumulator) Merge(other Accumulator) error {
 	a.N += o.N
 	a.Min, a.Max = min(a.Min, o.Min), max(a.Max, o.Max)
 	for i := range a.Outside {
-		a.Outside[i].Count += o.Outside[i].Count
-		for _, v := range o.Outside[i].Values {
-			if len(a.Outside[i].Values) < maxListedVals {
-				a.Outside[i].Values = append(a.Outside[i].Values, v)
-			}
-		}
+		a.Outside[i].merge(o.Outside[i])
 	}
 	for i := range a.Counts {
 		a.Counts[i] += o.Counts[i]
 	}
 	a.Unlisted += o.Unlisted
-	for _, s := range o.UnlistedValues {
-		if len(a.UnlistedValues) < maxListedVals && !slices.Contains(a.UnlistedValues, s) {
-			a.UnlistedValues = append(a.UnlistedValues, s)
-		}
-	}
+	seen := map[string]bool{}
+	a.UnlistedValues, a.UnlistedRows = firstByRow(a.UnlistedValues, a.UnlistedRows, o.UnlistedValues, o.UnlistedRows,
+		func(s string) bool {
+			fresh := !seen[s]
+			seen[s] = true
+			return fresh
+		})
 	if o.Sample == nil {
 		return nil
 	}

@@ -168,10 +168,19 @@ func newPairSample(size int, seed uint64) (*pairSample, error) {
 	return &pairSample{x: x, y: y}, nil
 }
 
-// add offers the pairs (xs[i], ys[i]).
+// add offers the pairs (xs[i], ys[i]), following those offered before.
 func (s *pairSample) add(xs, ys []float64) {
 	s.x.AddAll(xs)
 	s.y.AddAll(ys)
+}
+
+// addAt offers the pairs (xs[i], ys[i]) of a batch whose data begin at
+// row first: while the sample keeps every pair, merged samples hold their
+// pairs in row order (gof.Reservoir.AddAllAt), so accumulators of
+// interleaved batches merge into the sample one accumulator keeps.
+func (s *pairSample) addAt(first int64, xs, ys []float64) {
+	s.x.AddAllAt(first, xs)
+	s.y.AddAllAt(first, ys)
 }
 
 // offer offers the pairs of a batch whose data begin at row first to *s,
@@ -185,7 +194,7 @@ func offer(s **pairSample, size int, seed uint64, first int64, xs, ys []float64)
 			return err
 		}
 	}
-	(*s).add(xs, ys)
+	(*s).addAt(first, xs, ys)
 	return nil
 }
 

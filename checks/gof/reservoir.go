@@ -1,6 +1,7 @@
 package gof
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -34,6 +35,17 @@ type Reservoir struct {
 	// next value to enter.
 	w    float64
 	next int64
+	// runs says where in the stream the values came from while the
+	// reservoir holds every value it was offered (items is then the
+	// concatenation of the runs); Merge orders merged values by it.
+	runs []run
+}
+
+// run is a stretch of values that entered a reservoir together, in
+// stream order, starting at position pos of the stream.
+type run struct {
+	pos int64
+	n   int
 }
 
 // NewReservoir returns an empty reservoir of capacity size (at least 1)
@@ -68,9 +80,30 @@ func (r *Reservoir) Add(v float64) {
 	r.AddAll([]float64{v})
 }
 
-// AddAll offers the values in order. Once the reservoir is full, runs of
-// values that Algorithm L skips cost nothing.
+// AddAll offers the values in order, as following the values offered
+// before. Once the reservoir is full, runs of values that Algorithm L
+// skips cost nothing.
 func (r *Reservoir) AddAll(vs []float64) {
+	pos := int64(0)
+	if n := len(r.runs); n > 0 {
+		pos = r.runs[n-1].pos + int64(r.runs[n-1].n)
+	}
+	r.AddAllAt(pos, vs)
+}
+
+// AddAllAt offers the values in order, saying that they begin at position
+// pos of the stream (a row number): the values of one call come from
+// positions pos on, before the next call's and disjoint from another
+// reservoir's. Positions matter only while a reservoir holds every value
+// it was offered: Merge then puts the values of both in the order of
+// their positions, so reservoirs fed interleaved parts of a stream
+// (batches 0, 2, 4 and 1, 3, 5) merge into what one reservoir fed the
+// whole stream would hold, in the same order. Sampling never depends on
+// positions.
+func (r *Reservoir) AddAllAt(pos int64, vs []float64) {
+	if len(r.items) < r.size && len(vs) > 0 {
+		r.note(pos, min(r.size-len(r.items), len(vs)))
+	}
 	for len(vs) > 0 {
 		if len(r.items) < r.size {
 			take := min(r.size-len(r.items), len(vs))
@@ -94,6 +127,16 @@ func (r *Reservoir) AddAll(vs []float64) {
 		r.w *= math.Exp(math.Log(r.uniform()) / float64(r.size))
 		r.skip()
 	}
+}
+
+// note records that n values from position pos entered the reservoir,
+// extending the last run when they continue it.
+func (r *Reservoir) note(pos int64, n int) {
+	if k := len(r.runs); k > 0 && r.runs[k-1].pos+int64(r.runs[k-1].n) == pos {
+		r.runs[k-1].n += n
+		return
+	}
+	r.runs = append(r.runs, run{pos: pos, n: n})
 }
 
 // uniform returns a draw in (0, 1].
@@ -128,7 +171,8 @@ func (r *Reservoir) resume() {
 
 // Merge folds other, filled from values disjoint from the receiver's, into
 // the receiver, leaving other unchanged. If both together saw at most Size
-// values the receiver keeps them all. Otherwise the merged sample must be
+// values the receiver keeps them all, in the order of their positions in
+// the stream (see AddAllAt). Otherwise the merged sample must be
 // a uniform Size-subset of all nA + nB values; the number j of them that
 // come from the receiver's values is then hypergeometric (Size draws
 // without replacement from nA of one kind and nB of the other), and given
@@ -145,13 +189,14 @@ func (r *Reservoir) Merge(other *Reservoir) error {
 	}
 	total := r.seen + other.seen
 	if total <= int64(r.size) {
-		r.items = append(r.items, other.items...)
+		r.items, r.runs = mergeRuns(r.items, r.runs, other.items, other.runs)
 		r.seen = total
 		if len(r.items) == r.size {
 			r.resume()
 		}
 		return nil
 	}
+	r.runs = nil // the merged sample is no longer every value
 	remA, remB := r.seen, other.seen
 	j := 0
 	for range r.size {
@@ -168,6 +213,39 @@ func (r *Reservoir) Merge(other *Reservoir) error {
 	r.seen = total
 	r.resume()
 	return nil
+}
+
+// mergeRuns returns the values of two complete reservoirs, each the
+// concatenation of its runs, in the order of the runs' positions (the
+// receiver's first among equal positions), and the merged runs.
+func mergeRuns(a []float64, ra []run, b []float64, rb []run) ([]float64, []run) {
+	type piece struct {
+		run
+		from []float64
+	}
+	pieces := make([]piece, 0, len(ra)+len(rb))
+	for _, side := range []struct {
+		vals []float64
+		runs []run
+	}{{a, ra}, {b, rb}} {
+		at := 0
+		for _, r := range side.runs {
+			pieces = append(pieces, piece{r, side.vals[at : at+r.n]})
+			at += r.n
+		}
+	}
+	slices.SortStableFunc(pieces, func(p, q piece) int { return cmp.Compare(p.pos, q.pos) })
+	vals := make([]float64, 0, len(a)+len(b))
+	runs := make([]run, 0, len(pieces))
+	for _, p := range pieces {
+		vals = append(vals, p.from...)
+		if k := len(runs); k > 0 && runs[k-1].pos+int64(runs[k-1].n) == p.pos {
+			runs[k-1].n += p.n
+		} else {
+			runs = append(runs, p.run)
+		}
+	}
+	return vals, runs
 }
 
 // pick returns a uniform random subset of k of the values, as a new slice.

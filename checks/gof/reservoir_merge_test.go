@@ -1,0 +1,89 @@
+package gof
+
+import (
+	"slices"
+	"testing"
+)
+
+// TestReservoirMergeInterleaved: reservoirs fed interleaved batches of a
+// stream (batch i to reservoir i mod w, as the engine deals batches to
+// workers) merge, while together they hold every value, into the values
+// one reservoir fed the whole stream holds, in the same order; past the
+// size they merge into a sample of the right size drawn from the stream.
+func TestReservoirMergeInterleaved(t *testing.T) {
+	tests := []struct {
+		name           string
+		size, n, batch int
+		gap            int // positions skipped after each batch (rows without a value)
+		workers        int
+	}{
+		{"two workers", 100, 90, 10, 0, 2},
+		{"three workers, uneven last batch", 100, 95, 7, 0, 3},
+		{"positions with gaps", 100, 80, 8, 3, 2},
+		{"exactly full", 60, 60, 6, 0, 2},
+		{"one worker saw nothing", 100, 10, 10, 0, 2},
+		{"more workers than batches", 50, 20, 10, 0, 4},
+		{"sampled", 50, 1000, 16, 1, 3},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			one, _ := NewReservoir(tc.size, 7)
+			shards := make([]*Reservoir, tc.workers)
+			for w := range shards {
+				shards[w], _ = NewReservoir(tc.size, uint64(100+w))
+			}
+			var stream []float64
+			pos := int64(0)
+			for i, k := 0, 0; i < tc.n; i, k = i+tc.batch, k+1 {
+				vs := seq(i, min(i+tc.batch, tc.n))
+				stream = append(stream, vs...)
+				one.AddAllAt(pos, vs)
+				shards[k%tc.workers].AddAllAt(pos, vs)
+				pos += int64(len(vs) + tc.gap)
+			}
+			for _, s := range shards[1:] {
+				if err := shards[0].Merge(s); err != nil {
+					t.Fatal(err)
+				}
+			}
+			got, want := shards[0].Values(), one.Values()
+			if shards[0].Seen() != int64(tc.n) || shards[0].Complete() != one.Complete() {
+				t.Fatalf("merged: seen %d complete %v, want %d %v", shards[0].Seen(), shards[0].Complete(), tc.n, one.Complete())
+			}
+			if one.Complete() {
+				if !slices.Equal(got, want) {
+					t.Errorf("merged values\n%v\nwant\n%v", got, want)
+				}
+				return
+			}
+			if len(got) != tc.size {
+				t.Fatalf("merged sample of %d values, want %d", len(got), tc.size)
+			}
+			sorted := slices.Clone(got)
+			slices.Sort(sorted)
+			for i, v := range sorted {
+				if _, in := slices.BinarySearch(stream, v); !in || i > 0 && sorted[i-1] == v {
+					t.Fatalf("merged sample holds %v, not a distinct value of the stream", v)
+				}
+			}
+		})
+	}
+}
+
+// TestReservoirAddAllContinues: AddAll places its values after the ones
+// offered before, so a reservoir fed by AddAll alone merges as it always
+// did: the receiver's values, then the other's.
+func TestReservoirAddAllContinues(t *testing.T) {
+	a, _ := NewReservoir(100, 1)
+	b, _ := NewReservoir(100, 2)
+	a.AddAll(seq(0, 5))
+	a.AddAll(seq(5, 9))
+	a.Add(9)
+	b.AddAll(seq(10, 20))
+	if err := a.Merge(b); err != nil {
+		t.Fatal(err)
+	}
+	if got := a.Values(); !slices.Equal(got, seq(0, 20)) {
+		t.Errorf("merged %v, want 0..19", got)
+	}
+}
