@@ -219,7 +219,14 @@ func float64s(a arrow.Array, buf *[]float64) []float64 {
 func eachString(a arrow.Array, f func(i int, s string)) {
 	switch a := a.(type) {
 	case *array.String:
-		stringLoop(a, f)
+		// The common case, written out: through the generic loop each
+		// Value is a call by dictionary, not inlined.
+		v := validOf(a)
+		for i := range a.Len() {
+			if v.at(i) {
+				f(i, a.Value(i))
+			}
+		}
 	case *array.LargeString:
 		stringLoop(a, f)
 	case *array.StringView:
