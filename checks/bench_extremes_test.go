@@ -1,6 +1,7 @@
 package checks
 
 import (
+	"fmt"
 	"math/rand/v2"
 	"testing"
 
@@ -119,5 +120,87 @@ func BenchmarkExtremes(b *testing.B) {
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*benchRows), "ns/row")
 		})
+	}
+}
+
+// keptBatches is n rows of one normal column x1 with 0.1% of the values
+// planted far out, in batches of benchBatchRows.
+func keptBatches(b *testing.B, n int) []*source.Batch {
+	b.Helper()
+	rng := rand.New(rand.NewPCG(3, 4))
+	var out []*source.Batch
+	for lo := 0; lo < n; lo += benchBatchRows {
+		xs := make([]float64, min(benchBatchRows, n-lo))
+		for i := range xs {
+			xs[i] = 50 + 10*rng.NormFloat64()
+			if rng.IntN(1000) == 0 {
+				xs[i] += 200
+			}
+		}
+		out = append(out, colsBatch(b, memory.NewGoAllocator(), int64(lo+1), [][]float64{xs}))
+	}
+	return out
+}
+
+// BenchmarkKeptValues measures the rules that keep every value of a
+// column (summary p95, extremes tukey and robust-z) at 1e6 and 1e7 rows:
+// "observe" is two accumulators fed alternate batches, as two engine
+// workers are, then merged; "finish" is Finish (and, for extremes, the
+// fit SecondPass needs) of the merged accumulator alone. 1e7 is skipped
+// with -short.
+func BenchmarkKeptValues(b *testing.B) {
+	for _, n := range []int{1_000_000, 10_000_000} {
+		if n > benchRows && testing.Short() {
+			continue
+		}
+		bs := keptBatches(b, n)
+		env := envOf(bs[0], 20)
+		for _, tc := range []struct {
+			name string
+			rule *rules.Rule
+		}{
+			{"summary p95", newRule(rules.SummarySpec{Stat: rules.StatQuantile, Q: 0.95}, within(0, 100), "x1")},
+			{"extremes tukey", newRule(extSpec(rules.ExtremesTukey), atMost(0.05), "x1")},
+			{"extremes robust-z", newRule(extSpec(rules.ExtremesRobustZ), atMost(0.05), "x1")},
+		} {
+			c, err := Compile(tc.rule, env)
+			if err != nil {
+				b.Fatal(err)
+			}
+			observe := func() Accumulator {
+				w := []Accumulator{c.NewAccumulator(), c.NewAccumulator()}
+				for i, batch := range bs {
+					if err := w[i%2].Observe(batch); err != nil {
+						b.Fatal(err)
+					}
+				}
+				if err := w[0].Merge(w[1]); err != nil {
+					b.Fatal(err)
+				}
+				return w[0]
+			}
+			b.Run(fmt.Sprintf("%s/%.0e/observe", tc.name, float64(n)), func(b *testing.B) {
+				b.ReportAllocs()
+				b.SetBytes(int64(8 * n))
+				for range b.N {
+					observe()
+				}
+			})
+			b.Run(fmt.Sprintf("%s/%.0e/finish", tc.name, float64(n)), func(b *testing.B) {
+				b.ReportAllocs()
+				b.SetBytes(int64(8 * n))
+				for range b.N {
+					b.StopTimer()
+					a := observe()
+					b.StartTimer()
+					if res := a.Finish(); res.Error != "" {
+						b.Fatal(res.Error)
+					}
+				}
+			})
+		}
+		for _, batch := range bs {
+			batch.Release()
+		}
 	}
 }

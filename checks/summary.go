@@ -6,7 +6,6 @@ import (
 	"math"
 	"math/big"
 	"math/bits"
-	"slices"
 	"strconv"
 
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -50,8 +49,9 @@ import (
 //     Summation endlicher Summen", ZAMM 54(1):39-51), whose error does not
 //     grow with n for sums that do not cancel.
 //   - median and quantiles: exact, from every value kept (8 bytes per
-//     non-null value; the only summaries whose memory grows with the rows),
-//     sorted at Finish. Definition 7 of Hyndman & Fan (1996, "Sample
+//     non-null value, in one slice per batch; the only summaries whose
+//     memory grows with the rows), found at Finish by selection, not by
+//     sorting (order.Quantiles7, expected O(n)). Definition 7 of Hyndman & Fan (1996, "Sample
 //     quantiles in statistical packages", The American Statistician
 //     50(4):361-365), R's default: with the values sorted x_1..x_n,
 //     h = 1 + (n-1)p, j = floor(h), Q(p) = (1-g) x_j + g x_{j+1}, g = h - j
@@ -129,8 +129,8 @@ type SummaryState struct {
 	FloatSum Neumaier // compensated sum of a float column
 	// Floats (float columns) or Ints (integer and time columns) keep every
 	// value that is not NaN, for median and quantiles only.
-	Floats []float64
-	Ints   []int64
+	Floats order.Chunks[float64]
+	Ints   order.Chunks[int64]
 	// Distinct holds the distinct values (their 8 bytes, or a string's
 	// 64-bit hash), for distinct only.
 	Distinct map[uint64]struct{}
@@ -182,9 +182,9 @@ func (a *SummaryAccumulator) Observe(b *source.Batch) error {
 	}
 	switch a.check.col.class {
 	case classNumber:
-		a.observeFloats(float64s(arr, &a.scratch.floats), validOf(arr))
+		a.observeFloats(float64s(arr, &a.scratch.floats), validOf(arr), arr.NullN())
 	case classInteger, classTime:
-		a.observeInts(int64s(arr, &a.scratch.ints), validOf(arr))
+		a.observeInts(int64s(arr, &a.scratch.ints), validOf(arr), arr.NullN())
 	case classString:
 		a.Count += int64(arr.Len() - arr.NullN())
 		if a.Distinct != nil {
@@ -209,15 +209,21 @@ func (a *SummaryAccumulator) Observe(b *source.Batch) error {
 	return nil
 }
 
-func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
+// observeFloats adds the values of xs that v says are valid; nulls of
+// them are not.
+func (a *SummaryAccumulator) observeFloats(xs []float64, v valid, nulls int) {
 	var (
 		w          welford
 		nan        int64
 		lo, hi     = math.Inf(1), math.Inf(-1)
 		sum        = a.FloatSum
 		keep       = a.check.keepsValues()
+		kept       []float64
 		collectSet = a.Distinct != nil
 	)
+	if keep {
+		kept = make([]float64, 0, len(xs)-nulls)
+	}
 	for i, x := range xs {
 		if !v.at(i) {
 			continue
@@ -233,23 +239,30 @@ func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
 		lo, hi = min(lo, x), max(hi, x)
 		sum.Add(x)
 		if keep {
-			a.Floats = append(a.Floats, x)
+			kept = append(kept, x)
 		}
 	}
+	a.Floats.Add(kept)
 	a.FloatSum = sum
 	a.pool(w, lo, hi)
 	a.Count += w.n + nan
 	a.NaN += nan
 }
 
-func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
+// observeInts adds the values of xs that v says are valid; nulls of them
+// are not.
+func (a *SummaryAccumulator) observeInts(xs []int64, v valid, nulls int) {
 	var (
 		w          welford
 		lo, hi     int64 = math.MaxInt64, math.MinInt64
 		sum              = a.Sum
 		keep             = a.check.keepsValues()
-		collectSet       = a.Distinct != nil
+		kept       []int64
+		collectSet = a.Distinct != nil
 	)
+	if keep {
+		kept = make([]int64, 0, len(xs)-nulls)
+	}
 	for i, x := range xs {
 		if !v.at(i) {
 			continue
@@ -258,12 +271,13 @@ func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
 		lo, hi = min(lo, x), max(hi, x)
 		sum.Add(x)
 		if keep {
-			a.Ints = append(a.Ints, x)
+			kept = append(kept, x)
 		}
 		if collectSet {
 			a.Distinct[uint64(x)] = struct{}{}
 		}
 	}
+	a.Ints.Add(kept)
 	a.Sum = sum
 	if w.n > 0 {
 		a.pool(w, float64(lo), float64(hi))
@@ -316,7 +330,8 @@ func (a *SummaryAccumulator) pool(w welford, lo, hi float64) {
 	a.M2 += w.m2 + d*d*float64(had)*float64(w.n)/total
 }
 
-// Merge folds other's values into a.
+// Merge folds other's values into a; other's kept values are moved, not
+// copied, and other is left without them.
 func (a *SummaryAccumulator) Merge(other Accumulator) error {
 	o, ok := other.(*SummaryAccumulator)
 	if !ok || o.check != a.check {
@@ -327,16 +342,16 @@ func (a *SummaryAccumulator) Merge(other Accumulator) error {
 	a.NaN += o.NaN
 	a.Sum.AddInt128(o.Sum)
 	a.FloatSum.Merge(o.FloatSum)
-	a.Floats = append(a.Floats, o.Floats...)
-	a.Ints = append(a.Ints, o.Ints...)
+	a.Floats.Splice(&o.Floats)
+	a.Ints.Splice(&o.Ints)
 	for k := range o.Distinct {
 		a.Distinct[k] = struct{}{}
 	}
 	return nil
 }
 
-// Finish computes the statistic from the state and judges it. It sorts
-// the kept values in place.
+// Finish computes the statistic from the state and judges it. It
+// reorders the kept values.
 func (a *SummaryAccumulator) Finish() report.Result {
 	v, why := a.value()
 	res := NewResult(a.check.rule, v)
@@ -405,9 +420,7 @@ func (a *SummaryAccumulator) value() (float64, string) {
 		return a.Max / per, ""
 	}
 	if a.check.col.class == classNumber {
-		slices.Sort(a.Floats)
-		return order.Quantile7(a.Floats, a.check.q), ""
+		return order.Quantiles7(a.Floats.Flatten(), a.check.q)[0], ""
 	}
-	slices.Sort(a.Ints)
-	return order.Quantile7(a.Ints, a.check.q) / per, ""
+	return order.Quantiles7(a.Ints.Flatten(), a.check.q)[0] / per, ""
 }

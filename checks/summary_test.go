@@ -448,3 +448,131 @@ func TestQuantile7R(t *testing.T) {
 		t.Errorf("checked %d golden values, want 104", checked)
 	}
 }
+
+// runTwoWorkers evaluates c as the engine does with two workers: batches
+// dealt alternately to two accumulators, merged (the first absorbs the
+// second), in both passes.
+func runTwoWorkers(t *testing.T, c Check, bs ...*source.Batch) report.Result {
+	t.Helper()
+	pass := func(make func() Accumulator) Accumulator {
+		w := []Accumulator{make(), make()}
+		for i, b := range bs {
+			observe(t, w[i%2], b)
+		}
+		if err := w[0].Merge(w[1]); err != nil {
+			t.Fatalf("Merge: %v", err)
+		}
+		return w[0]
+	}
+	first := pass(c.NewAccumulator)
+	if r, ok := first.(Rescanner); ok && r.SecondPass() != nil {
+		return pass(r.SecondPass).Finish()
+	}
+	return first.Finish()
+}
+
+// TestSummaryQuantileKept: the quantile of a float, an integer and a time
+// column, kept in parts per batch and found by selection, is Quantile7
+// of the sorted values to the last bit, with one accumulator and with
+// two fed interleaved batches and merged; nulls are not values.
+func TestSummaryQuantileKept(t *testing.T) {
+	mem := checkedMem(t)
+	rng := rand.New(rand.NewPCG(9, 10))
+	shapes := map[string]func() float64{
+		"random": func() float64 { return math.Round(rng.NormFloat64()*1e6) / 64 },
+		"ties":   func() float64 { return float64(rng.IntN(3)) },
+		"equal":  func() float64 { return -7 },
+	}
+	for name, draw := range shapes {
+		for _, n := range []int{1, 2, 3, 4, 10, 1000} {
+			vals := make([]any, n+n/5) // a fifth of the rows missing
+			var floats []float64
+			for i := range vals {
+				if i%5 == 4 {
+					continue
+				}
+				x := draw()
+				floats = append(floats, x)
+				vals[i] = x
+			}
+			ints := make([]any, len(vals))
+			var asInts []int64
+			for i, v := range vals {
+				if v != nil {
+					ints[i] = int(v.(float64) * 64)
+					asInts = append(asInts, int64(ints[i].(int)))
+				}
+			}
+			slices.Sort(floats)
+			slices.Sort(asInts)
+			columns := []struct {
+				col  col
+				want func(q float64) float64
+			}{
+				{col{"x", tFloat, vals}, func(q float64) float64 { return order.Quantile7(floats, q) }},
+				{col{"x", tInt, ints}, func(q float64) float64 { return order.Quantile7(asInts, q) }},
+				{col{"x", tTime, ints}, func(q float64) float64 { return order.Quantile7(asInts, q) / 1e6 }},
+			}
+			for _, cc := range columns {
+				var bs []*source.Batch
+				for lo := 0; lo < len(vals); lo += 7 {
+					part := col{"x", cc.col.typ, cc.col.vals[lo:min(lo+7, len(vals))]}
+					b := newBatch(t, mem, int64(lo+1), part)
+					release(t, b)
+					bs = append(bs, b)
+				}
+				for _, q := range []float64{0, 0.01, 0.25, 0.5, 0.95, 1} {
+					c := compile(t, summaryRule(rules.StatQuantile, q, within(-1e12, 1e12), "x"), envOf(bs[0], 10))
+					want := cc.want(q)
+					for how, res := range map[string]report.Result{"one": run(t, c, bs...), "two workers": runTwoWorkers(t, c, bs...)} {
+						if got := float64(res.Measure.Value); math.Float64bits(got) != math.Float64bits(want) {
+							t.Errorf("%s n=%d %s q=%v %s: %v, want %v", name, n, cc.col.typ, q, how, got, want)
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestSummaryQuantileR: R's type-7 quantiles of the golden data sets,
+// from the values shuffled, in batches, through the summary rule.
+func TestSummaryQuantileR(t *testing.T) {
+	data, err := os.ReadFile(filepath.Join("testdata", "quantile7.golden"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	mem := checkedMem(t)
+	rng := rand.New(rand.NewPCG(11, 12))
+	batches := map[string][]*source.Batch{}
+	for _, name := range []string{"michelso", "lew", "pidigits", "mavro"} {
+		xs := readColumn(t, name)
+		rng.Shuffle(len(xs), func(i, j int) { xs[i], xs[j] = xs[j], xs[i] })
+		for lo := 0; lo < len(xs); lo += 100 {
+			b := numBatch(t, mem, int64(lo+1), xs[lo:min(lo+100, len(xs))])
+			release(t, b)
+			batches[name] = append(batches[name], b)
+		}
+	}
+	checked := 0
+	for _, line := range strings.Split(strings.TrimSpace(string(data)), "\n") {
+		f := strings.Split(line, ",")
+		bs, ok := batches[f[0]]
+		if !ok || len(f) != 3 {
+			continue
+		}
+		p, err1 := strconv.ParseFloat(f[1], 64)
+		want, err2 := strconv.ParseFloat(f[2], 64)
+		if err1 != nil || err2 != nil {
+			t.Fatalf("quantile7.golden: %q", line)
+		}
+		c := compile(t, summaryRule(rules.StatQuantile, p, within(-1e12, 1e12), "x"), envOf(bs[0], 10))
+		if got := float64(runTwoWorkers(t, c, bs...).Measure.Value); got != want {
+			t.Errorf("%s p=%v: %.17g, R says %.17g", f[0], p, got, want)
+		}
+		checked++
+	}
+	if checked != 4*13 {
+		t.Errorf("checked %d golden values, want 52", checked)
+	}
+}
