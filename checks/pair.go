@@ -92,7 +92,6 @@ type pairRows struct {
 	// NonFinite counts the rows left out for a NaN or an infinite value.
 	NonFinite int64
 	sx, sy    scratch
-	fx, fy    []float64
 }
 
 // read fills X, Y and Rows from batch b.
@@ -101,15 +100,14 @@ func (p *pairRows) read(x, y column, b *source.Batch) error {
 	if err != nil {
 		return err
 	}
-	p.fx = asFloats(x, ax, &p.sx, p.fx)
-	p.fy = asFloats(y, ay, &p.sy, p.fy)
+	fx, fy := asFloats(x, ax, &p.sx), asFloats(y, ay, &p.sy)
 	vx, vy := validOf(ax), validOf(ay)
 	p.X, p.Y, p.Rows = p.X[:0], p.Y[:0], p.Rows[:0]
-	for i := range p.fx {
+	for i := range fx {
 		if !vx.at(i) || !vy.at(i) {
 			continue
 		}
-		u, v := p.fx[i], p.fy[i]
+		u, v := fx[i], fy[i]
 		if math.IsNaN(u) || math.IsInf(u, 0) || math.IsNaN(v) || math.IsInf(v, 0) {
 			p.NonFinite++
 			continue
@@ -129,22 +127,24 @@ func bothIn(x, y column, b *source.Batch) (ax, ay arrow.Array, err error) {
 }
 
 // asFloats returns every element of an integer, float or time array as
-// float64 (times in seconds), null slots included, in dst.
-func asFloats(c column, a arrow.Array, s *scratch, dst []float64) []float64 {
-	dst = dst[:0]
-	switch c.class {
-	case classNumber:
-		return append(dst, float64s(a, &s.floats)...)
-	case classTime:
+// float64 (times in seconds), null slots included: a float64 array's own
+// values, read in place, or a conversion into s.floats, which is reused.
+func asFloats(c column, a arrow.Array, s *scratch) []float64 {
+	if c.class == classNumber {
+		return float64s(a, &s.floats)
+	}
+	out := s.floats[:0]
+	if c.class == classTime {
 		for _, v := range int64s(a, &s.ints) {
-			dst = append(dst, float64(v)/c.perSecond)
+			out = append(out, float64(v)/c.perSecond)
 		}
-		return dst
+	} else {
+		for _, v := range int64s(a, &s.ints) {
+			out = append(out, float64(v))
+		}
 	}
-	for _, v := range int64s(a, &s.ints) {
-		dst = append(dst, float64(v))
-	}
-	return dst
+	s.floats = out
+	return out
 }
 
 // pairSample keeps a uniform sample of at most a size of pairs: two

@@ -46,7 +46,6 @@ type OrderAccumulator struct {
 	check      *orderCheck
 	listing    Offenders
 	sx, sy     scratch
-	fx, fy     []float64
 	px, py     []float64 // the rows with both values, for the plot
 	points     *pairSample
 }
@@ -59,30 +58,29 @@ func (a *OrderAccumulator) Observe(b *source.Batch) error {
 		return err
 	}
 	vx, vy := validOf(ax), validOf(ay)
-	a.fx = asFloats(c.x, ax, &a.sx, a.fx)
-	a.fy = asFloats(c.y, ay, &a.sy, a.fy)
+	fx, fy := asFloats(c.x, ax, &a.sx), asFloats(c.y, ay, &a.sy)
 	var ix, iy []int64
 	if c.exact() {
 		ix, iy = int64s(ax, &a.sx.ints), int64s(ay, &a.sy.ints)
 	}
 	a.px, a.py = a.px[:0], a.py[:0]
-	for i := range a.fx {
+	for i := range fx {
 		if !vx.at(i) || !vy.at(i) {
 			continue
 		}
 		a.Rows++
-		a.px, a.py = append(a.px, a.fx[i]), append(a.py, a.fy[i])
+		a.px, a.py = append(a.px, fx[i]), append(a.py, fy[i])
 		var out bool
 		if ix != nil {
 			out = ix[i] > iy[i] || (c.spec.Strict && ix[i] == iy[i])
 		} else {
-			out = a.fx[i] > a.fy[i] || (c.spec.Strict && a.fx[i] == a.fy[i])
+			out = fx[i] > fy[i] || (c.spec.Strict && fx[i] == fy[i])
 		}
 		if !out {
 			continue
 		}
 		a.OutOfOrder++
-		a.listing.Add(a.fx[i]-a.fy[i], b.Row(i), func() report.Row { return pairRow(c.env, b, i, c.x, c.y) })
+		a.listing.Add(fx[i]-fy[i], b.Row(i), func() report.Row { return pairRow(c.env, b, i, c.x, c.y) })
 	}
 	return offer(&a.points, plotPoints, c.spec.Seed, b.FirstRow, a.px, a.py)
 }
