@@ -343,24 +343,32 @@ func (a *HashAccumulator) found() *hashRuns {
 }
 
 // Finish judges the duplicates as the hashes count them, without listing
-// rows: the engine runs the second pass, whose Finish is exact. A hash
-// collision can only make this count too high. It reorders the hashes
-// within each chunk.
+// rows: a hash collision can only make this count too high, and the engine
+// runs the second pass, whose Finish is exact. When no hash occurs twice,
+// no value does either: the count is exact and there is no second pass.
+// Finish reorders the hashes within each chunk.
 func (a *HashAccumulator) Finish() report.Result {
 	runs := a.found()
 	s := DuplicateState{Of: a.Of, Rows: runs.rows, Groups: runs.groups}
 	res := s.result(a.check)
-	res.Message += " (counted by hash; the second pass lists the rows)"
+	if runs.rows > 0 {
+		res.Message += " (counted by hash; the second pass lists the rows)"
+	}
 	return res
 }
 
-// SecondPass returns the accumulator that groups, by their actual bytes,
-// the rows whose hash occurred more than once.
+// SecondPass returns a fresh accumulator that groups, by their actual
+// bytes, the rows whose hash occurred more than once, sharing the set of
+// those hashes; nil when no hash did, Finish being exact then.
 func (a *HashAccumulator) SecondPass() Accumulator {
+	runs := a.found()
+	if runs.groups == 0 {
+		return nil
+	}
 	return &DuplicateAccumulator{
 		DuplicateState: DuplicateState{Of: a.Of},
 		check:          a.check,
-		suspects:       &a.found().suspects,
+		suspects:       &runs.suspects,
 		groups:         map[string]*dupGroup{},
 	}
 }
@@ -563,7 +571,7 @@ func (a *DuplicateAccumulator) Observe(b *source.Batch) error {
 // call.
 func (a *DuplicateAccumulator) eachSuspect(b *source.Batch, f func(i int, key []byte)) error {
 	r, err := a.check.rows(b)
-	if err != nil || len(a.suspects.hashes) == 0 {
+	if err != nil {
 		return err
 	}
 	a.hashes = a.check.appendHashes(slices.Grow(a.hashes[:0], r.count()), &r, &a.scratch)

@@ -367,3 +367,45 @@ func TestSuspectSet(t *testing.T) {
 		}
 	}
 }
+
+// TestDuplicatesSecondPassOnlyWhenNeeded: with no hash repeated the first
+// pass is exact and asks for no second one; a collision between different
+// values asks for one, which finds nothing.
+func TestDuplicatesSecondPassOnlyWhenNeeded(t *testing.T) {
+	mem := checkedMem(t)
+	b := newBatch(t, mem, 1, col{"i", tInt, []any{1, 2, nil, 3}}, col{"s", tString, []any{"a", "b", "c", nil}})
+	release(t, b)
+	for _, tc := range []struct {
+		name   string
+		rule   *rules.Rule
+		hash   func([]byte) uint64
+		second bool
+	}{
+		{"unique int", newRule(rules.UniqueSpec{}, atMost(0), "i"), nil, false},
+		{"key int, one missing", newRule(rules.KeySpec{}, atMost(0), "i"), nil, false},
+		{"key two columns", newRule(rules.KeySpec{}, atMost(0), "i", "s"), nil, false},
+		{"unique string, colliding", newRule(rules.UniqueSpec{}, atMost(0), "s"), func([]byte) uint64 { return 1 }, true},
+		{"key int, colliding", newRule(rules.KeySpec{}, atMost(0), "i"), func([]byte) uint64 { return 1 }, true},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			c := compile(t, tc.rule, envOf(b, 10))
+			if tc.hash != nil {
+				hashes(t, c, tc.hash)
+			}
+			first := c.NewAccumulator().(*HashAccumulator)
+			observe(t, first, b)
+			second := first.SecondPass()
+			if (second != nil) != tc.second {
+				t.Fatalf("second pass %v, want one: %v", second, tc.second)
+			}
+			res := first.Finish()
+			if second != nil {
+				observe(t, second, b)
+				res = second.Finish()
+			}
+			if res.Measure.Value != 0 || res.Offending != nil || !strings.HasPrefix(res.Message, "none of ") || strings.Contains(res.Message, "hash") {
+				t.Errorf("result %v %+v %q, want 0, nothing listed, none", res.Measure.Value, res.Offending, res.Message)
+			}
+		})
+	}
+}

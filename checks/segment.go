@@ -426,6 +426,11 @@ func (a *SegmentAccumulator) Merge(other Accumulator) error {
 				return err
 			}
 		case mine.acc == nil && g.acc == nil:
+			// A group that needed no second pass: in the second pass
+			// both sides share the merged first pass's accumulator.
+			if a.second {
+				break
+			}
 			if err := mine.final.Merge(g.final); err != nil {
 				return err
 			}
