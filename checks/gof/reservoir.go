@@ -28,7 +28,7 @@ import (
 type Reservoir struct {
 	size  int
 	seen  int64
-	items []float64
+	items chunks
 	rng   *rand.Rand
 	// Algorithm L state once full: w is the largest of the size smallest
 	// uniform keys of the values seen, next the 1-based position of the
@@ -55,9 +55,8 @@ func NewReservoir(size int, seed uint64) (*Reservoir, error) {
 		return nil, fmt.Errorf("reservoir size must be at least 1, got %d", size)
 	}
 	return &Reservoir{
-		size:  size,
-		items: make([]float64, 0, min(size, 1<<16)),
-		rng:   rand.New(rand.NewPCG(seed, 0x7265736572766f69)),
+		size: size,
+		rng:  rand.New(rand.NewPCG(seed, 0x7265736572766f69)),
 	}, nil
 }
 
@@ -73,7 +72,7 @@ func (r *Reservoir) Complete() bool { return r.seen <= int64(r.size) }
 
 // Values returns a copy of the sample: min(Seen, Size) values, in no
 // particular order.
-func (r *Reservoir) Values() []float64 { return slices.Clone(r.items) }
+func (r *Reservoir) Values() []float64 { return r.items.all() }
 
 // Add offers one value.
 func (r *Reservoir) Add(v float64) {
@@ -101,16 +100,16 @@ func (r *Reservoir) AddAll(vs []float64) {
 // whole stream would hold, in the same order. Sampling never depends on
 // positions.
 func (r *Reservoir) AddAllAt(pos int64, vs []float64) {
-	if len(r.items) < r.size && len(vs) > 0 {
-		r.note(pos, min(r.size-len(r.items), len(vs)))
+	if r.items.n < r.size && len(vs) > 0 {
+		r.note(pos, min(r.size-r.items.n, len(vs)))
 	}
 	for len(vs) > 0 {
-		if len(r.items) < r.size {
-			take := min(r.size-len(r.items), len(vs))
-			r.items = append(r.items, vs[:take]...)
+		if r.items.n < r.size {
+			take := min(r.size-r.items.n, len(vs))
+			r.items.add(vs[:take], r.size)
 			r.seen += int64(take)
 			vs = vs[take:]
-			if len(r.items) == r.size {
+			if r.items.n == r.size {
 				r.resume()
 			}
 			continue
@@ -122,7 +121,7 @@ func (r *Reservoir) AddAllAt(pos int64, vs []float64) {
 			return
 		}
 		r.seen += gap + 1
-		r.items[r.rng.IntN(r.size)] = vs[gap]
+		r.items.set(r.rng.IntN(r.size), vs[gap])
 		vs = vs[gap+1:]
 		r.w *= math.Exp(math.Log(r.uniform()) / float64(r.size))
 		r.skip()
@@ -189,9 +188,12 @@ func (r *Reservoir) Merge(other *Reservoir) error {
 	}
 	total := r.seen + other.seen
 	if total <= int64(r.size) {
-		r.items, r.runs = mergeRuns(r.items, r.runs, other.items, other.runs)
+		var merged []float64
+		merged, r.runs = mergeRuns(r.items.all(), r.runs, other.items.all(), other.runs)
+		r.items = chunks{}
+		r.items.add(merged, r.size)
 		r.seen = total
-		if len(r.items) == r.size {
+		if r.items.n == r.size {
 			r.resume()
 		}
 		return nil
@@ -207,9 +209,11 @@ func (r *Reservoir) Merge(other *Reservoir) error {
 			remB--
 		}
 	}
-	a := r.pick(r.items, j)
-	b := r.pick(other.items, r.size-j)
-	r.items = append(a, b...)
+	a := r.pick(r.items.all(), j)
+	b := r.pick(other.items.all(), r.size-j)
+	r.items = chunks{}
+	r.items.add(a, r.size)
+	r.items.add(b, r.size)
 	r.seen = total
 	r.resume()
 	return nil
@@ -248,12 +252,53 @@ func mergeRuns(a []float64, ra []run, b []float64, rb []run) ([]float64, []run) 
 	return vals, runs
 }
 
-// pick returns a uniform random subset of k of the values, as a new slice.
-func (r *Reservoir) pick(values []float64, k int) []float64 {
-	c := slices.Clone(values)
+// pick returns a uniform random subset of k of the values, in place.
+func (r *Reservoir) pick(c []float64, k int) []float64 {
 	for i := range k {
 		j := i + r.rng.IntN(len(c)-i)
 		c[i], c[j] = c[j], c[i]
 	}
 	return c[:k]
+}
+
+// chunks holds a reservoir's values in pieces of at most chunkLen, so that
+// filling a large reservoir never copies what it holds into a larger
+// array (a slice grown by append peaks at about twice its size).
+type chunks struct {
+	parts [][]float64
+	n     int
+}
+
+// A piece holds chunkLen values (512 KiB); value i is in piece
+// i >> chunkBits. Every piece but the last is full.
+const (
+	chunkBits = 16
+	chunkLen  = 1 << chunkBits
+)
+
+// add appends vs, in pieces sized for a reservoir of size values.
+func (c *chunks) add(vs []float64, size int) {
+	for len(vs) > 0 {
+		k := len(c.parts) - 1
+		if k < 0 || len(c.parts[k]) == chunkLen {
+			c.parts = append(c.parts, make([]float64, 0, min(chunkLen, max(size-c.n, len(vs)))))
+			k++
+		}
+		take := min(chunkLen-len(c.parts[k]), len(vs))
+		c.parts[k] = append(c.parts[k], vs[:take]...)
+		c.n += take
+		vs = vs[take:]
+	}
+}
+
+// set replaces value i.
+func (c *chunks) set(i int, v float64) { c.parts[i>>chunkBits][i&(chunkLen-1)] = v }
+
+// all returns the values in order, as a new slice.
+func (c *chunks) all() []float64 {
+	out := make([]float64, 0, c.n)
+	for _, p := range c.parts {
+		out = append(out, p...)
+	}
+	return out
 }

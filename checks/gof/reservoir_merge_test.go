@@ -87,3 +87,43 @@ func TestReservoirAddAllContinues(t *testing.T) {
 		t.Errorf("merged %v, want 0..19", got)
 	}
 }
+
+// TestChunks: values stored in pieces read back in order, across piece
+// boundaries, and set replaces the value at its index.
+func TestChunks(t *testing.T) {
+	tests := []struct {
+		name    string
+		size    int
+		batches []int // lengths of successive adds
+	}{
+		{"small reservoir, one piece", 500, []int{100, 400}},
+		{"exactly one piece", chunkLen, []int{chunkLen}},
+		{"across pieces in one add", 3*chunkLen + 7, []int{3*chunkLen + 7}},
+		{"across pieces in odd adds", 2*chunkLen + 1, []int{1000, chunkLen, chunkLen - 999}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var c chunks
+			var want []float64
+			for _, n := range tc.batches {
+				vs := seq(len(want), len(want)+n)
+				c.add(vs, tc.size)
+				want = append(want, vs...)
+			}
+			for _, i := range []int{0, chunkLen - 1, chunkLen, len(want) - 1} {
+				if i < len(want) {
+					c.set(i, -float64(i))
+					want[i] = -float64(i)
+				}
+			}
+			if got := c.all(); c.n != len(want) || !slices.Equal(got, want) {
+				t.Errorf("%d values read back differently (n %d)", len(want), c.n)
+			}
+			for k, p := range c.parts[:len(c.parts)-1] {
+				if len(p) != chunkLen {
+					t.Errorf("piece %d of %d holds %d values, want %d", k, len(c.parts), len(p), chunkLen)
+				}
+			}
+		})
+	}
+}
