@@ -172,7 +172,10 @@ type DistributionState struct {
 	Min, Max float64 // smallest and largest finite value (numeric families)
 	// Sample is a uniform sample of at most the rule's sample size of the
 	// finite values, all of them while there are no more (nil before the
-	// first value).
+	// first value), then in row order whatever batches each accumulator
+	// saw. Once it samples, which values it keeps depends on the seed and
+	// on how the batches were dealt to accumulators (the engine's number
+	// of workers): each draws its own.
 	Sample *gof.Reservoir
 	// Outside counts, per candidate, the values it cannot produce.
 	Outside []OutsideValues

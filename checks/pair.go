@@ -151,6 +151,9 @@ func asFloats(c column, a arrow.Array, s *scratch) []float64 {
 // reservoirs seeded alike. A reservoir's draws depend only on how many
 // values it has seen, never on the values, so the two keep the same
 // positions through adding and merging, and their samples stay paired.
+// While it keeps every pair it holds them in row order, however batches
+// were dealt to the accumulators merged; once it samples, which pairs it
+// keeps depends on the seed and on that dealing (the number of workers).
 type pairSample struct {
 	x, y *gof.Reservoir
 }
