@@ -120,9 +120,12 @@ type batchRows struct {
 	writers []cellWriter
 }
 
-// rows reads batch b.
-func (c *dupCheck) rows(b *source.Batch) (batchRows, error) {
+// rows reads batch b; the writers widen narrow numbers into s.
+func (c *dupCheck) rows(b *source.Batch, s *hashScratch) (batchRows, error) {
 	r := batchRows{n: int(b.Record.NumRows()), writers: make([]cellWriter, len(c.cols))}
+	if len(s.ints) < len(c.cols) {
+		s.ints, s.floats = make([][]int64, len(c.cols)), make([][]float64, len(c.cols))
+	}
 	for k, col := range c.cols {
 		arr, err := col.in(b)
 		if err != nil {
@@ -132,7 +135,7 @@ func (c *dupCheck) rows(b *source.Batch) (batchRows, error) {
 		if c.key {
 			invalid = invalidTexts(b, col.index)
 		}
-		r.writers[k] = writerFor(arr, invalid)
+		r.writers[k] = writerFor(arr, invalid, &s.ints[k], &s.floats[k])
 		if k == 0 {
 			r.first = arr
 		}
@@ -160,11 +163,12 @@ func (r *batchRows) key(buf []byte, i int) []byte {
 	return buf
 }
 
-// hashScratch is what hashing reuses from one batch to the next.
+// hashScratch is what hashing reuses from one batch to the next: a row's
+// bytes, and per column the values of narrow number types widened.
 type hashScratch struct {
 	buf    []byte
-	ints   []int64
-	floats []float64
+	ints   [][]int64
+	floats [][]float64
 }
 
 // appendHashes appends to dst the hash of every row of r that counts, in
@@ -181,13 +185,13 @@ func (c *dupCheck) appendHashes(dst []uint64, r *batchRows, s *hashScratch) []ui
 	}
 	start := len(dst)
 	if c.cols[0].class == classNumber {
-		for i, x := range float64s(r.first, &s.floats) {
+		for i, x := range float64s(r.first, &s.floats[0]) {
 			if r.counted.at(i) {
 				dst = append(dst, floatKey(x))
 			}
 		}
 	} else {
-		for i, x := range int64s(r.first, &s.ints) {
+		for i, x := range int64s(r.first, &s.ints[0]) {
 			if r.counted.at(i) {
 				dst = append(dst, uint64(x))
 			}
@@ -220,8 +224,9 @@ const (
 )
 
 // writerFor returns the cellWriter of one batch's array; invalid holds the
-// text of the cells that did not parse, by row.
-func writerFor(a arrow.Array, invalid map[int]string) cellWriter {
+// text of the cells that did not parse, by row; narrow numbers are widened
+// into *ints or *floats.
+func writerFor(a arrow.Array, invalid map[int]string, ints *[]int64, floats *[]float64) cellWriter {
 	v := validOf(a)
 	var value cellWriter
 	switch a := a.(type) {
@@ -233,14 +238,24 @@ func writerFor(a arrow.Array, invalid map[int]string) cellWriter {
 		value = func(buf []byte, i int) []byte { return appendText(buf, a.Value(i)) }
 	case *array.Boolean:
 		value = func(buf []byte, i int) []byte { return append(buf, byte(boolIndex(a.Value(i)))) }
+	// Numbers are read (narrower types widened) on first use: the rows of
+	// a one-column key are mostly hashed without their bytes.
 	case *array.Float64, *array.Float32:
-		var scratch []float64
-		xs := float64s(a, &scratch)
-		value = func(buf []byte, i int) []byte { return binary.LittleEndian.AppendUint64(buf, floatKey(xs[i])) }
+		var xs []float64
+		value = func(buf []byte, i int) []byte {
+			if xs == nil {
+				xs = float64s(a, floats)
+			}
+			return binary.LittleEndian.AppendUint64(buf, floatKey(xs[i]))
+		}
 	default:
-		var scratch []int64
-		xs := int64s(a, &scratch)
-		value = func(buf []byte, i int) []byte { return binary.LittleEndian.AppendUint64(buf, uint64(xs[i])) }
+		var xs []int64
+		value = func(buf []byte, i int) []byte {
+			if xs == nil {
+				xs = int64s(a, ints)
+			}
+			return binary.LittleEndian.AppendUint64(buf, uint64(xs[i]))
+		}
 	}
 	return func(buf []byte, i int) []byte {
 		if v.at(i) {
@@ -301,7 +316,7 @@ const chunkMax = 1 << 16
 // grow by copying, and small accumulators (the groups of a segmented rule)
 // keep few.
 func (a *HashAccumulator) Observe(b *source.Batch) error {
-	r, err := a.check.rows(b)
+	r, err := a.check.rows(b, &a.scratch)
 	if err != nil {
 		return err
 	}
@@ -570,7 +585,7 @@ func (a *DuplicateAccumulator) Observe(b *source.Batch) error {
 // counts and whose hash is a suspect. The bytes are overwritten by the next
 // call.
 func (a *DuplicateAccumulator) eachSuspect(b *source.Batch, f func(i int, key []byte)) error {
-	r, err := a.check.rows(b)
+	r, err := a.check.rows(b, &a.scratch)
 	if err != nil {
 		return err
 	}

@@ -18,15 +18,17 @@ const dupBenchRows = 1 << 20
 
 // dupBenchBatches returns dupBenchRows rows in engine-sized batches: id
 // int64 counting from 1, every 1000th row repeating the previous id as
-// bench/gen plants them, and s the id written as text.
+// bench/gen plants them, ts a timestamp of id seconds and s the id
+// written as text.
 func dupBenchBatches(b *testing.B) []*source.Batch {
 	b.Helper()
 	const size = 1 << 16
 	mem := memory.NewGoAllocator()
-	schema := arrow.NewSchema([]arrow.Field{{Name: "id", Type: tInt}, {Name: "s", Type: tString}}, nil)
+	schema := arrow.NewSchema([]arrow.Field{{Name: "id", Type: tInt}, {Name: "ts", Type: tTime}, {Name: "s", Type: tString}}, nil)
 	var out []*source.Batch
 	for first := 0; first < dupBenchRows; first += size {
 		ib := array.NewInt64Builder(mem)
+		tb := array.NewTimestampBuilder(mem, tTime)
 		sb := array.NewStringBuilder(mem)
 		for i := first; i < first+size; i++ {
 			id := int64(i + 1)
@@ -34,11 +36,13 @@ func dupBenchBatches(b *testing.B) []*source.Batch {
 				id--
 			}
 			ib.Append(id)
+			tb.Append(arrow.Timestamp(id * 1_000_000))
 			sb.Append(fmt.Sprintf("K-%08d", id))
 		}
-		ids, ss := ib.NewArray(), sb.NewArray()
-		rec := array.NewRecordBatch(schema, []arrow.Array{ids, ss}, size)
+		ids, ts, ss := ib.NewArray(), tb.NewArray(), sb.NewArray()
+		rec := array.NewRecordBatch(schema, []arrow.Array{ids, ts, ss}, size)
 		ids.Release()
+		ts.Release()
 		ss.Release()
 		out = append(out, &source.Batch{Record: rec, FirstRow: int64(first + 1)})
 	}
@@ -63,6 +67,7 @@ func BenchmarkDuplicates(b *testing.B) {
 	}{
 		{"key int64", newRule(rules.KeySpec{}, atMost(0), "id")},
 		{"unique int64", newRule(rules.UniqueSpec{}, atMost(0), "id")},
+		{"key timestamp", newRule(rules.KeySpec{}, atMost(0), "ts")},
 		{"key string", newRule(rules.KeySpec{}, atMost(0), "s")},
 		{"key int64 string", newRule(rules.KeySpec{}, atMost(0), "id", "s")},
 	}

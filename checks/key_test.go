@@ -74,7 +74,7 @@ func TestKeyDecode(t *testing.T) {
 	release(t, b)
 	c := compile(t, newRule(rules.KeySpec{}, atMost(0), "s", "x", "b", "d"), envOf(b, 10))
 	d := c.(*dupCheck)
-	r, err := d.rows(b)
+	r, err := d.rows(b, &hashScratch{})
 	if err != nil {
 		t.Fatal(err)
 	}
