@@ -7,6 +7,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 
 	"github.com/assay-project/assay/checks/dist"
+	"github.com/assay-project/assay/checks/internal/order"
 	"github.com/assay-project/assay/checks/outlier"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -27,10 +28,11 @@ import (
 // statistics, the tests remove values one at a time, and the tail method
 // fits a family by maximum likelihood. They keep every finite value, 8
 // bytes each (esd and grubbs also keep its row number, 8 bytes more, to
-// name the rows their tests flag). Nothing is sampled: the thresholds are
-// exact.
+// name the rows their tests flag), in one slice per batch (order.Chunks),
+// which Merge moves rather than copies. Nothing is sampled: the thresholds
+// are exact.
 //
-// Finish. The method is fitted: Tukey's fences (outlier.TukeyFences,
+// Finish. The method is fitted: Tukey's fences (outlier.NewFences,
 // quartiles by R's type 7), mean ± k sd (outlier.ZScore), the modified
 // z-score (outlier.RobustZ, Iglewicz & Hoaglin 1993), Rosner's generalized
 // ESD test (outlier.GeneralizedESD), Grubbs' two-sided test
@@ -142,9 +144,10 @@ type ExtremesState struct {
 	// finite values (zscore only).
 	Moments *outlier.CoMoments
 	// Values are the finite values, in no particular order (every method
-	// but zscore); Rows the data-row number of each (esd and grubbs).
-	Values []float64
-	Rows   []int64
+	// but zscore); Rows the data-row number of each (esd and grubbs), in
+	// the same order and the same parts.
+	Values order.Chunks[float64]
+	Rows   order.Chunks[int64]
 }
 
 // finite is the number of finite values seen.
@@ -152,7 +155,7 @@ func (s *ExtremesState) finite() int64 {
 	if s.Moments != nil {
 		return int64(s.Moments.N)
 	}
-	return int64(len(s.Values))
+	return int64(s.Values.Len())
 }
 
 // ExtremesAccumulator is the first pass of an extremes rule.
@@ -160,7 +163,7 @@ type ExtremesAccumulator struct {
 	ExtremesState
 	check   *extremesCheck
 	scratch scratch
-	vals    []float64
+	vals    []float64 // zscore: the batch's finite values
 	found   *extFinding
 }
 
@@ -170,8 +173,17 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 	if err != nil {
 		return err
 	}
-	finite := a.vals[:0]
-	keepRows := a.check.keepsRows()
+	var (
+		finite = a.vals[:0]
+		rows   []int64
+		values = arr.Len() - arr.NullN()
+	)
+	if a.Moments == nil {
+		finite = make([]float64, 0, values) // kept: a part of its own
+	}
+	if a.check.keepsRows() {
+		rows = make([]int64, 0, values)
+	}
 	eachNumber(arr, &a.scratch, func(i int, x float64) {
 		switch {
 		case math.IsNaN(x):
@@ -186,15 +198,16 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 		}
 		a.Min, a.Max = min(a.Min, x), max(a.Max, x)
 		finite = append(finite, x)
-		if keepRows {
-			a.Rows = append(a.Rows, b.Row(i))
+		if rows != nil {
+			rows = append(rows, b.Row(i))
 		}
 	})
-	a.vals = finite
 	if a.Moments != nil {
+		a.vals = finite
 		return a.Moments.AddColumns([][]float64{finite})
 	}
-	a.Values = append(a.Values, finite...)
+	a.Values.Add(finite)
+	a.Rows.Add(rows) // the same length and capacity: kept or copied alike
 	return nil
 }
 
@@ -217,7 +230,8 @@ func eachNumber(arr arrow.Array, s *scratch, f func(i int, x float64)) {
 	}
 }
 
-// Merge folds other's counts, moments and values into a.
+// Merge folds other's counts, moments and values into a; other's values
+// are moved, not copied, and other is left without them.
 func (a *ExtremesAccumulator) Merge(other Accumulator) error {
 	o, ok := other.(*ExtremesAccumulator)
 	if !ok || o.check != a.check {
@@ -232,8 +246,8 @@ func (a *ExtremesAccumulator) Merge(other Accumulator) error {
 			return err
 		}
 	}
-	a.Values = append(a.Values, o.Values...)
-	a.Rows = append(a.Rows, o.Rows...)
+	a.Values.Splice(&o.Values)
+	a.Rows.Splice(&o.Rows)
 	return nil
 }
 

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/assay-project/assay/checks/dist"
+	"github.com/assay-project/assay/checks/internal/order"
 	"github.com/assay-project/assay/checks/outlier"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -78,45 +79,97 @@ func (c *extremesCheck) analyse(st *ExtremesState) *extFinding {
 		c.zscore(st, f)
 		return f
 	}
-	sorted := st.Values
+	values := st.Values.Flatten()
+	switch m {
+	case rules.ExtremesTukey, rules.ExtremesRobustZ:
+		c.byThreshold(st, values, f)
+		return f
+	}
+	// The tail fit and the tests work on the sorted values; the tests name
+	// values by their position, so they are given the values as kept.
+	sorted := values
 	if c.keepsRows() {
-		sorted = slices.Clone(st.Values) // the tests name values by their position
+		sorted = slices.Clone(values)
 	}
 	slices.Sort(sorted)
 	switch m {
+	case rules.ExtremesTail:
+		c.tail(sorted, f)
+	case rules.ExtremesESD:
+		c.esd(values, st.Rows.Flatten(), sorted, f)
+	case rules.ExtremesGrubbs:
+		c.grubbs(values, st.Rows.Flatten(), sorted, f)
+	}
+	return f
+}
+
+// byThreshold fits Tukey's fences or the modified z-score without
+// sorting: the quartiles and the median are order statistics found by
+// selection (order.Quantiles7, R's type 7, as sorting would give them),
+// the MAD the median of the deviations from the median, found the same
+// way; the values flagged are counted in one pass.
+func (c *extremesCheck) byThreshold(st *ExtremesState, values []float64, f *extFinding) {
+	q := order.Quantiles7(values, 0.25, 0.5, 0.75)
+	var r outlier.Rule
+	switch c.spec.Method {
 	case rules.ExtremesTukey:
-		fences, err := outlier.TukeyFences(sorted, c.spec.K)
-		if err != nil {
-			f.err = err
-			return f
-		}
+		fences := outlier.NewFences(q[0], q[2], c.spec.K) // k > 0 and finite: newExtremesCheck
 		f.estimates = map[string]float64{"q1": fences.Q1, "q3": fences.Q3, "iqr": fences.IQR(), "k": c.spec.K,
 			"lower": fences.Lower, "upper": fences.Upper}
 		f.fitted = fmt.Sprintf("beyond Tukey's fences [%s, %s] (Q1 %s, Q3 %s, k = %s)", sig(fences.Lower), sig(fences.Upper),
 			sig(fences.Q1), sig(fences.Q3), number(c.spec.K))
-		f.setScale(outlier.Quantile7(sorted, 0.5), fences.IQR(), fences.Lower, fences.Upper)
-		f.flagByRule(fences, sorted, nil)
+		f.setScale(q[1], fences.IQR(), fences.Lower, fences.Upper)
+		r = fences
 	case rules.ExtremesRobustZ:
-		rz, err := outlier.NewRobustZ(sorted, c.spec.K)
-		if err != nil {
-			f.err = err
-			return f
-		}
+		rz := outlier.RobustZ{Median: q[1], MAD: medianAbsDev(values, q[1]), Cutoff: c.spec.K}
 		// |M| > k exactly when x lies beyond median ± k MAD / 0.6745.
 		half := c.spec.K * rz.MAD / 0.6745
 		f.estimates = map[string]float64{"median": rz.Median, "mad": rz.MAD, "k": c.spec.K,
 			"lower": rz.Median - half, "upper": rz.Median + half}
 		f.fitted = fmt.Sprintf("with a modified z-score beyond %s (median %s, MAD %s)", number(c.spec.K), sig(rz.Median), sig(rz.MAD))
 		f.setScale(rz.Median, rz.MAD, rz.Median-half, rz.Median+half)
-		f.flagByRule(rz, sorted, nil)
-	case rules.ExtremesTail:
-		c.tail(sorted, f)
-	case rules.ExtremesESD:
-		c.esd(st, sorted, f)
-	case rules.ExtremesGrubbs:
-		c.grubbs(st, sorted, f)
+		r = rz
 	}
-	return f
+	// The values flagged below the center are the least ones and those
+	// flagged above it the greatest (each threshold lies beyond the
+	// center, on its side, and Outside is monotone in the distance from
+	// it), so the least and greatest values not flagged are the order
+	// statistics sorting would put at the whiskers.
+	var (
+		lo, hi           int64
+		whiskLo, whiskHi = math.Inf(1), math.Inf(-1)
+	)
+	for _, x := range values {
+		switch {
+		case !r.Outside(x):
+			whiskLo, whiskHi = min(whiskLo, x), max(whiskHi, x)
+		case f.low(x):
+			lo++
+		default:
+			hi++
+		}
+	}
+	box := &report.Box{Min: report.Number(st.Min), Q1: report.Number(q[0]), Median: report.Number(q[1]),
+		Q3: report.Number(q[2]), Max: report.Number(st.Max), WhiskerLo: report.Number(whiskLo), WhiskerHi: report.Number(whiskHi)}
+	if lo+hi == int64(len(values)) {
+		box.WhiskerLo, box.WhiskerHi = report.Number(math.NaN()), report.Number(math.NaN())
+	}
+	f.settle(lo, hi, box, valueHistogram(values, st.Min, st.Max, nil), func(x float64, _ int64) (bool, float64) {
+		return r.Outside(x), r.Score(x)
+	})
+}
+
+// medianAbsDev is the MAD of values about their median med, unscaled
+// (R's mad(constant = 1)): the type-7 median of |x − med|, found by
+// selection on a copy of the deviations. |x − med| is exactly med − x
+// below the median, so it equals the MAD outlier.NewRobustZ reads from
+// the sorted values.
+func medianAbsDev(values []float64, med float64) float64 {
+	dev := make([]float64, len(values))
+	for i, x := range values {
+		dev[i] = math.Abs(x - med)
+	}
+	return order.Quantiles7(dev, 0.5)[0]
 }
 
 // setScale records the center, scale and thresholds of a finding; values
@@ -150,17 +203,31 @@ func (f *extFinding) flagByRule(r outlier.Rule, sorted []float64, density func(a
 			}
 		}
 	}
-	f.settle(sorted, lo, hi, density, func(x float64, _ int64) (bool, float64) { return r.Outside(x), r.Score(x) })
+	f.settleSorted(sorted, lo, hi, density, func(x float64, _ int64) (bool, float64) { return r.Outside(x), r.Score(x) })
 }
 
-// settle records that the lo smallest and hi largest of the sorted finite
-// values are extreme, makes the plot data, and makes the second pass's
-// match from hit.
-func (f *extFinding) settle(sorted []float64, lo, hi int64, density func(a, b float64) float64, hit func(x float64, row int64) (bool, float64)) {
+// settleSorted records that the lo smallest and hi largest of the sorted
+// finite values are extreme, with their box plot and histogram (density
+// as in flagByRule), and makes the second pass's match from hit.
+func (f *extFinding) settleSorted(sorted []float64, lo, hi int64, density func(a, b float64) float64, hit func(x float64, row int64) (bool, float64)) {
+	n := int64(len(sorted))
+	nan := report.Number(math.NaN())
+	box := &report.Box{Min: report.Number(sorted[0]), Q1: report.Number(outlier.Quantile7(sorted, 0.25)),
+		Median: report.Number(outlier.Quantile7(sorted, 0.5)), Q3: report.Number(outlier.Quantile7(sorted, 0.75)),
+		Max: report.Number(sorted[n-1]), WhiskerLo: nan, WhiskerHi: nan}
+	if lo+hi < n {
+		box.WhiskerLo, box.WhiskerHi = report.Number(sorted[lo]), report.Number(sorted[n-1-hi])
+	}
+	f.settle(lo, hi, box, valueHistogram(sorted, sorted[0], sorted[n-1], density), hit)
+}
+
+// settle records that lo finite values below the center and hi above it
+// are extreme, the plot data, and the second pass's match from hit.
+func (f *extFinding) settle(lo, hi int64, box *report.Box, hist *report.Histogram, hit func(x float64, row int64) (bool, float64)) {
 	f.count += lo + hi
 	f.below += lo
 	f.above += hi
-	f.plots(sorted, lo, hi, density)
+	f.ext.Box, f.ext.Histogram = box, hist
 	f.match = withInf(hit)
 }
 
@@ -173,21 +240,6 @@ func withInf(hit func(x float64, row int64) (bool, float64)) func(x float64, row
 		}
 		return hit(x, row)
 	}
-}
-
-// plots makes the box plot and the histogram of the sorted finite values,
-// of which the lo smallest and hi largest are extreme.
-func (f *extFinding) plots(sorted []float64, lo, hi int64, density func(a, b float64) float64) {
-	n := int64(len(sorted))
-	nan := report.Number(math.NaN())
-	box := &report.Box{Min: report.Number(sorted[0]), Q1: report.Number(outlier.Quantile7(sorted, 0.25)),
-		Median: report.Number(outlier.Quantile7(sorted, 0.5)), Q3: report.Number(outlier.Quantile7(sorted, 0.75)),
-		Max: report.Number(sorted[n-1]), WhiskerLo: nan, WhiskerHi: nan}
-	if lo+hi < n {
-		box.WhiskerLo, box.WhiskerHi = report.Number(sorted[lo]), report.Number(sorted[n-1-hi])
-	}
-	f.ext.Box = box
-	f.ext.Histogram = valueHistogram(sorted, density)
 }
 
 // histBins is the number of equal-width bins a histogram of n values gets:
@@ -203,12 +255,11 @@ func binOf(x, lo, hi float64, k int) int {
 	return min(k-1, max(0, int((x-lo)/(hi-lo)*float64(k))))
 }
 
-// valueHistogram counts sorted values in equal-width bins over their
-// range; density, if not nil, gives the fitted probability per unit in a
-// bin [a, b].
-func valueHistogram(sorted []float64, density func(a, b float64) float64) *report.Histogram {
-	lo, hi := sorted[0], sorted[len(sorted)-1]
-	k := histBins(int64(len(sorted)))
+// valueHistogram counts values, in any order, in equal-width bins over
+// their range [lo, hi] (one pass); density, if not nil, gives the fitted
+// probability per unit in a bin [a, b].
+func valueHistogram(values []float64, lo, hi float64, density func(a, b float64) float64) *report.Histogram {
+	k := histBins(int64(len(values)))
 	if hi == lo {
 		k = 1
 	}
@@ -217,7 +268,7 @@ func valueHistogram(sorted []float64, density func(a, b float64) float64) *repor
 		h.Edges = append(h.Edges, report.Number(lo+(hi-lo)*float64(j)/float64(k)))
 	}
 	h.Edges[k] = report.Number(hi)
-	for _, x := range sorted {
+	for _, x := range values {
 		if k == 1 {
 			h.Counts[0]++
 			continue
@@ -320,16 +371,17 @@ func finite(m map[string]float64) map[string]float64 {
 	return m
 }
 
-// esd runs the generalized ESD test on the finite values. Its outliers
-// are the values it removed up to the last step whose R exceeds λ, named
-// by their rows.
-func (c *extremesCheck) esd(st *ExtremesState, sorted []float64, f *extFinding) {
-	n := len(st.Values)
+// esd runs the generalized ESD test on the finite values, as kept; rows
+// are their data rows and sorted the same values sorted. Its outliers are
+// the values it removed up to the last step whose R exceeds λ, named by
+// their rows.
+func (c *extremesCheck) esd(values []float64, rows []int64, sorted []float64, f *extFinding) {
+	n := len(values)
 	r := min(c.spec.MaxOutliers, n-2)
 	if r < c.spec.MaxOutliers {
 		f.notes = append(f.notes, fmt.Sprintf("up to %d outliers looked for, the most %s values allow", r, thousands(int64(n))))
 	}
-	res, err := outlier.GeneralizedESD(st.Values, r, c.spec.Alpha)
+	res, err := outlier.GeneralizedESD(values, r, c.spec.Alpha)
 	if err != nil {
 		f.err = err
 		return
@@ -339,7 +391,7 @@ func (c *extremesCheck) esd(st *ExtremesState, sorted []float64, f *extFinding) 
 		f.ext.Steps = append(f.ext.Steps, report.ESDStep{Value: report.Number(s.Value), R: report.Number(s.R), Lambda: report.Number(s.Lambda)})
 	}
 	for _, s := range res.Steps[:res.Outliers] {
-		flagged[st.Rows[s.Index]] = s.R
+		flagged[rows[s.Index]] = s.R
 	}
 	mean, sd := meanSD(sorted)
 	f.estimates = map[string]float64{"mean": mean, "sd": sd}
@@ -348,15 +400,16 @@ func (c *extremesCheck) esd(st *ExtremesState, sorted []float64, f *extFinding) 
 	f.flagSteps(res.Steps[:res.Outliers], sorted, mean, sd, flagged)
 }
 
-// grubbs runs Grubbs' two-sided test on the finite values.
-func (c *extremesCheck) grubbs(st *ExtremesState, sorted []float64, f *extFinding) {
-	g, err := outlier.Grubbs(st.Values, c.spec.Alpha, outlier.TwoSided)
+// grubbs runs Grubbs' two-sided test on the finite values, as kept; rows
+// and sorted as in esd.
+func (c *extremesCheck) grubbs(values []float64, rows []int64, sorted []float64, f *extFinding) {
+	g, err := outlier.Grubbs(values, c.spec.Alpha, outlier.TwoSided)
 	if err != nil {
 		f.err = err
 		return
 	}
 	mean, sd := meanSD(sorted)
-	n := int64(len(st.Values))
+	n := int64(len(values))
 	f.statistic = &report.Statistic{Name: "G", Value: report.Number(g.G), N: n}
 	p := g.P
 	f.pValue = &p
@@ -367,7 +420,7 @@ func (c *extremesCheck) grubbs(st *ExtremesState, sorted []float64, f *extFindin
 	if g.Outlier {
 		verdict = "an outlier"
 		steps = []outlier.ESDStep{{Index: g.Index, Value: g.Value, R: g.G}}
-		flagged[st.Rows[g.Index]] = g.G
+		flagged[rows[g.Index]] = g.G
 	}
 	f.fitted = fmt.Sprintf("outliers by Grubbs' test: %s (G = %s, critical %s, p-value %s, alpha %s)", verdict, sig(g.G),
 		sig(g.Critical), sig(g.P), number(c.spec.Alpha))
@@ -404,7 +457,7 @@ func (f *extFinding) flagSteps(steps []outlier.ESDStep, sorted []float64, mean, 
 	if !math.IsInf(upper, 0) {
 		f.estimates["upper"] = upper
 	}
-	f.settle(sorted, lo, hi, nil, func(_ float64, row int64) (bool, float64) {
+	f.settleSorted(sorted, lo, hi, nil, func(_ float64, row int64) (bool, float64) {
 		score, ok := rows[row]
 		return ok, score
 	})

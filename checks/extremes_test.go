@@ -8,9 +8,13 @@ import (
 	"math/rand/v2"
 	"os"
 	"slices"
+	"sort"
 	"strconv"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow/memory"
+
+	"github.com/assay-project/assay/checks/internal/order"
 	"github.com/assay-project/assay/checks/outlier"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -396,4 +400,133 @@ func TestExtremesCompileErrors(t *testing.T) {
 			t.Errorf("got %v, want %q", err, tc.want)
 		}
 	}
+}
+
+// TestExtremesBySelection: tukey and robust-z, fitted without sorting,
+// give what sorting the values gives, to the last bit: the quartiles,
+// median and MAD (type 7), the values beyond the thresholds on each side,
+// the box plot (its whiskers the least and greatest value not flagged),
+// a histogram of every value; with one accumulator and with two fed
+// interleaved batches and merged. Missing values are not judged.
+func TestExtremesBySelection(t *testing.T) {
+	mem := checkedMem(t)
+	rng := rand.New(rand.NewPCG(13, 14))
+	shapes := map[string]func() float64{
+		"random":  func() float64 { return 50 + 10*rng.NormFloat64() },
+		"planted": func() float64 { return rng.NormFloat64() + float64(rng.IntN(40)/39)*25*(rng.Float64()-0.5) },
+		"ties":    func() float64 { return float64(rng.IntN(4)) },
+		"equal":   func() float64 { return 2.5 },
+	}
+	for name, draw := range shapes {
+		for _, n := range []int{1, 2, 3, 4, 11, 500} {
+			xs := make([]float64, n+n/4)
+			var finite []float64
+			for i := range xs {
+				if i%4 == 3 {
+					xs[i] = math.NaN() // missing
+					continue
+				}
+				xs[i] = draw()
+				finite = append(finite, xs[i])
+			}
+			sorted := slices.Clone(finite)
+			slices.Sort(sorted)
+			med := order.Quantile7(sorted, 0.5)
+			dev := make([]float64, len(sorted))
+			for i, x := range sorted {
+				dev[i] = math.Abs(x - med)
+			}
+			slices.Sort(dev)
+			mad := order.Quantile7(dev, 0.5)
+			bs := batchesOf(t, mem, xs, 9)
+			for _, m := range []rules.ExtremesMethod{rules.ExtremesTukey, rules.ExtremesRobustZ} {
+				for _, k := range []float64{0.5, 1.5, 3.5} {
+					s := extSpec(m)
+					s.K = k
+					c := compile(t, newRule(s, atMost(0.05), "x"), envOf(bs[0], 5))
+					res := run(t, c, bs...)
+					sameJSON(t, "two workers", runTwoWorkers(t, c, bs...), res, 0)
+					what := fmt.Sprintf("%s n=%d %s k=%v", name, n, m, k)
+					q1, q3 := order.Quantile7(sorted, 0.25), order.Quantile7(sorted, 0.75)
+					lower, upper := q1-k*(q3-q1), q3+k*(q3-q1)
+					est := map[string]float64{"q1": q1, "q3": q3}
+					if m == rules.ExtremesRobustZ {
+						lower, upper = med-k*mad/0.6745, med+k*mad/0.6745
+						est = map[string]float64{"median": med, "mad": mad}
+					}
+					for key, want := range est {
+						if got := res.Estimates[key]; math.Float64bits(got) != math.Float64bits(want) {
+							t.Errorf("%s: %s %v, want %v", what, key, got, want)
+						}
+					}
+					ext := res.Extremes
+					below := int64(sort.SearchFloat64s(sorted, lower)) // values < lower
+					above := int64(len(sorted) - sort.Search(len(sorted), func(i int) bool { return sorted[i] > upper }))
+					if ext.Below != below || ext.Above != above {
+						t.Errorf("%s: %d below and %d above, want %d and %d", what, ext.Below, ext.Above, below, above)
+					}
+					nf := int64(len(sorted))
+					want := report.Box{Min: report.Number(sorted[0]), Q1: report.Number(q1), Median: report.Number(med),
+						Q3: report.Number(q3), Max: report.Number(sorted[nf-1]),
+						WhiskerLo: report.Number(math.NaN()), WhiskerHi: report.Number(math.NaN())}
+					if below+above < nf {
+						want.WhiskerLo, want.WhiskerHi = report.Number(sorted[below]), report.Number(sorted[nf-1-above])
+					}
+					if got := *ext.Box; fmt.Sprint(got) != fmt.Sprint(want) {
+						t.Errorf("%s: box %+v, want %+v", what, got, want)
+					}
+					var counted int64
+					for _, c := range ext.Histogram.Counts {
+						counted += c
+					}
+					if h := ext.Histogram; counted != nf || h.Edges[0] != report.Number(sorted[0]) || h.Edges[len(h.Edges)-1] != report.Number(sorted[nf-1]) {
+						t.Errorf("%s: histogram of %d values over [%v, %v], want %d over [%v, %v]", what, counted, h.Edges[0],
+							h.Edges[len(h.Edges)-1], nf, sorted[0], sorted[nf-1])
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestExtremesTestsTwoWorkers: esd and grubbs name the rows of the values
+// they remove; with the values kept in parts and merged from two
+// accumulators fed interleaved batches, each value keeps its row, and the
+// same rows are flagged as with one accumulator.
+func TestExtremesTestsTwoWorkers(t *testing.T) {
+	mem := checkedMem(t)
+	xs := plantedNormal(400, 5, map[int]float64{17: 95, 150: 3, 151: 90, 399: 99})
+	for i := 5; i < len(xs); i += 31 {
+		xs[i] = math.NaN()
+	}
+	bs := batchesOf(t, mem, xs, 13)
+	for _, m := range []rules.ExtremesMethod{rules.ExtremesESD, rules.ExtremesGrubbs} {
+		c := compile(t, newRule(extSpec(m), atMost(0.05), "x"), envOf(bs[0], 20))
+		res := run(t, c, bs...)
+		// Grubbs sums the values in the order kept, which the interleaving
+		// changes: G may differ in its last bits.
+		sameJSON(t, string(m)+" two workers", runTwoWorkers(t, c, bs...), res, 1e-12)
+		count, rows, _ := listed(res)
+		for _, r := range rows {
+			if x := xs[r-1]; x > 30 && x < 70 {
+				t.Errorf("%s: row %d (%v) listed, want only planted rows", m, r, x)
+			}
+		}
+		if count == 0 {
+			t.Errorf("%s: nothing flagged, want the planted values", m)
+		}
+	}
+}
+
+// batchesOf cuts xs (NaN for a missing value) into batches of at most
+// size rows, released at the end of the test.
+func batchesOf(t *testing.T, mem memory.Allocator, xs []float64, size int) []*source.Batch {
+	t.Helper()
+	var bs []*source.Batch
+	for lo := 0; lo < len(xs); lo += size {
+		b := numBatch(t, mem, int64(lo+1), xs[lo:min(len(xs), lo+size)])
+		release(t, b)
+		bs = append(bs, b)
+	}
+	return bs
 }

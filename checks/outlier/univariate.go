@@ -71,9 +71,15 @@ func TukeyFences(sorted []float64, k float64) (Fences, error) {
 	if err := checkSorted(sorted); err != nil {
 		return Fences{}, fmt.Errorf("tukey fences: %w", err)
 	}
-	q1, q3 := Quantile7(sorted, 0.25), Quantile7(sorted, 0.75)
+	return NewFences(Quantile7(sorted, 0.25), Quantile7(sorted, 0.75), k), nil
+}
+
+// NewFences are the fences of k around quartiles q1 <= q3 found by any
+// means (by selection, without sorting, say); k is not checked: it must
+// be finite and non-negative, as in TukeyFences.
+func NewFences(q1, q3, k float64) Fences {
 	iqr := q3 - q1
-	return Fences{Q1: q1, Q3: q3, K: k, Lower: q1 - k*iqr, Upper: q3 + k*iqr}, nil
+	return Fences{Q1: q1, Q3: q3, K: k, Lower: q1 - k*iqr, Upper: q3 + k*iqr}
 }
 
 // IQR is the interquartile range Q3 − Q1.
