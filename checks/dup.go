@@ -388,8 +388,9 @@ func (a *HashAccumulator) SecondPass() Accumulator {
 	}
 }
 
-// hashRuns is what the first pass learns from its hashes: rows hashes lie
-// in groups runs of equal hashes longer than one, the suspects.
+// hashRuns is what the first pass learns from its hashes: rows of them lie
+// in runs of equal hashes longer than one, groups is the number of those
+// runs and suspects the set of their hashes.
 type hashRuns struct {
 	rows, groups int64
 	suspects     suspectSet
