@@ -29,13 +29,10 @@ func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 	vc := &valueCheck{rule: r, env: env, col: c, breaks: "are outside the list " + listValues(s.Values)}
 	switch c.class {
 	case classString:
-		set := make(map[string]bool, len(s.Values))
-		for _, v := range s.Values {
-			set[v] = true
-		}
+		set := newTextSet(s.Values)
 		vc.scan = func(a arrow.Array, _ *scratch, hit func(int, float64)) {
 			eachString(a, func(i int, v string) {
-				if !set[v] {
+				if !set.has(v) {
 					hit(i, 1)
 				}
 			})
@@ -92,6 +89,41 @@ func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 		}
 	}
 	return vc, nil
+}
+
+// textSet is a set of strings. A few members are kept in a list and
+// compared in turn, which costs less than hashing every value looked up;
+// more go in a map.
+type textSet struct {
+	few  []string
+	many map[string]bool
+}
+
+// fewMembers is the most members a textSet compares in turn.
+const fewMembers = 8
+
+func newTextSet(members []string) textSet {
+	if len(members) <= fewMembers {
+		return textSet{few: members}
+	}
+	m := make(map[string]bool, len(members))
+	for _, v := range members {
+		m[v] = true
+	}
+	return textSet{many: m}
+}
+
+// has reports whether s is a member.
+func (t textSet) has(s string) bool {
+	if t.many != nil {
+		return t.many[s]
+	}
+	for _, m := range t.few {
+		if m == s {
+			return true
+		}
+	}
+	return false
 }
 
 func boolIndex(b bool) int {
