@@ -11,12 +11,26 @@ type Chunks[T int64 | float64] struct {
 	n     int
 }
 
+// smallPart is the most values a part made of small parts holds: parts
+// this small are appended to the last one instead of being kept apart, so
+// that the slices' own headers (24 bytes each) stay small beside the
+// values when parts are small (a segmented rule's groups see few rows of
+// each batch). Such a part grows by doubling, which wastes at most
+// smallPart values per list.
+const smallPart = 1024
+
 // Add appends part to c, which keeps it: the caller must not change it
-// afterwards. An empty part is dropped; a part whose capacity exceeds its
-// length by more than an eighth is copied to its length, so that values
-// dropped after allocating (nulls, NaNs) do not hold memory.
+// afterwards. An empty part is dropped; a small part is appended to a
+// small last part; a part whose capacity exceeds its length by more than
+// an eighth is copied to its length, so that values dropped after
+// allocating (nulls, NaNs) do not hold memory.
 func (c *Chunks[T]) Add(part []T) {
 	if len(part) == 0 {
+		return
+	}
+	if last := len(c.parts) - 1; last >= 0 && len(c.parts[last])+len(part) <= smallPart {
+		c.parts[last] = append(c.parts[last], part...)
+		c.n += len(part)
 		return
 	}
 	if cap(part)-len(part) > len(part)/8 {
@@ -37,7 +51,8 @@ func (c *Chunks[T]) Splice(o *Chunks[T]) {
 func (c *Chunks[T]) Len() int { return c.n }
 
 // Flatten returns the values in the order they were added, in one slice
-// of exactly their number, which c then holds as its only part (later
+// (of exactly their number when there were several parts, or one part of
+// more than smallPart values), which c then holds as its only part (later
 // calls return it at no cost). Each part is let go as soon as it is
 // copied. The slice is c's own: reordering it reorders c.
 func (c *Chunks[T]) Flatten() []T {

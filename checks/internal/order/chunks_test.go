@@ -35,6 +35,19 @@ func TestChunks(t *testing.T) {
 			c.Add(part(3, 4, 0))
 			return &c
 		}, 7},
+		{"big parts apart, small ones joined", func() *Chunks[int64] {
+			var c Chunks[int64]
+			c.Add(part(0, smallPart+1, 0))
+			c.Add(part(smallPart+1, 1, 0))
+			c.Add(part(smallPart+2, 2*smallPart, 5))
+			for lo := 3*smallPart + 2; lo < 6*smallPart; lo += 3 {
+				c.Add(part(lo, min(3, 6*smallPart-lo), 0))
+			}
+			if len(c.parts) != 6 { // 3070 values in small parts fill 3 parts of at most smallPart
+				t.Errorf("%d parts, want 3 and the small ones in 3", len(c.parts))
+			}
+			return &c
+		}, 6 * smallPart},
 		{"spliced", func() *Chunks[int64] {
 			var a, b, d Chunks[int64]
 			a.Add(part(0, 2, 0))
@@ -56,13 +69,13 @@ func TestChunks(t *testing.T) {
 			t.Errorf("%s: Len %d, want %d", tc.name, c.Len(), tc.want)
 		}
 		for _, p := range c.parts {
-			if cap(p)-len(p) > len(p)/8 {
+			if len(p) > smallPart && cap(p)-len(p) > len(p)/8 {
 				t.Errorf("%s: a part of %d values has capacity %d", tc.name, len(p), cap(p))
 			}
 		}
 		got := c.Flatten()
 		want := part(0, tc.want, 0)
-		if !slices.Equal(got, want) || cap(got) != tc.want && tc.want > 0 {
+		if !slices.Equal(got, want) || cap(got) != tc.want && tc.want > smallPart {
 			t.Errorf("%s: Flatten %v (capacity %d), want %v", tc.name, got, cap(got), want)
 		}
 		if again := c.Flatten(); !slices.Equal(again, want) || c.Len() != tc.want {
