@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"context"
 	"encoding/csv"
+	"fmt"
 	"io"
 	"math/rand/v2"
 	"os"
@@ -223,11 +224,17 @@ func BenchmarkCSVSource(b *testing.B) {
 // the schema against want unless nil.
 func benchSource(b *testing.B, path string, want *arrow.Schema) {
 	b.Helper()
+	benchSourceWith(b, path, want, Options{})
+}
+
+// benchSourceWith is benchSource with options.
+func benchSourceWith(b *testing.B, path string, want *arrow.Schema, opts Options) {
+	b.Helper()
 	b.SetBytes(fileSize(b, path))
 	b.ReportAllocs()
 	var rows int64
 	for b.Loop() {
-		s, err := Open([]string{path}, Options{})
+		s, err := Open([]string{path}, opts)
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -392,4 +399,21 @@ func fileSize(b *testing.B, path string) int64 {
 		b.Fatal(err)
 	}
 	return fi.Size()
+}
+
+// refCSV is the CSV file of the repository's benchmark at one million
+// rows (bench/run.sh 1000000 makes it).
+const refCSV = "../../bench/out/data/ref-1000000-s1.csv"
+
+// BenchmarkCSVRef scans all columns of refCSV with one parse goroutine
+// and with two and four, skipping when the file has not been made.
+func BenchmarkCSVRef(b *testing.B) {
+	if _, err := os.Stat(refCSV); err != nil {
+		b.Skipf("no %s (make it with bench/run.sh 1000000): %v", refCSV, err)
+	}
+	for _, workers := range []int{1, 2, 4} {
+		b.Run(fmt.Sprintf("workers=%d", workers), func(b *testing.B) {
+			benchSourceWith(b, refCSV, nil, Options{ParseWorkers: workers})
+		})
+	}
 }

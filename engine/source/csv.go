@@ -236,65 +236,31 @@ func (s *Set) scanCSV(ctx context.Context, i int, sc *scan, first int64) (int64,
 		}
 	}
 
-	proj, schema := sc.proj, sc.schema
-	cols := make([]*column, len(proj)) // nil when skipped
-	slots := make([]*column, width)    // by position in the file; nil when not read
-	var texts []*column
-	var skipped []skippedText
-	for k, c := range proj {
-		kd, _ := kindOf(schema.Field(k).Type)
-		if sc.skipped(k) {
-			if kd == kString {
-				skipped = append(skipped, skippedText{pos: in.pos[c]})
-			}
-			continue
-		}
-		cols[k] = newColumn(kd, s.nulls, s.opts.Allocator)
-		slots[in.pos[c]] = cols[k]
-		if kd == kString {
-			texts = append(texts, cols[k])
-		}
-	}
-	// With ScanText, raw[k] keeps the cells of cols[k] as written: a string
-	// column with no null token.
-	var raw, rawSlots []*column
-	if s.text {
-		raw, rawSlots = make([]*column, len(proj)), make([]*column, width)
-		verbatim := newNullSet(nil)
-		for k, c := range proj {
-			raw[k] = newColumn(kString, verbatim, s.opts.Allocator)
-			rawSlots[in.pos[c]] = raw[k]
-		}
-		texts = append(texts, raw...)
-	}
 	batchRows := s.opts.BatchRows
-	capRows := batchRows // room for rows in a batch's buffers
+	capRows := batchRows // rows in a batch
 	if !in.Gzip {
 		// A row takes at least one byte per field, so a small file needs
 		// small buffers.
 		capRows = int(min(int64(batchRows), c.size/int64(max(width, 1))+1))
 	}
+	if workers := s.parseWorkers(); workers > 1 && !noHeader {
+		done, err := s.scanCSVParallel(ctx, i, sc, first, c, capRows, workers)
+		if done || err != nil {
+			return c.rows, err
+		}
+		// The text from c.sp on is read as below.
+	}
+	b := s.newCSVBatch(in, sc, capRows)
 	for done := false; !done; {
 		if err := ctx.Err(); err != nil {
 			return c.rows, err
 		}
-		for _, col := range cols {
-			if col != nil {
-				col.start(capRows)
-			}
-		}
-		for _, col := range raw {
-			col.start(capRows)
-		}
-		for k := range skipped {
-			skipped[k].dlen = 0
-		}
-		lines := make([]int64, 0, capRows)
-		for len(lines) < capRows {
+		b.start()
+		for !b.full() {
 			if !pending {
 				ok, err := c.record(width, noHeader)
 				if err != nil {
-					releaseColumns(cols, raw)
+					b.release()
 					return c.rows, err
 				}
 				if !ok {
@@ -303,66 +269,150 @@ func (s *Set) scanCSV(ctx context.Context, i int, sc *scan, first int64) (int64,
 				}
 			}
 			pending = false
-			for j, f := range c.sp.fields {
-				if col := slots[j]; col != nil {
-					col.append(c.sp.field(f))
-				}
-				if raw != nil && rawSlots[j] != nil {
-					rawSlots[j].append(c.sp.field(f))
-				}
-			}
-			for k := range skipped {
-				sk := &skipped[k]
-				if b := c.sp.field(c.sp.fields[sk.pos]); !s.nulls.has(b) {
-					sk.dlen += len(b)
-				}
-			}
-			lines = append(lines, c.sp.recLine)
-			if full(texts, skipped) {
-				break
-			}
+			b.add(c.sp)
 		}
-		n := len(lines)
-		if n == 0 {
-			releaseColumns(cols, raw)
+		if len(b.lines) == 0 {
+			b.release()
 			break
 		}
-		arrs := make([]arrow.Array, len(cols))
-		var invalid map[int][]InvalidCell
-		for k, col := range cols {
-			if col == nil {
-				arrs[k] = sc.nulls.get(schema.Field(k).Type, n)
-				continue
-			}
-			if col.invalid != nil {
-				if invalid == nil {
-					invalid = make(map[int][]InvalidCell)
-				}
-				invalid[k] = col.invalid
-			}
-			arrs[k] = col.finish()
-		}
-		b := &Batch{
-			Record:   array.NewRecordBatch(schema, arrs, int64(n)),
-			Source:   i,
-			FirstRow: first + c.rows - int64(n),
-			Lines:    lines,
-			Invalid:  invalid,
-			Offset:   c.read.n,
-		}
-		for _, col := range raw {
-			b.Text = append(b.Text, col.finish().(*array.String))
-		}
-		for _, a := range arrs {
-			a.Release()
-		}
-		err := sc.fn(b)
-		b.Release()
+		bt := b.finish(i, first+c.rows-int64(len(b.lines)), c.read.n)
+		err := sc.fn(bt)
+		bt.Release()
 		if err != nil {
 			return c.rows, err
 		}
 	}
 	return c.rows, nil
+}
+
+// csvBatch builds batches from the records of one CSV input, keeping its
+// column buffers' size guesses from batch to batch.
+type csvBatch struct {
+	s       *Set
+	sc      *scan
+	capRows int
+	cols    []*column // by column of the batches; nil when skipped
+	slots   []*column // by position in the file; nil when not read
+	// With ScanText, raw[k] keeps the cells of cols[k] as written: a string
+	// column with no null token.
+	raw, rawSlots []*column
+	skipped       []skippedText
+	texts         []*column // the string columns, read or raw
+	lines         []int64   // of the batch under way
+}
+
+func (s *Set) newCSVBatch(in *input, sc *scan, capRows int) *csvBatch {
+	width := len(in.names)
+	b := &csvBatch{s: s, sc: sc, capRows: capRows, cols: make([]*column, len(sc.proj)), slots: make([]*column, width)}
+	for k, c := range sc.proj {
+		kd, _ := kindOf(sc.schema.Field(k).Type)
+		if sc.skipped(k) {
+			if kd == kString {
+				b.skipped = append(b.skipped, skippedText{pos: in.pos[c]})
+			}
+			continue
+		}
+		b.cols[k] = newColumn(kd, s.nulls, s.opts.Allocator)
+		b.slots[in.pos[c]] = b.cols[k]
+		if kd == kString {
+			b.texts = append(b.texts, b.cols[k])
+		}
+	}
+	if s.text {
+		b.raw, b.rawSlots = make([]*column, len(sc.proj)), make([]*column, width)
+		verbatim := newNullSet(nil)
+		for k, c := range sc.proj {
+			b.raw[k] = newColumn(kString, verbatim, s.opts.Allocator)
+			b.rawSlots[in.pos[c]] = b.raw[k]
+		}
+		b.texts = append(b.texts, b.raw...)
+	}
+	return b
+}
+
+// start readies the buffers of a batch.
+func (b *csvBatch) start() {
+	for _, col := range b.cols {
+		if col != nil {
+			col.start(b.capRows)
+		}
+	}
+	for _, col := range b.raw {
+		col.start(b.capRows)
+	}
+	for k := range b.skipped {
+		b.skipped[k].dlen = 0
+	}
+	b.lines = make([]int64, 0, b.capRows)
+}
+
+// full reports whether the batch has all the rows, or all the text, it
+// may take.
+func (b *csvBatch) full() bool {
+	return len(b.lines) >= b.capRows || full(b.texts, b.skipped)
+}
+
+// add appends the record sp holds.
+func (b *csvBatch) add(sp *splitter) {
+	for j, f := range sp.fields {
+		if col := b.slots[j]; col != nil {
+			col.append(sp.field(f))
+		}
+		if b.raw != nil && b.rawSlots[j] != nil {
+			b.rawSlots[j].append(sp.field(f))
+		}
+	}
+	for k := range b.skipped {
+		sk := &b.skipped[k]
+		if cell := sp.field(sp.fields[sk.pos]); !b.s.nulls.has(cell) {
+			sk.dlen += len(cell)
+		}
+	}
+	b.lines = append(b.lines, sp.recLine)
+}
+
+// finish makes the batch of the rows added, the first of them data row
+// firstRow, of input i.
+func (b *csvBatch) finish(i int, firstRow, offset int64) *Batch {
+	n := len(b.lines)
+	schema := b.sc.schema
+	arrs := make([]arrow.Array, len(b.cols))
+	var invalid map[int][]InvalidCell
+	for k, col := range b.cols {
+		if col == nil {
+			arrs[k] = b.sc.nulls.get(schema.Field(k).Type, n)
+			continue
+		}
+		if col.invalid != nil {
+			if invalid == nil {
+				invalid = make(map[int][]InvalidCell)
+			}
+			invalid[k] = col.invalid
+		}
+		arrs[k] = col.finish()
+	}
+	bt := &Batch{
+		Record:   array.NewRecordBatch(schema, arrs, int64(n)),
+		Source:   i,
+		FirstRow: firstRow,
+		Lines:    b.lines,
+		Invalid:  invalid,
+		Offset:   offset,
+	}
+	for _, col := range b.raw {
+		bt.Text = append(bt.Text, col.finish().(*array.String))
+	}
+	for _, a := range arrs {
+		a.Release()
+	}
+	b.lines = nil
+	return bt
+}
+
+// release lets go of the buffers of the batch under way.
+func (b *csvBatch) release() {
+	releaseColumns(b.cols, b.raw)
+	b.lines = nil
 }
 
 // skippedText counts the text of a skipped string column in a batch.

@@ -38,12 +38,14 @@ type readCase struct {
 }
 
 // runReadCases runs each case with the default read buffer and with tiny
-// ones, which make every record cross a buffer refill somewhere.
+// ones, which make every record cross a buffer refill somewhere, parsing
+// on the calling goroutine and on three workers.
 func runReadCases(t *testing.T, cases []readCase) {
 	t.Helper()
 	for _, tc := range cases {
-		for _, bufSize := range []int{0, 1, 3, 17} {
-			t.Run(fmt.Sprintf("%s/buffer=%d", tc.name, bufSize), func(t *testing.T) {
+		for _, run := range []struct{ bufSize, workers int }{{0, 1}, {1, 1}, {3, 1}, {17, 1}, {0, 3}, {3, 3}} {
+			bufSize := run.bufSize
+			t.Run(fmt.Sprintf("%s/buffer=%d/workers=%d", tc.name, bufSize, run.workers), func(t *testing.T) {
 				dir := t.TempDir()
 				paths := writeFiles(t, dir, tc.files)
 				if tc.paths != nil {
@@ -55,6 +57,7 @@ func runReadCases(t *testing.T, cases []readCase) {
 				opts := tc.opts
 				opts.Allocator = checkedMem(t)
 				opts.bufferSize = bufSize
+				opts.ParseWorkers = run.workers
 				diff(t, openDump(t, paths, opts, tc.cols), tc.want)
 			})
 		}

@@ -126,7 +126,28 @@ func FuzzCSV(f *testing.F) {
 		if oracle != nil {
 			compareOracle(t, data, oracle, opts, got, lines)
 		}
+		compareWorkers(t, data, opts)
 	})
+}
+
+// compareWorkers checks that parsing data on one goroutine and on three
+// gives the same batches, rows, lines, cells and errors.
+func compareWorkers(t *testing.T, data []byte, opts Options) {
+	t.Helper()
+	var dumps [2]string
+	for k, workers := range []int{1, 3} {
+		opts.ParseWorkers = workers
+		opts.Stdin = bytes.NewReader(data)
+		s, err := Open([]string{"-"}, opts)
+		if err != nil {
+			t.Fatalf("Open with %d workers: %v", workers, err)
+		}
+		dumps[k] = scanDump(t, s, nil)
+		s.Close()
+	}
+	if dumps[0] != dumps[1] {
+		t.Fatalf("one worker:\n%s\nthree workers:\n%s", dumps[0], dumps[1])
+	}
 }
 
 // checkFuzzError checks that err is an *Error about standard input, with a

@@ -1,6 +1,8 @@
 package source
 
 import (
+	"sync"
+
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
@@ -11,9 +13,10 @@ import (
 // lengths as slices of it, so that a scan allocates about one per type
 // instead of one per column and batch. Arrays are immutable and counted by
 // reference, so the same one may sit in many batches held by other
-// goroutines.
+// goroutines; get may be called from several at once.
 type nullArrays struct {
 	mem  memory.Allocator
+	mu   sync.Mutex
 	byFP map[string]arrow.Array // by the type's fingerprint
 }
 
@@ -28,6 +31,8 @@ func (na *nullArrays) get(t arrow.DataType, n int) arrow.Array {
 	if fp == "" { // a type that cannot tell itself apart is not shared
 		return array.MakeArrayOfNull(na.mem, t, n)
 	}
+	na.mu.Lock()
+	defer na.mu.Unlock()
 	a, ok := na.byFP[fp]
 	if !ok || a.Len() < n {
 		if ok {
@@ -45,6 +50,8 @@ func (na *nullArrays) get(t arrow.DataType, n int) arrow.Array {
 
 // release drops the arrays kept; those handed out live on in their batches.
 func (na *nullArrays) release() {
+	na.mu.Lock()
+	defer na.mu.Unlock()
 	for fp, a := range na.byFP {
 		a.Release()
 		delete(na.byFP, fp)

@@ -9,6 +9,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"runtime"
 	"slices"
 	"strconv"
 	"strings"
@@ -45,8 +46,13 @@ type Options struct {
 	// ignored.
 	Types map[string]arrow.DataType
 
-	BatchRows  int // rows per CSV batch; 0 means DefaultBatchRows
-	SampleRows int // CSV rows per file used to infer types; 0 means DefaultSampleRows
+	BatchRows int // rows per CSV batch; 0 means DefaultBatchRows
+	// ParseWorkers is how many goroutines parse the batches of a CSV file
+	// with a header at once; 0 means min(GOMAXPROCS, 4), 1 parses on the
+	// goroutine that calls Scan. The batches, their rows and lines and the
+	// errors are the same whatever the number.
+	ParseWorkers int
+	SampleRows   int // CSV rows per file used to infer types; 0 means DefaultSampleRows
 
 	TempDir   string           // folder for the copy of standard input; "" means os.TempDir()
 	Stdin     io.Reader        // what "-" reads; nil means os.Stdin
@@ -115,6 +121,14 @@ func Open(paths []string, opts Options) (*Set, error) {
 		return nil, err
 	}
 	return s, nil
+}
+
+// parseWorkers returns the goroutines that parse CSV batches at once.
+func (s *Set) parseWorkers() int {
+	if s.opts.ParseWorkers > 0 {
+		return s.opts.ParseWorkers
+	}
+	return min(runtime.GOMAXPROCS(0), 4)
 }
 
 // normalize fills in defaults and checks the options.

@@ -84,6 +84,13 @@ func newSplitter(r io.Reader, delim, quote byte, quotes bool, bufSize int) *spli
 	return s
 }
 
+// reset sets s to split data, starting on line line: the whole input when
+// eof, else a part of it after which s.scan reports errNeedMore (s.next,
+// which would read s.r, must not be called).
+func (s *splitter) reset(data []byte, eof bool, line int64) {
+	s.buf, s.pos, s.end, s.eof, s.rerr, s.line = data, 0, len(data), eof, nil, line
+}
+
 // skipBOM drops a UTF-8 byte order mark at the start of the input.
 func (s *splitter) skipBOM() error {
 	for s.end-s.pos < 3 && !s.eof {
