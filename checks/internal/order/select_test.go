@@ -1,6 +1,7 @@
 package order
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -200,5 +201,39 @@ func TestSelectRanks(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// BenchmarkQuantiles7 compares quantiles found by selection with sorting
+// then reading them, on 1e6 normal values: the median alone, and the
+// three quartiles a box plot needs.
+func BenchmarkQuantiles7(b *testing.B) {
+	const n = 1_000_000
+	rng := rand.New(rand.NewPCG(7, 8))
+	xs := make([]float64, n)
+	for i := range xs {
+		xs[i] = rng.NormFloat64()
+	}
+	work := make([]float64, n)
+	for _, ps := range [][]float64{{0.5}, {0.25, 0.5, 0.75}} {
+		b.Run(fmt.Sprintf("sort/%d", len(ps)), func(b *testing.B) {
+			b.ReportAllocs()
+			b.SetBytes(8 * n)
+			for b.Loop() {
+				copy(work, xs)
+				slices.Sort(work)
+				for _, p := range ps {
+					Quantile7(work, p)
+				}
+			}
+		})
+		b.Run(fmt.Sprintf("select/%d", len(ps)), func(b *testing.B) {
+			b.ReportAllocs()
+			b.SetBytes(8 * n)
+			for b.Loop() {
+				copy(work, xs)
+				Quantiles7(work, ps...)
+			}
+		})
 	}
 }
