@@ -82,3 +82,33 @@ func BenchmarkPairObserve(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkJointSecondPass is the joint rule's second pass over 1M rows,
+// one accumulator: every judged row's distance, the listing and the
+// sample of distances for the plot.
+func BenchmarkJointSecondPass(b *testing.B) {
+	batches := climateBatches(b)
+	defer func() {
+		for _, bt := range batches {
+			bt.Release()
+		}
+	}()
+	c, err := Compile(newRule(jointSpec(false), atMost(0.01), "t", "h", "p"), envOf(batches[0], 20))
+	if err != nil {
+		b.Fatal(err)
+	}
+	first := c.NewAccumulator()
+	for _, bt := range batches {
+		if err := first.Observe(bt); err != nil {
+			b.Fatal(err)
+		}
+	}
+	perRow(b, len(batches)<<16, func() {
+		a := first.(Rescanner).SecondPass()
+		for _, bt := range batches {
+			if err := a.Observe(bt); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+}
