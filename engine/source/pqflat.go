@@ -205,7 +205,11 @@ func readRows[T any](fc *flatColumn, vals []T, bits []byte, readBatch func(file.
 			return 0, err
 		}
 		if fc.opt {
-			nulls += spread(part, got, defs, bits, done)
+			k, err := spread(part, got, defs, bits, done)
+			if err != nil {
+				return 0, err
+			}
+			nulls += k
 		}
 		done += int(want)
 		fc.left -= want
@@ -230,8 +234,18 @@ func guardRead(read func() (int64, int, error)) (int64, int, error) {
 // spread moves the got dense values at the front of vals to the rows whose
 // definition level is 1, from the back so that no value is overwritten
 // before it moves, zeroes the null rows, sets the validity bits of the
-// rows (offset by first) and returns the null count.
-func spread[T any](vals []T, got int, defs []int16, bits []byte, first int) int {
+// rows (offset by first) and returns the null count. It fails, changing
+// nothing, when the levels do not define got rows, as in a damaged file.
+func spread[T any](vals []T, got int, defs []int16, bits []byte, first int) (int, error) {
+	defined := 0
+	for _, d := range defs {
+		if d == 1 {
+			defined++
+		}
+	}
+	if defined != got {
+		return 0, fmt.Errorf("%d values for %d defined rows", got, defined)
+	}
 	var zero T
 	j := got - 1
 	for i := len(defs) - 1; i >= 0; i-- {
@@ -243,7 +257,7 @@ func spread[T any](vals []T, got int, defs []int16, bits []byte, first int) int 
 			vals[i] = zero
 		}
 	}
-	return len(defs) - got
+	return len(defs) - got, nil
 }
 
 // readBools reads n booleans into a bitmap.

@@ -5,10 +5,12 @@ import (
 	"fmt"
 	"math/rand/v2"
 	"path/filepath"
+	"slices"
 	"testing"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/bitutil"
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
@@ -198,5 +200,50 @@ func TestFlatScanMatchesArrow(t *testing.T) {
 	})
 	if err != nil || next != 2501 {
 		t.Errorf("scan ended at row %d with %v; want 2501 rows and no error", next, err)
+	}
+}
+
+// TestSpread checks the in-place spreading of dense values to the rows
+// their definition levels define, and its refusal of levels that define
+// another number of rows than the values read.
+func TestSpread(t *testing.T) {
+	tests := []struct {
+		name    string
+		dense   []int64 // values read, densely
+		defs    []int16
+		want    []int64 // by row; nulls 0
+		valid   string  // validity bits of the rows
+		wantErr bool
+	}{
+		{"all defined", []int64{1, 2, 3}, []int16{1, 1, 1}, []int64{1, 2, 3}, "111", false},
+		{"nulls around", []int64{4, 5}, []int16{0, 1, 0, 1, 0}, []int64{0, 4, 0, 5, 0}, "01010", false},
+		{"all null", nil, []int16{0, 0}, []int64{0, 0}, "00", false},
+		{"too few values", []int64{7}, []int16{1, 1}, nil, "", true},
+		{"too many values", []int64{7, 8}, []int16{1, 0}, nil, "", true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			vals := make([]int64, len(tc.defs))
+			for i := range vals {
+				vals[i] = -1 // what the rows held before
+			}
+			copy(vals, tc.dense)
+			bits := make([]byte, 2)
+			nulls, err := spread(vals, len(tc.dense), tc.defs, bits, 3)
+			if (err != nil) != tc.wantErr {
+				t.Fatalf("error %v; want an error: %v", err, tc.wantErr)
+			}
+			if tc.wantErr {
+				return
+			}
+			valid := ""
+			for i := range tc.defs {
+				valid += map[bool]string{true: "1", false: "0"}[bitutil.BitIsSet(bits, 3+i)]
+			}
+			if !slices.Equal(vals, tc.want) || valid != tc.valid || nulls != len(tc.defs)-len(tc.dense) {
+				t.Errorf("values %v, validity %s, %d nulls; want %v, %s, %d",
+					vals, valid, nulls, tc.want, tc.valid, len(tc.defs)-len(tc.dense))
+			}
+		})
 	}
 }
