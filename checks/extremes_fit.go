@@ -79,12 +79,11 @@ func (c *extremesCheck) analyse(st *ExtremesState) *extFinding {
 		c.zscore(st, f)
 		return f
 	}
-	values := st.Values.Flatten()
-	switch m {
-	case rules.ExtremesTukey, rules.ExtremesRobustZ:
-		c.byThreshold(st, values, f)
+	if m == rules.ExtremesTukey || m == rules.ExtremesRobustZ {
+		c.byThreshold(st, f)
 		return f
 	}
+	values := st.Values.Flatten()
 	// The tail fit and the tests work on the sorted values; the tests name
 	// values by their position, so they are given the values as kept.
 	sorted := values
@@ -105,11 +104,13 @@ func (c *extremesCheck) analyse(st *ExtremesState) *extFinding {
 
 // byThreshold fits Tukey's fences or the modified z-score without
 // sorting: the quartiles and the median are order statistics found by
-// selection (order.Quantiles7, R's type 7, as sorting would give them),
-// the MAD the median of the deviations from the median, found the same
-// way; the values flagged are counted in one pass.
-func (c *extremesCheck) byThreshold(st *ExtremesState, values []float64, f *extFinding) {
-	q := order.Quantiles7(values, 0.25, 0.5, 0.75)
+// selection (order.Quantiles7, R's type 7, as sorting would give them) in
+// a copy of the values, the MAD the median of the deviations from the
+// median, found the same way in the same copy; the values flagged are
+// counted in one pass over the values kept.
+func (c *extremesCheck) byThreshold(st *ExtremesState, f *extFinding) {
+	work := st.Values.Copy()
+	q := order.Quantiles7(work, 0.25, 0.5, 0.75)
 	var r outlier.Rule
 	switch c.spec.Method {
 	case rules.ExtremesTukey:
@@ -121,7 +122,7 @@ func (c *extremesCheck) byThreshold(st *ExtremesState, values []float64, f *extF
 		f.setScale(q[1], fences.IQR(), fences.Lower, fences.Upper)
 		r = fences
 	case rules.ExtremesRobustZ:
-		rz := outlier.RobustZ{Median: q[1], MAD: medianAbsDev(values, q[1]), Cutoff: c.spec.K}
+		rz := outlier.RobustZ{Median: q[1], MAD: medianAbsDev(work, q[1]), Cutoff: c.spec.K}
 		// |M| > k exactly when x lies beyond median ± k MAD / 0.6745.
 		half := c.spec.K * rz.MAD / 0.6745
 		f.estimates = map[string]float64{"median": rz.Median, "mad": rz.MAD, "k": c.spec.K,
@@ -139,37 +140,38 @@ func (c *extremesCheck) byThreshold(st *ExtremesState, values []float64, f *extF
 		lo, hi           int64
 		whiskLo, whiskHi = math.Inf(1), math.Inf(-1)
 	)
-	for _, x := range values {
-		switch {
-		case !r.Outside(x):
-			whiskLo, whiskHi = min(whiskLo, x), max(whiskHi, x)
-		case f.low(x):
-			lo++
-		default:
-			hi++
+	for _, part := range st.Values.Parts() {
+		for _, x := range part {
+			switch {
+			case !r.Outside(x):
+				whiskLo, whiskHi = min(whiskLo, x), max(whiskHi, x)
+			case f.low(x):
+				lo++
+			default:
+				hi++
+			}
 		}
 	}
 	box := &report.Box{Min: report.Number(st.Min), Q1: report.Number(q[0]), Median: report.Number(q[1]),
 		Q3: report.Number(q[2]), Max: report.Number(st.Max), WhiskerLo: report.Number(whiskLo), WhiskerHi: report.Number(whiskHi)}
-	if lo+hi == int64(len(values)) {
+	if lo+hi == int64(st.Values.Len()) {
 		box.WhiskerLo, box.WhiskerHi = report.Number(math.NaN()), report.Number(math.NaN())
 	}
-	f.settle(lo, hi, box, valueHistogram(values, st.Min, st.Max, nil), func(x float64, _ int64) (bool, float64) {
+	f.settle(lo, hi, box, valueHistogram(st.Values.Parts(), st.Min, st.Max, nil), func(x float64, _ int64) (bool, float64) {
 		return r.Outside(x), r.Score(x)
 	})
 }
 
 // medianAbsDev is the MAD of values about their median med, unscaled
 // (R's mad(constant = 1)): the type-7 median of |x − med|, found by
-// selection on a copy of the deviations. |x − med| is exactly med − x
-// below the median, so it equals the MAD outlier.NewRobustZ reads from
-// the sorted values.
+// selection. It overwrites the values with their deviations. |x − med|
+// is exactly med − x below the median, so it equals the MAD
+// outlier.NewRobustZ reads from the sorted values.
 func medianAbsDev(values []float64, med float64) float64 {
-	dev := make([]float64, len(values))
 	for i, x := range values {
-		dev[i] = math.Abs(x - med)
+		values[i] = math.Abs(x - med)
 	}
-	return order.Quantiles7(dev, 0.5)[0]
+	return order.Quantiles7(values, 0.5)[0]
 }
 
 // setScale records the center, scale and thresholds of a finding; values
@@ -218,7 +220,7 @@ func (f *extFinding) settleSorted(sorted []float64, lo, hi int64, density func(a
 	if lo+hi < n {
 		box.WhiskerLo, box.WhiskerHi = report.Number(sorted[lo]), report.Number(sorted[n-1-hi])
 	}
-	f.settle(lo, hi, box, valueHistogram(sorted, sorted[0], sorted[n-1], density), hit)
+	f.settle(lo, hi, box, valueHistogram([][]float64{sorted}, sorted[0], sorted[n-1], density), hit)
 }
 
 // settle records that lo finite values below the center and hi above it
@@ -255,11 +257,15 @@ func binOf(x, lo, hi float64, k int) int {
 	return min(k-1, max(0, int((x-lo)/(hi-lo)*float64(k))))
 }
 
-// valueHistogram counts values, in any order, in equal-width bins over
-// their range [lo, hi] (one pass); density, if not nil, gives the fitted
-// probability per unit in a bin [a, b].
-func valueHistogram(values []float64, lo, hi float64, density func(a, b float64) float64) *report.Histogram {
-	k := histBins(int64(len(values)))
+// valueHistogram counts the values of parts, in any order, in equal-width
+// bins over their range [lo, hi] (one pass); density, if not nil, gives
+// the fitted probability per unit in a bin [a, b].
+func valueHistogram(parts [][]float64, lo, hi float64, density func(a, b float64) float64) *report.Histogram {
+	var n int64
+	for _, p := range parts {
+		n += int64(len(p))
+	}
+	k := histBins(n)
 	if hi == lo {
 		k = 1
 	}
@@ -268,12 +274,14 @@ func valueHistogram(values []float64, lo, hi float64, density func(a, b float64)
 		h.Edges = append(h.Edges, report.Number(lo+(hi-lo)*float64(j)/float64(k)))
 	}
 	h.Edges[k] = report.Number(hi)
-	for _, x := range values {
-		if k == 1 {
-			h.Counts[0]++
-			continue
+	if k == 1 {
+		h.Counts[0] = n
+	} else {
+		for _, p := range parts {
+			for _, x := range p {
+				h.Counts[binOf(x, lo, hi, k)]++
+			}
 		}
-		h.Counts[binOf(x, lo, hi, k)]++
 	}
 	if density != nil {
 		for j := range k {

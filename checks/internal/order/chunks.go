@@ -50,6 +50,20 @@ func (c *Chunks[T]) Splice(o *Chunks[T]) {
 // Len is the number of values.
 func (c *Chunks[T]) Len() int { return c.n }
 
+// Parts are the values in the order they were added, part by part, to
+// read without copying; the caller must not change them.
+func (c *Chunks[T]) Parts() [][]T { return c.parts }
+
+// Copy returns the values in the order they were added, in a new slice
+// of exactly their number; c keeps its parts.
+func (c *Chunks[T]) Copy() []T {
+	all := make([]T, 0, c.n)
+	for _, p := range c.parts {
+		all = append(all, p...)
+	}
+	return all
+}
+
 // Flatten returns the values in the order they were added, in one slice
 // (of exactly their number when there were several parts, or one part of
 // more than smallPart values), which c then holds as its only part (later

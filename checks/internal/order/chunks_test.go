@@ -5,8 +5,8 @@ import (
 	"testing"
 )
 
-// TestChunks: values come out of Flatten in the order they were added,
-// whatever the parts and splices; a spliced list is left empty; parts
+// TestChunks: values come out of Parts, Copy and Flatten in the order
+// they were added, whatever the parts and splices; a spliced list is left empty; parts
 // with much unused capacity are copied to their length.
 func TestChunks(t *testing.T) {
 	part := func(lo, n, spare int) []int64 {
@@ -73,8 +73,15 @@ func TestChunks(t *testing.T) {
 				t.Errorf("%s: a part of %d values has capacity %d", tc.name, len(p), cap(p))
 			}
 		}
-		got := c.Flatten()
 		want := part(0, tc.want, 0)
+		var read []int64
+		for _, p := range c.Parts() {
+			read = append(read, p...)
+		}
+		if cp := c.Copy(); !slices.Equal(cp, want) || cap(cp) != tc.want || !slices.Equal(read, want) {
+			t.Errorf("%s: Copy %v, parts %v, want %v", tc.name, cp, read, want)
+		}
+		got := c.Flatten()
 		if !slices.Equal(got, want) || cap(got) != tc.want && tc.want > smallPart {
 			t.Errorf("%s: Flatten %v (capacity %d), want %v", tc.name, got, cap(got), want)
 		}
