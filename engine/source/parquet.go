@@ -14,9 +14,14 @@ import (
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
 
+// parquetReadBuffer is the read buffer of one Parquet column chunk.
+const parquetReadBuffer = 1 << 20
+
 // openParquet opens the Parquet file of in, checking first that it is
 // whole: a Parquet file ends with its footer, the footer's length and
-// "PAR1".
+// "PAR1". Column chunks are read through a buffer of parquetReadBuffer
+// bytes rather than whole, so that the memory of a row group being read
+// does not grow with its length.
 func (s *Set) openParquet(in *input, f *os.File, size int64) (*file.Reader, error) {
 	tail := make([]byte, 8) // footer length, "PAR1"
 	if size >= 12 {
@@ -28,6 +33,7 @@ func (s *Set) openParquet(in *input, f *os.File, size int64) (*file.Reader, erro
 		return nil, errorf(in.name, "the Parquet file is truncated: it does not end with its footer and \"PAR1\" (it was cut short; copy it again)")
 	}
 	props := parquet.NewReaderProperties(s.opts.Allocator)
+	props.BufferedStreamEnabled, props.BufferSize = true, parquetReadBuffer
 	r, err := file.NewParquetReader(f, file.WithReadProps(props))
 	if err != nil {
 		return nil, &Error{Path: in.name, Err: err,

@@ -247,3 +247,51 @@ func TestSpread(t *testing.T) {
 		})
 	}
 }
+
+// TestParquetLargePages reads, through a Set, a file whose pages and
+// column chunks are larger than the 1 MiB read buffer of the Parquet
+// stream: long strings, plain encoding, 8 MiB pages.
+func TestParquetLargePages(t *testing.T) {
+	mem := checkedMem(t)
+	fx := fixture{
+		fields: []arrow.Field{
+			{Name: "s", Type: arrow.BinaryTypes.String, Nullable: true},
+			{Name: "v", Type: arrow.PrimitiveTypes.Float64},
+		},
+		rows: func(b *array.RecordBuilder) {
+			for i := range 400_000 {
+				if i%11 == 0 {
+					b.Field(0).AppendNull()
+				} else {
+					b.Field(0).(*array.StringBuilder).Append(fmt.Sprintf("value number %d of a long column", i))
+				}
+				b.Field(1).(*array.Float64Builder).Append(float64(i) / 8)
+			}
+		},
+	}
+	rec := fx.record(t)
+	defer rec.Release()
+	path := filepath.Join(t.TempDir(), "large.parquet")
+	writeRecord(t, path, rec, parquet.NewWriterProperties(parquet.WithDictionaryDefault(false),
+		parquet.WithDataPageSize(8<<20), parquet.WithMaxRowGroupLength(300_000)), pqarrow.DefaultWriterProps())
+	s, err := Open([]string{path}, Options{Allocator: mem, BatchRows: 70_000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	var rows int64
+	err = s.Scan(context.Background(), nil, func(b *Batch) error {
+		for c := range int(rec.NumCols()) {
+			exp := array.NewSlice(rec.Column(c), b.FirstRow-1, b.FirstRow-1+b.Record.NumRows())
+			if !array.Equal(b.Record.Column(c), exp) {
+				t.Errorf("column %d differs in the batch from row %d", c, b.FirstRow)
+			}
+			exp.Release()
+		}
+		rows += b.Record.NumRows()
+		return nil
+	})
+	if err != nil || rows != rec.NumRows() {
+		t.Errorf("scan read %d rows with %v; want %d and no error", rows, err, rec.NumRows())
+	}
+}
