@@ -2,9 +2,11 @@ package engine_test
 
 import (
 	"context"
+	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"runtime"
 	"testing"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -14,6 +16,7 @@ import (
 	"github.com/apache/arrow-go/v18/parquet/compress"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 
+	"github.com/assay-project/assay/bench/refdata"
 	"github.com/assay-project/assay/engine"
 	"github.com/assay-project/assay/rules"
 )
@@ -113,4 +116,52 @@ func BenchmarkRunParquet(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+}
+
+// BenchmarkRunReference measures whole runs of bench/policy.yaml, the
+// 48-rule reference policy of bench/run.sh (distribution fits, extremes, a
+// linear pair, a robust joint rule, row expressions, a key), on 1M rows of
+// the reference data (package refdata), as Parquet and as CSV, on one
+// worker and on all of them.
+func BenchmarkRunReference(b *testing.B) {
+	const rows = 1_000_000
+	dir := b.TempDir()
+	pol, err := rules.Load("../bench/policy.yaml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, format := range []string{"parquet", "csv"} {
+		path := filepath.Join(dir, "ref."+format)
+		write := refdata.WriteParquet
+		if format == "csv" {
+			write = refdata.WriteCSV
+		}
+		if err := write(path, rows, 1); err != nil {
+			b.Fatal(err)
+		}
+		st, err := os.Stat(path)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for _, workers := range []int{1, 0} {
+			name := fmt.Sprintf("%s/workers=%d", format, workers)
+			if workers == 0 {
+				name = fmt.Sprintf("%s/workers=GOMAXPROCS(%d)", format, runtime.GOMAXPROCS(0))
+			}
+			b.Run(name, func(b *testing.B) {
+				b.SetBytes(st.Size())
+				b.ReportAllocs()
+				for b.Loop() {
+					rep, err := engine.Run(context.Background(), pol, []string{path}, engine.Options{Workers: workers})
+					if err != nil {
+						b.Fatal(err)
+					}
+					if rep.Rows != rows || rep.Verdict.String() != "fail" {
+						b.Fatalf("read %d rows with verdict %s, want %d rows and fail (planted rows)", rep.Rows, rep.Verdict, rows)
+					}
+				}
+				b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+			})
+		}
+	}
 }
