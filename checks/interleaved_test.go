@@ -141,7 +141,7 @@ func TestMergeInterleaved(t *testing.T) {
 	for _, tc := range tests {
 		c := compile(t, tc.rule, env)
 		want := run(t, c, bs...)
-		for _, w := range []int{2, 3, 5} {
+		for _, w := range []int{2, 3, 4, 5} { // 4: the engine's lanes
 			t.Run(fmt.Sprintf("%s/%d workers", tc.name, w), func(t *testing.T) {
 				got := runInterleaved(t, c, w, bs...)
 				if tc.rel > 0 {
