@@ -45,19 +45,23 @@ type verdict struct {
 }
 
 // Bounds of a verdicts memo. memoMax distinct strings cost about 1 MiB;
+// memoProbe is how many it holds when it first checks that values repeat;
 // memoTrial is how many lookups a full memo gets to show that it pays.
 const (
 	memoMax   = 1 << 14
+	memoProbe = 1 << 12
 	memoTrial = 1 << 16
 )
 
 // verdicts remembers the verdict of a rule on each of the first memoMax
 // distinct strings of a column, so that a column of few distinct values
 // (device codes, country names) runs an expensive test such as a regular
-// expression once per distinct value instead of once per row. When the
-// memo is full and, over memoTrial further lookups, misses outnumber hits,
-// the column has too many distinct values for it to pay and it is no
-// longer consulted. It belongs to one accumulator, so workers never share
+// expression once per distinct value instead of once per row. It is no
+// longer consulted when the column has too many distinct values for it to
+// pay: when the first memoProbe distinct values took fewer than
+// memoProbe/8 repeats to come (values drawn evenly from 16,384 or more do
+// that), or when the memo is full and, over memoTrial further lookups,
+// misses outnumber hits. It belongs to one accumulator, so workers never share
 // it; the verdicts are those judge would give, so results do not change.
 type verdicts struct {
 	seen         map[string]verdict
@@ -80,6 +84,9 @@ func (m *verdicts) judge(s string, judge func(string) verdict) verdict {
 			m.seen = make(map[string]verdict)
 		}
 		m.seen[strings.Clone(s)] = v // s points into the batch's buffers
+		if len(m.seen) == memoProbe && m.hits*8 < memoProbe {
+			m.off, m.seen = true, nil
+		}
 		return v
 	}
 	if m.misses++; m.hits+m.misses >= memoTrial {

@@ -27,8 +27,14 @@ func TestVerdictsMemo(t *testing.T) {
 			}
 			return fmt.Sprintf("D-%04d", i%500)
 		}, 20000, 496, false, 496}, // 500 codes less the 5 the bad value stands in for, plus it
-		{"as many distinct values as fit", func(i int) string { return fmt.Sprint(i % memoMax) }, 3 * memoMax, memoMax, false, memoMax},
-		{"all distinct: the memo fills, then stops", func(i int) string { return fmt.Sprint(i) }, memoMax + memoTrial + 10, memoMax + memoTrial + 10, true, 0},
+		{"as many distinct values as fit, each repeated at once", func(i int) string { return fmt.Sprint(i / 2 % memoMax) }, 6 * memoMax, memoMax, false, memoMax},
+		{"all distinct: stops at the probe", func(i int) string { return fmt.Sprint(i) }, 3 * memoProbe, 3 * memoProbe, true, 0},
+		{"repeats at the probe, then all new: the memo fills, then stops", func(i int) string {
+			if i < 2*memoProbe {
+				return fmt.Sprint(i / 2)
+			}
+			return fmt.Sprint(i)
+		}, memoMax + memoTrial + 3*memoProbe, memoMax + memoTrial + 2*memoProbe, true, 0},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
