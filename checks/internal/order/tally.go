@@ -1,0 +1,242 @@
+package order
+
+import (
+	"cmp"
+	"math"
+	"slices"
+)
+
+// TallyLimit is the most distinct values a Tally counts before it keeps
+// the values themselves. Counting them takes at most 2 MiB (a table of
+// 2^17 slots of 16 bytes, at most half full); beyond it a column is
+// taken to hold values of fine resolution, for which counting saves
+// little.
+const TallyLimit = 1 << 16
+
+// Tally is an exact multiset of values: while it has seen at most
+// TallyLimit distinct values, each distinct value and how often it
+// occurred, in an open-addressing hash table; past that, the values
+// themselves, in Chunks (it has then spilled). Measured values are mostly
+// of limited resolution (a temperature to 0.001 °C, a pressure to 0.01
+// hPa): ten million of them may take ten thousand distinct values, whose
+// counts take 160 KB where the values take 80 MB. Either way its order
+// statistics (Quantiles7) are exact. Values are told apart by their bits,
+// so -0 and 0 are counted apart (and compare equal). The zero value is
+// ready to use.
+type Tally[T int64 | float64] struct {
+	// slots is the table; a count of 0 marks an empty slot.
+	slots []slot
+	// distinct is the number of occupied slots, n the number of values.
+	distinct int
+	n        int64
+	raw      Chunks[T]
+	spilled  bool
+}
+
+// slot is one entry of a Tally's table: a value's bits and its count.
+type slot struct {
+	key   uint64
+	count int64
+}
+
+// Add adds the values of part; the caller keeps part (it is copied once
+// the tally has spilled).
+func (t *Tally[T]) Add(part []T) {
+	if t.spilled {
+		t.raw.Add(slices.Clone(part))
+		t.n += int64(len(part))
+		return
+	}
+	for i, x := range part {
+		if !t.count(bitsOf(x), 1) {
+			t.spill()
+			t.raw.Add(slices.Clone(part[i:]))
+			t.n += int64(len(part) - i)
+			return
+		}
+		t.n++
+	}
+}
+
+// count adds c occurrences of the value with bits k to the table, growing
+// it as needed; false when that would exceed TallyLimit distinct values
+// (nothing is added then).
+func (t *Tally[T]) count(k uint64, c int64) bool {
+	if t.distinct >= len(t.slots)/2 {
+		if t.distinct >= TallyLimit {
+			if i, ok := t.find(k); ok {
+				t.slots[i].count += c
+				return true
+			}
+			return false
+		}
+		t.grow()
+	}
+	i, ok := t.find(k)
+	if !ok {
+		t.slots[i].key = k
+		t.distinct++
+	}
+	t.slots[i].count += c
+	return true
+}
+
+// find returns the slot of k, or the empty slot where k belongs, by
+// linear probing from the slot its hash names.
+func (t *Tally[T]) find(k uint64) (int, bool) {
+	mask := uint64(len(t.slots) - 1)
+	for i := mix(k) & mask; ; i = (i + 1) & mask {
+		switch s := t.slots[i]; {
+		case s.key == k && s.count != 0:
+			return int(i), true
+		case s.count == 0:
+			return int(i), false
+		}
+	}
+}
+
+// grow doubles the table (to 64 slots at first) and puts the entries
+// back.
+func (t *Tally[T]) grow() {
+	old := t.slots
+	t.slots = make([]slot, max(64, 2*len(old)))
+	for _, s := range old {
+		if s.count != 0 {
+			j, _ := t.find(s.key)
+			t.slots[j] = s
+		}
+	}
+}
+
+// mix is the 64-bit finaliser of SplitMix64 (Steele, Lea & Flood 2014,
+// "Fast splittable pseudorandom number generators", OOPSLA; Stafford's
+// "Mix13" constants), a bijection that spreads the bits of k.
+func mix(k uint64) uint64 {
+	k ^= k >> 30
+	k *= 0xbf58476d1ce4e5b9
+	k ^= k >> 27
+	k *= 0x94d049bb133111eb
+	return k ^ (k >> 31)
+}
+
+// spill turns the table into values in Chunks and frees it.
+func (t *Tally[T]) spill() {
+	if t.spilled {
+		return
+	}
+	t.spilled = true
+	if t.distinct > 0 {
+		all := make([]T, 0, t.n)
+		for _, s := range t.slots {
+			x := valueOf[T](s.key)
+			for range s.count {
+				all = append(all, x)
+			}
+		}
+		t.raw.Add(all)
+	}
+	t.slots, t.distinct = nil, 0
+}
+
+// Merge adds o's values to t and leaves o empty.
+func (t *Tally[T]) Merge(o *Tally[T]) {
+	if !t.spilled && !o.spilled {
+		for _, s := range o.slots {
+			if s.count != 0 && !t.count(s.key, s.count) {
+				t.spill()
+				break
+			}
+		}
+	}
+	if t.spilled || o.spilled {
+		t.spill()
+		o.spill()
+		t.raw.Splice(&o.raw)
+	}
+	t.n += o.n
+	*o = Tally[T]{}
+}
+
+// Len is the number of values.
+func (t *Tally[T]) Len() int64 { return t.n }
+
+// Spilled reports whether t keeps the values themselves.
+func (t *Tally[T]) Spilled() bool { return t.spilled }
+
+// Quantiles7 returns the p-quantile of the values for each p of ps, by
+// definition 7 of Hyndman & Fan (1996) (see Quantile7, whose arithmetic
+// it repeats, so the two agree to the last bit). From counts, the order
+// statistics are read off the distinct values in ascending order and
+// their running counts; spilled, the values are flattened and selected
+// (order.Quantiles7). Values must not be NaN.
+func (t *Tally[T]) Quantiles7(ps ...float64) []float64 {
+	if t.spilled {
+		return Quantiles7(t.raw.Flatten(), ps...)
+	}
+	type entry struct {
+		x T
+		c int64
+	}
+	entries := make([]entry, 0, t.distinct)
+	for _, s := range t.slots {
+		if s.count != 0 {
+			entries = append(entries, entry{valueOf[T](s.key), s.count})
+		}
+	}
+	slices.SortFunc(entries, func(a, b entry) int { return cmp.Compare(a.x, b.x) })
+	// at returns the value of 0-based rank r.
+	at := func(r int64) T {
+		i, _ := slices.BinarySearchFunc(entries, r, func(e entry, r int64) int {
+			return cmp.Compare(e.c-1, r)
+		})
+		return entries[i].x
+	}
+	for i := 1; i < len(entries); i++ {
+		entries[i].c += entries[i-1].c // running counts: ranks below entries[i].c hold values up to x
+	}
+	out := make([]float64, len(ps))
+	for k, p := range ps {
+		if t.n == 0 || !(p >= 0 && p <= 1) {
+			out[k] = math.NaN()
+			continue
+		}
+		h := 1 + float64(t.n-1)*p
+		j := math.Floor(h)
+		lo := at(int64(j) - 1)
+		g := h - j
+		if g == 0 {
+			out[k] = float64(lo)
+			continue
+		}
+		hi := at(int64(j))
+		if hi == lo {
+			out[k] = float64(lo)
+			continue
+		}
+		out[k] = (1-g)*float64(lo) + g*float64(hi)
+	}
+	return out
+}
+
+// bitsOf and valueOf convert a value to the bits the table keys it by and
+// back.
+func bitsOf[T int64 | float64](x T) uint64 {
+	switch v := any(x).(type) {
+	case float64:
+		return math.Float64bits(v)
+	case int64:
+		return uint64(v)
+	}
+	panic("unreachable")
+}
+
+func valueOf[T int64 | float64](k uint64) T {
+	var x T
+	switch p := any(&x).(type) {
+	case *float64:
+		*p = math.Float64frombits(k)
+	case *int64:
+		*p = int64(k)
+	}
+	return x
+}

@@ -1,0 +1,145 @@
+package order
+
+import (
+	"math"
+	"math/rand/v2"
+	"slices"
+	"testing"
+)
+
+// TestTallyQuantiles compares the tally's quantiles, counted and spilled,
+// merged from interleaved parts, with Quantile7 on the sorted values.
+func TestTallyQuantiles(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 4))
+	ps := []float64{0, 0.01, 0.25, 0.5, 0.75, 0.95, 0.999, 1}
+	cases := []struct {
+		name string
+		gen  func(n int) []float64
+		n    int
+	}{
+		{"one", func(int) []float64 { return []float64{2.5} }, 1},
+		{"two", func(int) []float64 { return []float64{3, -1} }, 2},
+		{"rounded normal", func(n int) []float64 {
+			out := make([]float64, n)
+			for i := range out {
+				out[i] = math.Round((18+6*r.NormFloat64())*1000) / 1000
+			}
+			return out
+		}, 200_000},
+		{"all equal", func(n int) []float64 { return slices.Repeat([]float64{7}, n) }, 1000},
+		{"signed zeros", func(n int) []float64 {
+			out := make([]float64, n)
+			for i := range out {
+				out[i] = math.Copysign(0, float64(i%3-1))
+				if i%5 == 0 {
+					out[i] = 1
+				}
+			}
+			return out
+		}, 999},
+		{"fine resolution spills", func(n int) []float64 {
+			out := make([]float64, n)
+			for i := range out {
+				out[i] = r.ExpFloat64()
+			}
+			return out
+		}, 3 * TallyLimit},
+		{"infinities", func(n int) []float64 {
+			out := []float64{math.Inf(-1), math.Inf(1), math.Inf(1)}
+			for range n - 3 {
+				out = append(out, float64(r.IntN(9)))
+			}
+			return out
+		}, 500},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			xs := tc.gen(tc.n)
+			want := make([]float64, len(ps))
+			sorted := slices.Clone(xs)
+			slices.Sort(sorted)
+			for k, p := range ps {
+				want[k] = Quantile7(sorted, p)
+			}
+			for _, lanes := range []int{1, 3} {
+				parts := make([]Tally[float64], lanes)
+				for i := 0; i < len(xs); i += 97 {
+					parts[(i/97)%lanes].Add(xs[i:min(i+97, len(xs))])
+				}
+				for k := 1; k < lanes; k++ {
+					parts[0].Merge(&parts[k])
+				}
+				got := parts[0].Quantiles7(ps...)
+				if parts[0].Len() != int64(len(xs)) {
+					t.Fatalf("%d lanes: %d values, want %d", lanes, parts[0].Len(), len(xs))
+				}
+				for k := range ps {
+					if math.Float64bits(got[k]) != math.Float64bits(want[k]) && !(got[k] == 0 && want[k] == 0) {
+						t.Errorf("%d lanes: p=%v: %v, want %v (spilled %v)", lanes, ps[k], got[k], want[k], parts[0].Spilled())
+					}
+				}
+			}
+		})
+	}
+}
+
+// TestTallyInts checks integers beyond 2^53, which float64 cannot hold
+// exactly, against Quantile7 on int64.
+func TestTallyInts(t *testing.T) {
+	base := int64(1) << 60
+	xs := []int64{base + 3, base + 1, base + 1, base + 2, -base, base + 3}
+	sorted := slices.Clone(xs)
+	slices.Sort(sorted)
+	var ta Tally[int64]
+	ta.Add(xs)
+	ps := []float64{0, 0.3, 0.5, 0.9, 1}
+	got := ta.Quantiles7(ps...)
+	for k, p := range ps {
+		if want := Quantile7(sorted, p); got[k] != want {
+			t.Errorf("p=%v: %v, want %v", p, got[k], want)
+		}
+	}
+}
+
+// TestTallySpillsAtLimit checks the switch from counts to values: one
+// more distinct value than TallyLimit spills, and merging a counted tally
+// into a spilled one keeps every value.
+func TestTallySpillsAtLimit(t *testing.T) {
+	var a, b Tally[float64]
+	xs := make([]float64, TallyLimit)
+	for i := range xs {
+		xs[i] = float64(i)
+	}
+	a.Add(xs)
+	a.Add(xs[:10])
+	if a.Spilled() {
+		t.Fatal("spilled at TallyLimit distinct values")
+	}
+	a.Add([]float64{-1})
+	if !a.Spilled() || a.Len() != TallyLimit+11 {
+		t.Fatalf("spilled %v with %d values, want spilled with %d", a.Spilled(), a.Len(), TallyLimit+11)
+	}
+	b.Add([]float64{5, 5})
+	b.Merge(&a)
+	if !b.Spilled() || b.Len() != TallyLimit+13 || a.Len() != 0 {
+		t.Fatalf("merged: spilled %v, %d values (other %d)", b.Spilled(), b.Len(), a.Len())
+	}
+	if got := b.Quantiles7(0, 1); got[0] != -1 || got[1] != TallyLimit-1 {
+		t.Errorf("min, max %v, want -1, %d", got, TallyLimit-1)
+	}
+}
+
+func BenchmarkTallyAdd(b *testing.B) {
+	r := rand.New(rand.NewPCG(1, 2))
+	xs := make([]float64, 1<<16)
+	for i := range xs {
+		xs[i] = math.Round((18+6*r.NormFloat64())*1000) / 1000
+	}
+	b.SetBytes(int64(8 * len(xs)))
+	for b.Loop() {
+		var t Tally[float64]
+		for range 16 {
+			t.Add(xs)
+		}
+	}
+}
