@@ -103,14 +103,14 @@ func (c *extremesCheck) analyse(st *ExtremesState) *extFinding {
 }
 
 // byThreshold fits Tukey's fences or the modified z-score without
-// sorting: the quartiles and the median are order statistics found by
-// selection (order.Quantiles7, R's type 7, as sorting would give them) in
-// a copy of the values, the MAD the median of the deviations from the
-// median, found the same way in the same copy; the values flagged are
-// counted in one pass over the values kept.
+// sorting or copying the values: the quartiles and the median are order
+// statistics found by radix selection over the kept parts (order.Chunks'
+// Quantiles7, R's type 7, as sorting would give them), the MAD the median
+// of the deviations from the median, found the same way with each
+// deviation computed as it is read (order.DeviationQuantiles7); the
+// values flagged are counted in one pass over the parts.
 func (c *extremesCheck) byThreshold(st *ExtremesState, f *extFinding) {
-	work := st.Values.Copy()
-	q := order.Quantiles7(work, 0.25, 0.5, 0.75)
+	q := st.Values.Quantiles7(0.25, 0.5, 0.75)
 	var r outlier.Rule
 	switch c.spec.Method {
 	case rules.ExtremesTukey:
@@ -122,7 +122,7 @@ func (c *extremesCheck) byThreshold(st *ExtremesState, f *extFinding) {
 		f.setScale(q[1], fences.IQR(), fences.Lower, fences.Upper)
 		r = fences
 	case rules.ExtremesRobustZ:
-		rz := outlier.RobustZ{Median: q[1], MAD: medianAbsDev(work, q[1]), Cutoff: c.spec.K}
+		rz := outlier.RobustZ{Median: q[1], MAD: medianAbsDev(&st.Values, q[1]), Cutoff: c.spec.K}
 		// |M| > k exactly when x lies beyond median ± k MAD / 0.6745.
 		half := c.spec.K * rz.MAD / 0.6745
 		f.estimates = map[string]float64{"median": rz.Median, "mad": rz.MAD, "k": c.spec.K,
@@ -163,15 +163,12 @@ func (c *extremesCheck) byThreshold(st *ExtremesState, f *extFinding) {
 }
 
 // medianAbsDev is the MAD of values about their median med, unscaled
-// (R's mad(constant = 1)): the type-7 median of |x − med|, found by
-// selection. It overwrites the values with their deviations. |x − med|
-// is exactly med − x below the median, so it equals the MAD
-// outlier.NewRobustZ reads from the sorted values.
-func medianAbsDev(values []float64, med float64) float64 {
-	for i, x := range values {
-		values[i] = math.Abs(x - med)
-	}
-	return order.Quantiles7(values, 0.5)[0]
+// (R's mad(constant = 1)): the type-7 median of |x − med|, found by radix
+// selection without copying or changing the values. |x − med| is exactly
+// med − x below the median, so it equals the MAD outlier.NewRobustZ reads
+// from the sorted values.
+func medianAbsDev(values *order.Chunks[float64], med float64) float64 {
+	return order.DeviationQuantiles7(values, med, 0.5)[0]
 }
 
 // setScale records the center, scale and thresholds of a finding; values

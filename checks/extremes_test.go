@@ -416,9 +416,12 @@ func TestExtremesBySelection(t *testing.T) {
 		"planted": func() float64 { return rng.NormFloat64() + float64(rng.IntN(40)/39)*25*(rng.Float64()-0.5) },
 		"ties":    func() float64 { return float64(rng.IntN(4)) },
 		"equal":   func() float64 { return 2.5 },
+		"narrow":  func() float64 { return 1000 + math.Round(20*rng.NormFloat64())/1024 },
 	}
 	for name, draw := range shapes {
-		for _, n := range []int{1, 2, 3, 4, 11, 500} {
+		// 150,000 values are enough for the selection to count digits
+		// rather than gather every value.
+		for _, n := range []int{1, 2, 3, 4, 11, 500, 150_000} {
 			xs := make([]float64, n+n/4)
 			var finite []float64
 			for i := range xs {
@@ -438,7 +441,11 @@ func TestExtremesBySelection(t *testing.T) {
 			}
 			slices.Sort(dev)
 			mad := order.Quantile7(dev, 0.5)
-			bs := batchesOf(t, mem, xs, 9)
+			size := 9
+			if n > 1000 {
+				size = 4096
+			}
+			bs := batchesOf(t, mem, xs, size)
 			for _, m := range []rules.ExtremesMethod{rules.ExtremesTukey, rules.ExtremesRobustZ} {
 				for _, k := range []float64{0.5, 1.5, 3.5} {
 					s := extSpec(m)

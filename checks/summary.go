@@ -50,8 +50,9 @@ import (
 //     grow with n for sums that do not cancel.
 //   - median and quantiles: exact, from every value kept (8 bytes per
 //     non-null value, in one slice per batch; the only summaries whose
-//     memory grows with the rows), found at Finish by selection, not by
-//     sorting (order.Quantiles7, expected O(n)). Definition 7 of Hyndman & Fan (1996, "Sample
+//     memory grows with the rows), found at Finish by radix selection over
+//     the kept parts, neither sorting nor copying them (order.Chunks'
+//     Quantiles7, about two passes). Definition 7 of Hyndman & Fan (1996, "Sample
 //     quantiles in statistical packages", The American Statistician
 //     50(4):361-365), R's default: with the values sorted x_1..x_n,
 //     h = 1 + (n-1)p, j = floor(h), Q(p) = (1-g) x_j + g x_{j+1}, g = h - j
@@ -420,7 +421,7 @@ func (a *SummaryAccumulator) value() (float64, string) {
 		return a.Max / per, ""
 	}
 	if a.check.col.class == classNumber {
-		return order.Quantiles7(a.Floats.Flatten(), a.check.q)[0], ""
+		return a.Floats.Quantiles7(a.check.q)[0], ""
 	}
-	return order.Quantiles7(a.Ints.Flatten(), a.check.q)[0] / per, ""
+	return a.Ints.Quantiles7(a.check.q)[0] / per, ""
 }

@@ -482,9 +482,12 @@ func TestSummaryQuantileKept(t *testing.T) {
 		"random": func() float64 { return math.Round(rng.NormFloat64()*1e6) / 64 },
 		"ties":   func() float64 { return float64(rng.IntN(3)) },
 		"equal":  func() float64 { return -7 },
+		"narrow": func() float64 { return 1e6 + math.Round(rng.NormFloat64()*1e3)/1024 },
 	}
 	for name, draw := range shapes {
-		for _, n := range []int{1, 2, 3, 4, 10, 1000} {
+		// 150,000 values are enough for the selection to count digits
+		// rather than gather every value.
+		for _, n := range []int{1, 2, 3, 4, 10, 1000, 150_000} {
 			vals := make([]any, n+n/5) // a fifth of the rows missing
 			var floats []float64
 			for i := range vals {
@@ -515,8 +518,12 @@ func TestSummaryQuantileKept(t *testing.T) {
 			}
 			for _, cc := range columns {
 				var bs []*source.Batch
-				for lo := 0; lo < len(vals); lo += 7 {
-					part := col{"x", cc.col.typ, cc.col.vals[lo:min(lo+7, len(vals))]}
+				size := 7
+				if n > 1000 {
+					size = 4096
+				}
+				for lo := 0; lo < len(vals); lo += size {
+					part := col{"x", cc.col.typ, cc.col.vals[lo:min(lo+size, len(vals))]}
 					b := newBatch(t, mem, int64(lo+1), part)
 					release(t, b)
 					bs = append(bs, b)

@@ -16,7 +16,7 @@ import (
 // a median-of-three pivot, in expected O(n); after 3 log2(n) rounds it
 // sorts what is left, so the worst case stays O(n log n). The values must
 // not be NaN.
-func Select[T int64 | float64](a []T, k int) T {
+func Select[T int64 | float64 | uint64](a []T, k int) T {
 	lo, hi := 0, len(a)-1
 	budget := 3 * bits.Len(uint(len(a)))
 	for hi > lo {
@@ -80,12 +80,21 @@ func Quantile7[T int64 | float64](sorted []T, p float64) float64 {
 	}
 	h := 1 + float64(n-1)*p
 	j := math.Floor(h)
-	lo := sorted[int(j)-1]
 	g := h - j
-	if g == 0 || sorted[int(j)] == lo {
+	if g == 0 {
+		return float64(sorted[int(j)-1])
+	}
+	return interpolate7(sorted[int(j)-1], sorted[int(j)], g)
+}
+
+// interpolate7 is (1−g) lo + g hi, the type-7 quantile between the order
+// statistics lo = x_(j) and hi = x_(j+1) with weight g in (0, 1), or lo
+// when the two are equal, in R's arithmetic (see Quantile7).
+func interpolate7[T int64 | float64](lo, hi T, g float64) float64 {
+	if hi == lo {
 		return float64(lo)
 	}
-	return (1-g)*float64(lo) + g*float64(sorted[int(j)])
+	return (1-g)*float64(lo) + g*float64(hi)
 }
 
 // SelectRanks reorders a so that a[r] holds the value of rank r (0-based,
@@ -95,7 +104,7 @@ func Quantile7[T int64 | float64](sorted []T, p float64) float64 {
 // place, a[r+1:] holds exactly the values of ranks r+1 and up, so the next
 // rank is found there, by a scan for the least value when it is r+1 and by
 // Select otherwise. The values must not be NaN.
-func SelectRanks[T int64 | float64](a []T, ranks []int) {
+func SelectRanks[T int64 | float64 | uint64](a []T, ranks []int) {
 	lo := 0 // a[:lo] is in place: no value of a[lo:] is smaller
 	for _, r := range ranks {
 		switch {
@@ -132,19 +141,7 @@ func Quantiles7[T int64 | float64](a []T, ps ...float64) []float64 {
 		}
 		return out
 	}
-	ranks := make([]int, 0, 2*len(ps))
-	for _, p := range ps {
-		if !(p >= 0 && p <= 1) {
-			continue
-		}
-		h := 1 + float64(n-1)*p
-		j := int(math.Floor(h)) // x_(j) is a[j-1]; x_(j+1) is a[j]
-		ranks = append(ranks, j-1)
-		if h > float64(j) { // g > 0, so j < n
-			ranks = append(ranks, j)
-		}
-	}
-	slices.Sort(ranks)
+	ranks := ranks7(n, ps)
 	SelectRanks(a, ranks)
 	for i, p := range ps {
 		out[i] = Quantile7(a, p)

@@ -1,0 +1,304 @@
+package order
+
+import (
+	"math"
+	"slices"
+)
+
+// FloatKey maps x to an unsigned integer in the same order: the sign bit
+// of a positive number (+0 included) is set, every bit of a negative one
+// (-0 included) is flipped, so that -Inf < ... < -0 < +0 < ... < +Inf in
+// both. NaNs map beyond ±Inf, by their sign bit. FloatOfKey undoes it.
+func FloatKey(x float64) uint64 {
+	b := math.Float64bits(x)
+	return b ^ (uint64(int64(b)>>63) | 1<<63)
+}
+
+// FloatOfKey is the float64 whose FloatKey is k.
+func FloatOfKey(k uint64) float64 {
+	return math.Float64frombits(k ^ (uint64(int64(^k)>>63) | 1<<63))
+}
+
+// IntKey maps x to an unsigned integer in the same order, by flipping its
+// sign bit; IntOfKey undoes it.
+func IntKey(x int64) uint64 { return uint64(x) ^ 1<<63 }
+
+// IntOfKey is the int64 whose IntKey is k.
+func IntOfKey(k uint64) int64 { return int64(k ^ 1<<63) }
+
+// Quantiles7 returns the p-quantiles of c's values, each p in [0, 1] (NaN
+// for another p), by definition 7 of Hyndman & Fan (1996), as Quantiles7
+// of the values would: the same order statistics and the same arithmetic,
+// so the same bits (a zero read where -0 and +0 both occur may take either
+// sign there; here -0 ranks below +0). It neither copies nor reorders the
+// values: the order statistics are found by radix selection over c's
+// parts (see selectKeys), in about two passes. The values must hold no
+// NaN; it returns NaNs for no values.
+func (c *Chunks[T]) Quantiles7(ps ...float64) []float64 {
+	switch c := any(c).(type) {
+	case *Chunks[float64]:
+		return quantilesOfKeys(c.n, ps, 0, keyScan{floats: c.parts}.each, FloatOfKey)
+	case *Chunks[int64]:
+		return quantilesOfKeys(c.n, ps, 0, keyScan{ints: c.parts}.each, IntOfKey)
+	}
+	panic("order: Chunks of an unknown type") // unreachable: T is int64 or float64
+}
+
+// DeviationQuantiles7 returns the p-quantiles, as Chunks.Quantiles7, of
+// the absolute deviations |x − center| of c's values, each computed as
+// math.Abs(x − center) when it is read: with p = 0.5, the MAD about
+// center (unscaled). The values are neither copied nor changed.
+func DeviationQuantiles7(c *Chunks[float64], center float64, ps ...float64) []float64 {
+	return quantilesOfKeys(c.n, ps, 0, keyScan{floats: c.parts, dev: true, center: center}.each, FloatOfKey)
+}
+
+// keyBlock is how many keys a keyScan hands over at a time: 8 KiB, which
+// stays in the first-level cache while it is read back.
+const keyBlock = 1024
+
+// keyScan reads the keys of a Chunks' values: FloatKey of the floats, of
+// their absolute deviations from center when dev is set, or IntKey of
+// the ints. Its loops are written out per case so that the key is
+// computed inline.
+type keyScan struct {
+	floats [][]float64
+	ints   [][]int64
+	dev    bool
+	center float64
+}
+
+// each calls fn with the keys of the values, in order, a block of at most
+// keyBlock at a time, in a buffer fn must not keep.
+func (s keyScan) each(fn func([]uint64)) {
+	buf := make([]uint64, keyBlock)
+	for _, p := range s.floats {
+		for len(p) > 0 {
+			m := min(len(p), keyBlock)
+			keys := buf[:m]
+			if s.dev {
+				for i, x := range p[:m] {
+					keys[i] = FloatKey(math.Abs(x - s.center))
+				}
+			} else {
+				for i, x := range p[:m] {
+					keys[i] = FloatKey(x)
+				}
+			}
+			fn(keys)
+			p = p[m:]
+		}
+	}
+	for _, p := range s.ints {
+		for len(p) > 0 {
+			m := min(len(p), keyBlock)
+			keys := buf[:m]
+			for i, x := range p[:m] {
+				keys[i] = IntKey(x)
+			}
+			fn(keys)
+			p = p[m:]
+		}
+	}
+}
+
+// quantilesOfKeys returns the type-7 quantiles of the n values whose keys
+// scan yields, reading each order statistic back from its key by value.
+// A digit of at most budget keys is gathered (see keySelector); budget 0
+// means n/8, and at least gatherMin.
+func quantilesOfKeys[T int64 | float64](n int, ps []float64, budget int, scan func(func([]uint64)), value func(uint64) T) []float64 {
+	out := make([]float64, len(ps))
+	if n == 0 {
+		for i := range out {
+			out[i] = math.NaN()
+		}
+		return out
+	}
+	ranks := ranks7(n, ps)
+	keys := make([]uint64, len(ranks))
+	if budget == 0 {
+		budget = max(n/8, gatherMin)
+	}
+	s := keySelector{scan: scan, budget: budget}
+	s.find(0, 64, n, ranks, keys)
+	at := func(r int) T { return value(keys[slices.Index(ranks, r)]) }
+	for i, p := range ps {
+		if !(p >= 0 && p <= 1) {
+			out[i] = math.NaN()
+			continue
+		}
+		h := 1 + float64(n-1)*p
+		j := math.Floor(h)
+		g := h - j
+		if g == 0 {
+			out[i] = float64(at(int(j) - 1))
+			continue
+		}
+		out[i] = interpolate7(at(int(j)-1), at(int(j)), g)
+	}
+	return out
+}
+
+// ranks7 are the 0-based ranks of the order statistics the type-7
+// p-quantiles of n values read, ascending without repeats: j−1 for each
+// valid p, and j when g > 0 (see Quantile7).
+func ranks7(n int, ps []float64) []int {
+	ranks := make([]int, 0, 2*len(ps))
+	for _, p := range ps {
+		if !(p >= 0 && p <= 1) {
+			continue
+		}
+		h := 1 + float64(n-1)*p
+		j := int(math.Floor(h)) // x_(j) is rank j-1; x_(j+1) is rank j
+		ranks = append(ranks, j-1)
+		if h > float64(j) { // g > 0, so j < n
+			ranks = append(ranks, j)
+		}
+	}
+	slices.Sort(ranks)
+	return slices.Compact(ranks)
+}
+
+// digitBits is the width of the digit each level of keySelector counts:
+// 16 bits, 65,536 counts (512 KiB), four levels for a 64-bit key.
+const digitBits = 16
+
+// gatherMin is the fewest keys keySelector gathers rather than counts:
+// below it, clearing and summing 65,536 counts costs more than copying
+// the keys and selecting among them.
+const gatherMin = 1 << 16
+
+// keySelector finds the keys of given ranks among keys it reads in
+// passes, by most-significant-digit radix selection (the distribution
+// counting of Knuth 1998, The Art of Computer Programming vol. 3, 2nd ed.,
+// §5.2.5, applied to selection): a pass counts the keys by their top 16
+// bits, the counts say which digit each wanted rank has, and the next
+// pass reads only the keys with that digit. Digits holding at most budget
+// keys are gathered together in one pass and the ranks selected among
+// them (Select, in expected linear time); a larger digit (ties, or values
+// in a narrow range) is counted again on its next 16 bits, and a key
+// whose 64 bits are all fixed is known without reading. So common data
+// costs two passes and copies at most budget keys per wanted digit; ties
+// or a narrow range cost at most two passes more per level, for each
+// large digit, over four levels.
+type keySelector struct {
+	scan   func(fn func([]uint64))
+	budget int
+	counts []int
+	slot   []int32 // slot[d] is 1 + the gathered digit d's index, or 0
+}
+
+// digitWant is a digit of a level that holds wanted ranks.
+type digitWant struct {
+	digit    uint64
+	count    int   // keys with the digit
+	ranks    []int // wanted ranks among those keys, ascending
+	out      []uint64
+	gathered bool
+}
+
+// find writes to out[i] the key of rank ranks[i] (ascending, distinct,
+// within [0, m)) among the m keys k with k>>shift == prefix (all of them
+// when shift is 64).
+func (s *keySelector) find(prefix uint64, shift uint, m int, ranks []int, out []uint64) {
+	if shift == 0 { // every key is prefix
+		for i := range out {
+			out[i] = prefix
+		}
+		return
+	}
+	if m <= s.budget {
+		buf := make([]uint64, 0, m)
+		s.scan(func(keys []uint64) {
+			for _, k := range keys {
+				if k>>shift == prefix {
+					buf = append(buf, k)
+				}
+			}
+		})
+		SelectRanks(buf, ranks)
+		for i, r := range ranks {
+			out[i] = buf[r]
+		}
+		return
+	}
+	sub := shift - digitBits
+	if s.counts == nil {
+		s.counts = make([]int, 1<<digitBits)
+		s.slot = make([]int32, 1<<digitBits)
+	} else {
+		clear(s.counts)
+	}
+	counts := s.counts
+	s.scan(func(keys []uint64) {
+		for _, k := range keys {
+			if k>>shift == prefix {
+				counts[(k>>sub)&(1<<digitBits-1)]++
+			}
+		}
+	})
+	var wants []digitWant
+	below, i := 0, 0 // keys with a smaller digit; next rank to place
+	for d, c := range counts {
+		j := i
+		for j < len(ranks) && ranks[j] < below+c {
+			j++
+		}
+		if j > i {
+			w := digitWant{digit: uint64(d), count: c, out: out[i:j]}
+			for _, r := range ranks[i:j] {
+				w.ranks = append(w.ranks, r-below)
+			}
+			wants = append(wants, w)
+			i = j
+			if i == len(ranks) {
+				break
+			}
+		}
+		below += c
+	}
+	// Gather the small digits together, each into its own stretch of buf.
+	total := 0
+	var starts []int
+	for wi := range wants {
+		if wants[wi].count <= s.budget {
+			wants[wi].gathered = true
+			s.slot[wants[wi].digit] = int32(len(starts) + 1)
+			starts = append(starts, total)
+			total += wants[wi].count
+		}
+	}
+	if total > 0 {
+		buf := make([]uint64, total)
+		next := slices.Clone(starts)
+		slot := s.slot
+		s.scan(func(keys []uint64) {
+			for _, k := range keys {
+				if k>>shift != prefix {
+					continue
+				}
+				if g := slot[(k>>sub)&(1<<digitBits-1)]; g != 0 {
+					buf[next[g-1]] = k
+					next[g-1]++
+				}
+			}
+		})
+		g := 0
+		for _, w := range wants {
+			if !w.gathered {
+				continue
+			}
+			s.slot[w.digit] = 0
+			part := buf[starts[g] : starts[g]+w.count]
+			g++
+			SelectRanks(part, w.ranks)
+			for i, r := range w.ranks {
+				w.out[i] = part[r]
+			}
+		}
+	}
+	for _, w := range wants {
+		if !w.gathered {
+			s.find(prefix<<digitBits|w.digit, sub, w.count, w.ranks, w.out)
+		}
+	}
+}
