@@ -130,12 +130,14 @@ func (d Dist) Support() (lo, hi float64) {
 	return d.m.Support()
 }
 
-// LogLik returns Σ LogProb(x_i). It is −Inf if any value lies outside the
-// support.
+// LogLik returns Σ LogProb(x_i), in the order of the sample, the log-density
+// computed once per run of equal values (runMemo). It is −Inf if any value
+// lies outside the support.
 func (d Dist) LogLik(sample []float64) float64 {
 	var s float64
+	lp := runMemo{f: d.m.LogProb}
 	for _, x := range sample {
-		s += d.m.LogProb(x)
+		s += lp.at(x)
 	}
 	return s
 }

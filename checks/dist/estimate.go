@@ -34,20 +34,43 @@ func errAllEqual(x []float64) error {
 // the corrected two-pass algorithm: the second pass adds back the rounding
 // error of the first mean (Chan, Golub & LeVeque 1983, Amer. Statist.
 // 37(3), eq. 1.7).
+// f is evaluated once per run of equal values (runMemo).
 func meanVar(x []float64, f func(float64) float64) (mean, variance float64) {
 	n := float64(len(x))
+	fm := runMemo{f: f}
 	var s float64
 	for _, v := range x {
-		s += f(v)
+		s += fm.at(v)
 	}
 	m := s / n
 	var c, ss float64
 	for _, v := range x {
-		d := f(v) - m
+		d := fm.at(v) - m
 		c += d
 		ss += d * d
 	}
 	return m + c/n, (ss - c*c/n) / n
+}
+
+// runMemo evaluates f once per run of values identical bit for bit (-0 and
+// +0 apart) and gives the stored result for the rest of the run. Samples
+// arrive sorted and data recorded to a few decimals repeat each value many
+// times (a million values to 3 decimals hold a few tens of thousands of
+// distinct ones), so most calls are saved; f is deterministic, so every
+// sum still adds the same terms in the same order as calling f each time.
+type runMemo struct {
+	f    func(float64) float64
+	bits uint64
+	fx   float64
+	set  bool
+}
+
+// at returns f(x).
+func (m *runMemo) at(x float64) float64 {
+	if b := math.Float64bits(x); !m.set || b != m.bits {
+		m.bits, m.fx, m.set = b, m.f(x), true
+	}
+	return m.fx
 }
 
 func identity(x float64) float64 { return x }
@@ -98,8 +121,9 @@ func estimateExponential(x, theta []float64, _ []bool) error {
 func estimateGamma(x, theta []float64, _ []bool) error {
 	m, _ := meanVar(x, identity)
 	var sl float64
+	lm := runMemo{f: func(v float64) float64 { return math.Log(v / m) }}
 	for _, v := range x {
-		sl += math.Log(v / m)
+		sl += lm.at(v)
 	}
 	s := -sl / float64(len(x))
 	if !(s > 0) {
@@ -134,13 +158,15 @@ func estimateWeibull(x, theta []float64, _ []bool) error {
 	}
 	u := make([]float64, len(x))
 	umax := math.Inf(-1)
+	lm := runMemo{f: math.Log}
 	for i, v := range x {
-		u[i] = math.Log(v) - ml
+		u[i] = lm.at(v) - ml
 		umax = math.Max(umax, u[i])
 	}
 	sums := func(k float64) (s0, s1, s2 float64) {
+		wm := runMemo{f: func(ui float64) float64 { return math.Exp(k * (ui - umax)) }}
 		for _, ui := range u {
-			w := math.Exp(k * (ui - umax))
+			w := wm.at(ui)
 			s0 += w
 			s1 += w * ui
 			s2 += w * ui * ui

@@ -18,20 +18,27 @@ import (
 // is compensated (Neumaier) because A² is the small difference of two
 // numbers of size n. A value where the reference gives F = 0 or 1 - F = 0
 // (beyond the floating-point tail of F) makes A² infinite and its p-value 0.
+// ln F and ln(1 - F) are computed once per run of equal values (runEnd);
+// every observation still adds its own term, in order.
 func andersonDarling(s Sorted, ref CDF) (float64, KSDistance) {
 	n := len(s.x)
 	var sum fsum.Neumaier
 	var k ksAcc
 	inf := false
-	for i, v := range s.x {
+	for i := 0; i < n; {
+		v := s.x[i]
 		u := ref.CDF(v)
-		k.add(i, n, u)
-		term := float64(2*i+1)*math.Log(u) + float64(2*n-2*i-1)*math.Log(survival(ref, v))
-		if math.IsInf(term, -1) {
-			inf = true
-			continue
+		lu, ls := math.Log(u), math.Log(survival(ref, v))
+		j := runEnd(s.x, i)
+		k.addRun(i, j, n, u)
+		for ; i < j; i++ {
+			term := float64(2*i+1)*lu + float64(2*n-2*i-1)*ls
+			if math.IsInf(term, -1) {
+				inf = true
+				continue
+			}
+			sum.Add(term)
 		}
-		sum.Add(term)
 	}
 	if inf {
 		return math.Inf(1), k.result()

@@ -11,17 +11,22 @@ import (
 //
 //	W² = 1/(12n) + sum_{i=1..n} (F(x_(i)) - (2i-1)/(2n))²
 //
-// (D'Agostino & Stephens 1986, eq. 4.2).
+// (D'Agostino & Stephens 1986, eq. 4.2). F is computed once per run of
+// equal values (runEnd); every observation still adds its own term, in
+// order.
 func cramerVonMises(s Sorted, ref CDF) (float64, KSDistance) {
 	n := len(s.x)
 	nf := float64(n)
 	var sum fsum.Neumaier
 	var k ksAcc
-	for i, v := range s.x {
-		u := ref.CDF(v)
-		k.add(i, n, u)
-		d := u - float64(2*i+1)/(2*nf)
-		sum.Add(d * d)
+	for i := 0; i < n; {
+		u := ref.CDF(s.x[i])
+		j := runEnd(s.x, i)
+		k.addRun(i, j, n, u)
+		for ; i < j; i++ {
+			d := u - float64(2*i+1)/(2*nf)
+			sum.Add(d * d)
+		}
 	}
 	return 1/(12*nf) + sum.Value(), k.result()
 }
