@@ -84,13 +84,14 @@ func (c *extremesCheck) analyse(st *ExtremesState) *extFinding {
 		return f
 	}
 	values := st.Values.Flatten()
-	// The tail fit and the tests work on the sorted values; the tests name
-	// values by their position, so they are given the values as kept.
+	// The tail fit and the tests work on the sorted values (sorted by
+	// radix, order.SortFloat64); the tests name values by their position,
+	// so they are given the values as kept.
 	sorted := values
 	if c.keepsRows() {
 		sorted = slices.Clone(values)
 	}
-	slices.Sort(sorted)
+	order.SortFloat64(sorted)
 	switch m {
 	case rules.ExtremesTail:
 		c.tail(sorted, f)

@@ -32,7 +32,7 @@ func IntOfKey(k uint64) int64 { return int64(k ^ 1<<63) }
 // so the same bits (a zero read where -0 and +0 both occur may take either
 // sign there; here -0 ranks below +0). It neither copies nor reorders the
 // values: the order statistics are found by radix selection over c's
-// parts (see selectKeys), in about two passes. The values must hold no
+// parts (see keySelector), in about two passes. The values must hold no
 // NaN; it returns NaNs for no values.
 func (c *Chunks[T]) Quantiles7(ps ...float64) []float64 {
 	switch c := any(c).(type) {
@@ -118,8 +118,10 @@ func quantilesOfKeys[T int64 | float64](n int, ps []float64, budget int, scan fu
 	if budget == 0 {
 		budget = max(n/8, gatherMin)
 	}
-	s := keySelector{scan: scan, budget: budget}
-	s.find(0, 64, n, ranks, keys)
+	if len(ranks) > 0 {
+		s := keySelector{scan: scan, budget: budget}
+		s.find(0, 64, n, ranks, keys)
+	}
 	at := func(r int) T { return value(keys[slices.Index(ranks, r)]) }
 	for i, p := range ps {
 		if !(p >= 0 && p <= 1) {

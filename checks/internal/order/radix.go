@@ -1,6 +1,10 @@
 package order
 
-import "slices"
+import (
+	"cmp"
+	"slices"
+	"unsafe"
+)
 
 // radixMin is the length below which SortUint64 hands over to slices.Sort:
 // under it, clearing and summing the 8 x 256 counts costs more than
@@ -57,5 +61,27 @@ func SortUint64(xs, scratch []uint64) {
 	}
 	if &src[0] != &xs[0] {
 		copy(xs, src)
+	}
+}
+
+// SortFloat64 sorts xs in increasing order by SortUint64 on their FloatKey
+// bits: the values are turned into their keys in place (a float64 and a
+// uint64 have the same size and alignment, so xs is read as a []uint64),
+// sorted, and turned back, with one scratch array of len(xs). The order is
+// < with -0 before +0 (slices.Sort leaves them in any order); NaNs, which
+// the callers exclude, would go to either end by their sign bit. Slices
+// shorter than radixMin are sorted by comparing their keys.
+func SortFloat64(xs []float64) {
+	if len(xs) < radixMin {
+		slices.SortFunc(xs, func(a, b float64) int { return cmp.Compare(FloatKey(a), FloatKey(b)) })
+		return
+	}
+	keys := unsafe.Slice((*uint64)(unsafe.Pointer(&xs[0])), len(xs))
+	for i, x := range xs {
+		keys[i] = FloatKey(x)
+	}
+	SortUint64(keys, make([]uint64, len(keys)))
+	for i, k := range keys {
+		xs[i] = FloatOfKey(k)
 	}
 }

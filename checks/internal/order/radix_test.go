@@ -1,6 +1,7 @@
 package order
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -85,5 +86,51 @@ func BenchmarkSortUint64(b *testing.B) {
 				tc.sort()
 			}
 		})
+	}
+}
+
+// TestSortFloat64 compares SortFloat64 with sorting in key order, bit for
+// bit (-0 before +0), on the shapes of keyShapes, about radixMin and
+// above.
+func TestSortFloat64(t *testing.T) {
+	rng := rand.New(rand.NewPCG(11, 12))
+	for name, gen := range keyShapes {
+		for _, n := range []int{0, 1, 2, radixMin - 1, radixMin, radixMin + 1, 1000, 5000} {
+			xs := gen(rng, n)
+			want := keySorted(xs)
+			SortFloat64(xs)
+			if !slices.EqualFunc(xs, want, func(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }) {
+				t.Fatalf("%s n=%d: SortFloat64 gives another order than sorting", name, n)
+			}
+		}
+	}
+}
+
+// BenchmarkSortFloat64 sorts 1e6 and 1e7 normal values (1e7 skipped with
+// -short), against slices.Sort.
+func BenchmarkSortFloat64(b *testing.B) {
+	for _, n := range []int{1_000_000, 10_000_000} {
+		if n > 1_000_000 && testing.Short() {
+			continue
+		}
+		rng := rand.New(rand.NewPCG(5, 6))
+		orig := fill(n, func(int) float64 { return 50 + 10*rng.NormFloat64() })
+		xs := make([]float64, n)
+		for _, tc := range []struct {
+			name string
+			sort func()
+		}{
+			{"radix", func() { SortFloat64(xs) }},
+			{"slices.Sort", func() { slices.Sort(xs) }},
+		} {
+			b.Run(fmt.Sprintf("%s/%.0e", tc.name, float64(n)), func(b *testing.B) {
+				b.ReportAllocs()
+				b.SetBytes(int64(8 * n))
+				for b.Loop() {
+					copy(xs, orig)
+					tc.sort()
+				}
+			})
+		}
 	}
 }
