@@ -129,9 +129,11 @@ type SummaryState struct {
 	Sum      Int128   // exact sum of an integer or time column
 	FloatSum Neumaier // compensated sum of a float column
 	// Floats (float columns) or Ints (integer and time columns) keep every
-	// value that is not NaN, for median and quantiles only.
-	Floats order.Chunks[float64]
-	Ints   order.Chunks[int64]
+	// value that is not NaN, for median and quantiles only: as distinct
+	// values and counts while there are few of them, else as the values
+	// (order.Tally).
+	Floats order.Tally[float64]
+	Ints   order.Tally[int64]
 	// Distinct holds the distinct values (their 8 bytes, or a string's
 	// 64-bit hash), for distinct only.
 	Distinct map[uint64]struct{}
@@ -173,6 +175,10 @@ type SummaryAccumulator struct {
 	SummaryState
 	check   *summaryCheck
 	scratch scratch
+	// keptFloats and keptInts hold a batch's values on their way to the
+	// tally, reused from batch to batch.
+	keptFloats []float64
+	keptInts   []int64
 }
 
 // Observe adds the batch's non-null values of the column.
@@ -183,9 +189,9 @@ func (a *SummaryAccumulator) Observe(b *source.Batch) error {
 	}
 	switch a.check.col.class {
 	case classNumber:
-		a.observeFloats(float64s(arr, &a.scratch.floats), validOf(arr), arr.NullN())
+		a.observeFloats(float64s(arr, &a.scratch.floats), validOf(arr))
 	case classInteger, classTime:
-		a.observeInts(int64s(arr, &a.scratch.ints), validOf(arr), arr.NullN())
+		a.observeInts(int64s(arr, &a.scratch.ints), validOf(arr))
 	case classString:
 		a.Count += int64(arr.Len() - arr.NullN())
 		if a.Distinct != nil {
@@ -212,19 +218,16 @@ func (a *SummaryAccumulator) Observe(b *source.Batch) error {
 
 // observeFloats adds the values of xs that v says are valid; nulls of
 // them are not.
-func (a *SummaryAccumulator) observeFloats(xs []float64, v valid, nulls int) {
+func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
 	var (
 		w          welford
 		nan        int64
 		lo, hi     = math.Inf(1), math.Inf(-1)
 		sum        = a.FloatSum
 		keep       = a.check.keepsValues()
-		kept       []float64
+		kept       = a.keptFloats[:0]
 		collectSet = a.Distinct != nil
 	)
-	if keep {
-		kept = make([]float64, 0, len(xs)-nulls)
-	}
 	for i, x := range xs {
 		if !v.at(i) {
 			continue
@@ -244,6 +247,7 @@ func (a *SummaryAccumulator) observeFloats(xs []float64, v valid, nulls int) {
 		}
 	}
 	a.Floats.Add(kept)
+	a.keptFloats = kept
 	a.FloatSum = sum
 	a.pool(w, lo, hi)
 	a.Count += w.n + nan
@@ -252,18 +256,15 @@ func (a *SummaryAccumulator) observeFloats(xs []float64, v valid, nulls int) {
 
 // observeInts adds the values of xs that v says are valid; nulls of them
 // are not.
-func (a *SummaryAccumulator) observeInts(xs []int64, v valid, nulls int) {
+func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
 	var (
 		w          welford
 		lo, hi     int64 = math.MaxInt64, math.MinInt64
 		sum              = a.Sum
 		keep             = a.check.keepsValues()
-		kept       []int64
-		collectSet = a.Distinct != nil
+		kept             = a.keptInts[:0]
+		collectSet       = a.Distinct != nil
 	)
-	if keep {
-		kept = make([]int64, 0, len(xs)-nulls)
-	}
 	for i, x := range xs {
 		if !v.at(i) {
 			continue
@@ -279,6 +280,7 @@ func (a *SummaryAccumulator) observeInts(xs []int64, v valid, nulls int) {
 		}
 	}
 	a.Ints.Add(kept)
+	a.keptInts = kept
 	a.Sum = sum
 	if w.n > 0 {
 		a.pool(w, float64(lo), float64(hi))
@@ -343,8 +345,8 @@ func (a *SummaryAccumulator) Merge(other Accumulator) error {
 	a.NaN += o.NaN
 	a.Sum.AddInt128(o.Sum)
 	a.FloatSum.Merge(o.FloatSum)
-	a.Floats.Splice(&o.Floats)
-	a.Ints.Splice(&o.Ints)
+	a.Floats.Merge(&o.Floats)
+	a.Ints.Merge(&o.Ints)
 	for k := range o.Distinct {
 		a.Distinct[k] = struct{}{}
 	}

@@ -167,11 +167,11 @@ func (t *Tally[T]) Spilled() bool { return t.spilled }
 // definition 7 of Hyndman & Fan (1996) (see Quantile7, whose arithmetic
 // it repeats, so the two agree to the last bit). From counts, the order
 // statistics are read off the distinct values in ascending order and
-// their running counts; spilled, the values are flattened and selected
-// (order.Quantiles7). Values must not be NaN.
+// their running counts; spilled, from the values (Chunks.Quantiles7).
+// Values must not be NaN.
 func (t *Tally[T]) Quantiles7(ps ...float64) []float64 {
 	if t.spilled {
-		return Quantiles7(t.raw.Flatten(), ps...)
+		return t.raw.Quantiles7(ps...)
 	}
 	type entry struct {
 		x T
