@@ -101,6 +101,12 @@ type fitting struct {
 	dist   float64         // the distance measure
 	cells  []cell          // the partition regions are found on
 	note   string          // how the test's sample differs from the fit's
+	// atGrid is the KS test at the grid against the best fit, once made;
+	// effectAtBest says that the test's effect (Result.Effect) is the KS
+	// distance to the best fit itself, as gof.Specified and gof.Estimated
+	// compute it, so that it need not be computed again.
+	atGrid       *gof.Result
+	effectAtBest bool
 }
 
 // cell is one cell of the partition regions are looked for in: values in
@@ -160,11 +166,19 @@ func (ft *fitting) test() error {
 		if err != nil {
 			return err
 		}
+		ft.atGrid = &at
 		ft.dist = at.Statistic.Value
+		return ft.edf()
+	}
+	if err := ft.edf(); err != nil {
+		return err
+	}
+	if ft.effectAtBest {
+		ft.dist = ft.res.Effect.Value
 	} else {
 		ft.dist = gof.Distance(ft.sorted, ft.best.Dist).D
 	}
-	return ft.edf()
+	return nil
 }
 
 // chiSquare tests counts against cell probabilities; the distance is the
@@ -293,13 +307,14 @@ func (ft *fitting) edf() error {
 		}
 		ft.res, err = gof.ShapiroWilk(s)
 	case ft.best.K == 0 && ft.grid != nil:
-		ft.res, err = gof.KSAtResolution(ft.sorted, d, *ft.grid)
+		ft.res, err = ft.ksAtGrid()
 	case ft.best.K == 0:
 		ft.res, err = gof.Specified(t, ft.sorted, d)
+		ft.effectAtBest = true
 	case ft.grid != nil && n <= c.bootstrapMax:
 		ft.res, err = ft.bootstrapAtResolution(boot)
 	case ft.grid != nil:
-		ft.res, err = gof.KSAtResolution(ft.sorted, d, *ft.grid)
+		ft.res, err = ft.ksAtGrid()
 		ft.res.Method.Source += "; parameters estimated from the data, so the p-value is an upper bound"
 	case fam.Name() == "normal" && (t != gof.KS || n <= c.bootstrapMax):
 		ft.res, err = gof.Normal(t, ft.sorted, boot)
@@ -307,12 +322,26 @@ func (ft *fitting) edf() error {
 		ft.res, err = gof.Exponential(t, ft.sorted, boot)
 	case n <= c.bootstrapMax:
 		ft.res, err = gof.Estimated(t, ft.sorted, d, refit(fam), boot)
+		ft.effectAtBest = true
 	default:
 		ft.res, err = gof.Specified(t, ft.sorted, d)
+		ft.effectAtBest = true
 		ft.res.Method.Conservative = true
 		ft.res.Method.Source += fmt.Sprintf("; parameters estimated from the data, so the p-value is an upper bound (a bootstrap runs on at most %s values)", thousands(int64(c.bootstrapMax)))
 	}
 	return err
+}
+
+// ksAtGrid is the KS test at the grid against the best fit, computed once.
+func (ft *fitting) ksAtGrid() (gof.Result, error) {
+	if ft.atGrid == nil {
+		at, err := gof.KSAtResolution(ft.sorted, ft.best.Dist, *ft.grid)
+		if err != nil {
+			return gof.Result{}, err
+		}
+		ft.atGrid = &at
+	}
+	return *ft.atGrid, nil
 }
 
 // refit is the estimator of family f for a bootstrap.
@@ -339,7 +368,7 @@ func refit(f dist.Family) gof.Refit {
 // rounded family given that it stays in the support.
 func (ft *fitting) bootstrapAtResolution(r gof.Resampling) (gof.Result, error) {
 	g := *ft.grid
-	res, err := gof.KSAtResolution(ft.sorted, ft.best.Dist, g)
+	res, err := ft.ksAtGrid()
 	if err != nil {
 		return gof.Result{}, err
 	}

@@ -38,13 +38,23 @@ func (e *SupportError) Error() string {
 		e.Family, e.Need, e.Count, e.N, lead, strings.Join(shown, ", "))
 }
 
-// checkValues returns a SupportError for the values of x failing ok.
+// checkValues returns a SupportError for the values of x failing ok. A
+// value identical, bit for bit, to the one before it that passed passes
+// too without asking ok again (samples arrive sorted, with long runs of
+// equal values).
 func checkValues(x []float64, family, need string, ok func(float64) bool) error {
 	var e *SupportError
+	var passed uint64
+	havePassed := false
 	for i, v := range x {
-		if ok(v) {
+		if b := math.Float64bits(v); havePassed && b == passed {
 			continue
 		}
+		if ok(v) {
+			passed, havePassed = math.Float64bits(v), true
+			continue
+		}
+		havePassed = false
 		if e == nil {
 			e = &SupportError{Family: family, Need: need, N: len(x)}
 		}

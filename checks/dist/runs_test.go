@@ -85,3 +85,40 @@ func TestLogLikRunsBitIdentical(t *testing.T) {
 		}
 	}
 }
+
+// TestCheckValuesRuns: checkValues, which skips a value identical to one
+// that just passed, still counts and shows every value outside, runs of
+// them included.
+func TestCheckValuesRuns(t *testing.T) {
+	positive := func(x float64) bool { return x > 0 }
+	negZero := math.Copysign(0, -1)
+	tests := []struct {
+		name   string
+		x      []float64
+		count  int
+		values []float64
+	}{
+		{"runs outside", []float64{-1, -1, -1, 0, 0, 1, 1, 2}, 5, []float64{-1, -1, -1, 0, 0}},
+		{"outside after a run inside", []float64{1, 1, 1, 0, 0, 1, 1}, 2, []float64{0, 0}},
+		{"signed zeros", []float64{negZero, 0, negZero, 3, 3}, 3, []float64{negZero, 0, negZero}},
+		{"all inside", []float64{2, 2, 2}, 0, nil},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			err := checkValues(tc.x, "f", "values above 0", positive)
+			if tc.count == 0 {
+				if err != nil {
+					t.Fatalf("got %v, want no error", err)
+				}
+				return
+			}
+			e, ok := err.(*SupportError)
+			if !ok {
+				t.Fatalf("got %v, want a *SupportError", err)
+			}
+			if e.Count != tc.count || !slices.Equal(e.Values, tc.values) {
+				t.Errorf("count %d values %v, want %d %v", e.Count, e.Values, tc.count, tc.values)
+			}
+		})
+	}
+}

@@ -133,8 +133,16 @@ func KSAtResolution(s Sorted, ref CDF, res Resolution) (Result, error) {
 	}
 	nf := float64(n)
 	var plus, minus float64
+	// The upper boundary of a cell is the lower one of the next cell up,
+	// bit for bit (Origin + (c ± 1/2) Step with c a whole number), so F
+	// is kept from one to the next.
+	var lastE, lastF float64
+	have := false
 	edge := func(e float64, count int) {
-		d := float64(count)/nf - ref.CDF(e)
+		if !have || math.Float64bits(e) != math.Float64bits(lastE) {
+			lastE, lastF, have = e, ref.CDF(e), true
+		}
+		d := float64(count)/nf - lastF
 		plus = max(plus, d)
 		minus = max(minus, -d)
 	}

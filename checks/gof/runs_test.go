@@ -121,3 +121,61 @@ func TestEDFRunsBitIdentical(t *testing.T) {
 		})
 	}
 }
+
+// perEdgeKSAtResolution is D_h with F evaluated at both boundaries of
+// every observed cell, as KSAtResolution's definition reads.
+func perEdgeKSAtResolution(s Sorted, ref CDF, res Resolution) float64 {
+	nf := float64(len(s.x))
+	var plus, minus float64
+	edge := func(e float64, count int) {
+		d := float64(count)/nf - ref.CDF(e)
+		plus = max(plus, d)
+		minus = max(minus, -d)
+	}
+	for i := 0; i < len(s.x); {
+		c := math.Round((s.x[i] - res.Origin) / res.Step)
+		j := i + 1
+		for j < len(s.x) && math.Round((s.x[j]-res.Origin)/res.Step) == c {
+			j++
+		}
+		edge(res.Origin+(c-0.5)*res.Step, i)
+		edge(res.Origin+(c+0.5)*res.Step, j)
+		i = j
+	}
+	return max(plus, minus)
+}
+
+// TestKSAtResolutionSharedEdges: D_h, which evaluates F once at a boundary
+// two observed cells share, equals the per-edge definition bit for bit,
+// with adjacent cells, gaps between cells and an origin off zero.
+func TestKSAtResolutionSharedEdges(t *testing.T) {
+	rng := newRand(4)
+	tests := []struct {
+		name string
+		res  Resolution
+		draw func() float64
+	}{
+		{"hundredths", Resolution{Step: 0.01}, func() float64 { return math.Round(rng.NormFloat64()*100) / 100 }},
+		{"tenths, sparse", Resolution{Step: 0.1}, func() float64 { return math.Round(rng.NormFloat64()*30) / 10 }},
+		{"quarters off zero", Resolution{Step: 0.25, Origin: 0.1}, func() float64 { return 0.1 + 0.25*math.Round(rng.NormFloat64()*8) }},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			x := make([]float64, 20000)
+			for i := range x {
+				x[i] = tc.draw()
+			}
+			s, err := Sort(x)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got, err := KSAtResolution(s, distuv.UnitNormal, tc.res)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if want := perEdgeKSAtResolution(s, distuv.UnitNormal, tc.res); math.Float64bits(got.Statistic.Value) != math.Float64bits(want) {
+				t.Errorf("D_h = %v, per edge %v", got.Statistic.Value, want)
+			}
+		})
+	}
+}
