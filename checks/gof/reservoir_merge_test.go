@@ -127,3 +127,86 @@ func TestChunks(t *testing.T) {
 		})
 	}
 }
+
+// mergeByCopy is Merge's sampling branch as first written: both samples
+// copied out, picked by the plain partial Fisher-Yates loop, and copied
+// into new pieces. Merge must draw and keep exactly the same.
+func mergeByCopy(r, other *Reservoir) {
+	total := r.seen + other.seen
+	r.runs = nil
+	remA, remB := r.seen, other.seen
+	j := 0
+	for range r.size {
+		if r.rng.Int64N(remA+remB) < remA {
+			j++
+			remA--
+		} else {
+			remB--
+		}
+	}
+	pick := func(c []float64, k int) []float64 {
+		for i := range k {
+			p := i + r.rng.IntN(len(c)-i)
+			c[i], c[p] = c[p], c[i]
+		}
+		return c[:k]
+	}
+	a := pick(r.items.all(), j)
+	b := pick(other.items.all(), r.size-j)
+	r.items = chunks{}
+	r.items.add(a, r.size)
+	r.items.add(b, r.size)
+	r.seen = total
+	r.resume()
+}
+
+// TestReservoirMergeSameDraws: Merge, which picks the receiver's subset in
+// place and draws places a block at a time, keeps the values, in the same
+// order, that the plain copying merge keeps, leaves the other reservoir
+// unchanged, and leaves the generator and Algorithm L where the plain one
+// does (the same values are kept from what is offered next). Sizes across
+// a piece (64k), receivers not full, and one side that hardly weighs.
+func TestReservoirMergeSameDraws(t *testing.T) {
+	tests := []struct {
+		name         string
+		size, na, nb int
+		after        int
+	}{
+		{"small", 10, 25, 40, 100},
+		{"one", 1, 3, 5, 50},
+		{"receiver not full", 1000, 10, 5000, 3000},
+		{"other not full", 1000, 5000, 3, 3000},
+		{"across pieces", 150_000, 400_000, 300_000, 200_000},
+		{"more than a block", 700, 900, 2500, 1000},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			fill := func(seed uint64, from, n int) *Reservoir {
+				r, _ := NewReservoir(tc.size, seed)
+				for pos := from; pos < from+n; pos += 1000 {
+					r.AddAllAt(int64(pos), seq(pos, min(pos+1000, from+n)))
+				}
+				return r
+			}
+			got, want := fill(1, 0, tc.na), fill(1, 0, tc.na)
+			other := fill(2, tc.na, tc.nb)
+			before := other.Values()
+			if err := got.Merge(other); err != nil {
+				t.Fatal(err)
+			}
+			mergeByCopy(want, fill(2, tc.na, tc.nb))
+			if !slices.Equal(got.Values(), want.Values()) || got.Seen() != want.Seen() {
+				t.Fatalf("merged sample differs from the plain merge's (seen %d, %d)", got.Seen(), want.Seen())
+			}
+			if !slices.Equal(other.Values(), before) {
+				t.Errorf("Merge changed the other reservoir")
+			}
+			more := seq(tc.na+tc.nb, tc.na+tc.nb+tc.after)
+			got.AddAll(more)
+			want.AddAll(more)
+			if !slices.Equal(got.Values(), want.Values()) {
+				t.Errorf("after %d more values the samples differ", tc.after)
+			}
+		})
+	}
+}
