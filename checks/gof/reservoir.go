@@ -3,6 +3,7 @@ package gof
 import (
 	"cmp"
 	"fmt"
+	"iter"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -188,10 +189,7 @@ func (r *Reservoir) Merge(other *Reservoir) error {
 	}
 	total := r.seen + other.seen
 	if total <= int64(r.size) {
-		var merged []float64
-		merged, r.runs = mergeRuns(r.items.all(), r.runs, other.items.all(), other.runs)
-		r.items = chunks{}
-		r.items.add(merged, r.size)
+		r.items, r.runs = mergeRuns(&r.items, r.runs, &other.items, other.runs, r.size)
 		r.seen = total
 		if r.items.n == r.size {
 			r.resume()
@@ -226,28 +224,33 @@ func (r *Reservoir) Merge(other *Reservoir) error {
 
 // mergeRuns returns the values of two complete reservoirs, each the
 // concatenation of its runs, in the order of the runs' positions (the
-// receiver's first among equal positions), and the merged runs.
-func mergeRuns(a []float64, ra []run, b []float64, rb []run) ([]float64, []run) {
+// receiver's first among equal positions), in new pieces for a reservoir
+// of size values, and the merged runs. Each run is copied once, from its
+// pieces to the new ones.
+func mergeRuns(a *chunks, ra []run, b *chunks, rb []run, size int) (chunks, []run) {
 	type piece struct {
 		run
-		from []float64
+		from *chunks
+		at   int
 	}
 	pieces := make([]piece, 0, len(ra)+len(rb))
 	for _, side := range []struct {
-		vals []float64
+		vals *chunks
 		runs []run
 	}{{a, ra}, {b, rb}} {
 		at := 0
 		for _, r := range side.runs {
-			pieces = append(pieces, piece{r, side.vals[at : at+r.n]})
+			pieces = append(pieces, piece{r, side.vals, at})
 			at += r.n
 		}
 	}
 	slices.SortStableFunc(pieces, func(p, q piece) int { return cmp.Compare(p.pos, q.pos) })
-	vals := make([]float64, 0, len(a)+len(b))
+	var vals chunks
 	runs := make([]run, 0, len(pieces))
 	for _, p := range pieces {
-		vals = append(vals, p.from...)
+		for part := range p.from.span(p.at, p.at+p.n) {
+			vals.add(part, size)
+		}
 		if k := len(runs); k > 0 && runs[k-1].pos+int64(runs[k-1].n) == p.pos {
 			runs[k-1].n += p.n
 		} else {
@@ -313,6 +316,20 @@ func (c *chunks) add(vs []float64, size int) {
 
 // set replaces value i.
 func (c *chunks) set(i int, v float64) { c.parts[i>>chunkBits][i&(chunkLen-1)] = v }
+
+// span yields values from..to-1 as sub-slices of the pieces, in order.
+func (c *chunks) span(from, to int) iter.Seq[[]float64] {
+	return func(yield func([]float64) bool) {
+		for from < to {
+			k, off := from>>chunkBits, from&(chunkLen-1)
+			end := min(len(c.parts[k]), off+to-from)
+			if !yield(c.parts[k][off:end]) {
+				return
+			}
+			from += end - off
+		}
+	}
+}
 
 // swap exchanges values i and j.
 func (c *chunks) swap(i, j int) {

@@ -24,6 +24,9 @@ func TestReservoirMergeInterleaved(t *testing.T) {
 		{"one worker saw nothing", 100, 10, 10, 0, 2},
 		{"more workers than batches", 50, 20, 10, 0, 4},
 		{"sampled", 50, 1000, 16, 1, 3},
+		{"runs across pieces of 64k", 200_000, 190_000, 30_000, 0, 3},
+		{"four lanes of 64k batches", 1_000_000, 1_000_000, 1 << 16, 0, 4},
+		{"sampled across pieces", 100_000, 400_000, 1 << 16, 2, 4},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
