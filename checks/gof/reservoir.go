@@ -104,6 +104,12 @@ func (r *Reservoir) AddAllAt(pos int64, vs []float64) {
 	if r.items.n < r.size && len(vs) > 0 {
 		r.note(pos, min(r.size-r.items.n, len(vs)))
 	}
+	// Replacements are written a block at a time, in their order: the
+	// writes land at random places of the sample (8 MB at 10⁶ values) and
+	// overlap their memory accesses in a tight loop.
+	var pending [replaceBlock]replacement
+	np := 0
+	defer func() { r.items.apply(pending[:np]) }()
 	for len(vs) > 0 {
 		if r.items.n < r.size {
 			take := min(r.size-r.items.n, len(vs))
@@ -122,7 +128,12 @@ func (r *Reservoir) AddAllAt(pos int64, vs []float64) {
 			return
 		}
 		r.seen += gap + 1
-		r.items.set(r.rng.IntN(r.size), vs[gap])
+		if np == replaceBlock {
+			r.items.apply(pending[:])
+			np = 0
+		}
+		pending[np] = replacement{r.rng.IntN(r.size), vs[gap]}
+		np++
 		vs = vs[gap+1:]
 		r.w *= math.Exp(math.Log(r.uniform()) / float64(r.size))
 		r.skip()
@@ -314,8 +325,21 @@ func (c *chunks) add(vs []float64, size int) {
 	}
 }
 
-// set replaces value i.
-func (c *chunks) set(i int, v float64) { c.parts[i>>chunkBits][i&(chunkLen-1)] = v }
+// replacement is a value that takes place i of the sample.
+type replacement struct {
+	i int
+	v float64
+}
+
+// replaceBlock is how many replacements AddAllAt holds before writing them.
+const replaceBlock = 256
+
+// apply makes the replacements, in order.
+func (c *chunks) apply(rs []replacement) {
+	for _, x := range rs {
+		c.parts[x.i>>chunkBits][x.i&(chunkLen-1)] = x.v
+	}
+}
 
 // span yields values from..to-1 as sub-slices of the pieces, in order.
 func (c *chunks) span(from, to int) iter.Seq[[]float64] {

@@ -1,6 +1,7 @@
 package gof
 
 import (
+	"math"
 	"slices"
 	"testing"
 )
@@ -115,7 +116,7 @@ func TestChunks(t *testing.T) {
 			}
 			for _, i := range []int{0, chunkLen - 1, chunkLen, len(want) - 1} {
 				if i < len(want) {
-					c.set(i, -float64(i))
+					c.apply([]replacement{{i, -float64(i)}})
 					want[i] = -float64(i)
 				}
 			}
@@ -209,6 +210,66 @@ func TestReservoirMergeSameDraws(t *testing.T) {
 			want.AddAll(more)
 			if !slices.Equal(got.Values(), want.Values()) {
 				t.Errorf("after %d more values the samples differ", tc.after)
+			}
+		})
+	}
+}
+
+// addPlain is AddAllAt as first written, writing each replacement as it
+// is drawn. AddAllAt, which writes them a block at a time, must keep the
+// same sample.
+func addPlain(r *Reservoir, pos int64, vs []float64) {
+	if r.items.n < r.size && len(vs) > 0 {
+		r.note(pos, min(r.size-r.items.n, len(vs)))
+	}
+	for len(vs) > 0 {
+		if r.items.n < r.size {
+			take := min(r.size-r.items.n, len(vs))
+			r.items.add(vs[:take], r.size)
+			r.seen += int64(take)
+			vs = vs[take:]
+			if r.items.n == r.size {
+				r.resume()
+			}
+			continue
+		}
+		gap := r.next - r.seen - 1
+		if gap >= int64(len(vs)) {
+			r.seen += int64(len(vs))
+			return
+		}
+		r.seen += gap + 1
+		r.items.apply([]replacement{{r.rng.IntN(r.size), vs[gap]}})
+		vs = vs[gap+1:]
+		r.w *= math.Exp(math.Log(r.uniform()) / float64(r.size))
+		r.skip()
+	}
+}
+
+// TestReservoirAddSameSample: AddAllAt keeps, value for value and in
+// order, the sample the plain loop keeps, for batches smaller and larger
+// than a block of replacements, and a reservoir of one.
+func TestReservoirAddSameSample(t *testing.T) {
+	tests := []struct {
+		name           string
+		size, n, batch int
+	}{
+		{"batches of 1", 50, 3000, 1},
+		{"batches of 64k", 100_000, 1_000_000, 1 << 16},
+		{"one batch", 1000, 200_000, 200_000},
+		{"size one", 1, 10_000, 333},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			got, _ := NewReservoir(tc.size, 9)
+			want, _ := NewReservoir(tc.size, 9)
+			for pos := 0; pos < tc.n; pos += tc.batch {
+				vs := seq(pos, min(pos+tc.batch, tc.n))
+				got.AddAllAt(int64(pos), vs)
+				addPlain(want, int64(pos), vs)
+			}
+			if !slices.Equal(got.Values(), want.Values()) || got.Seen() != want.Seen() || got.w != want.w || got.next != want.next {
+				t.Errorf("sample differs from the plain loop's")
 			}
 		})
 	}
