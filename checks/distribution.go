@@ -425,6 +425,10 @@ type distFinding struct {
 	result    report.Result
 	match     func(x float64) (bool, float64)
 	matchText func(s string) (bool, float64)
+	// tail, when set, scores the values match accepts in place of the
+	// score match gives: a function of the value alone, which each lister
+	// computes once per distinct value (scoreMemo).
+	tail func(x float64) float64
 }
 
 // distributionLister is the second pass of a distribution rule: it lists
@@ -434,6 +438,42 @@ type distributionLister struct {
 	found   *distFinding
 	listing Offenders
 	scratch scratch
+	scores  scoreMemo
+}
+
+// scoreMemo keeps the tail scores of up to maxScoreMemo distinct values
+// (keyed by their bits), so that a value recorded to a few decimals, met
+// on many rows, has its CDF and survival computed once; past that many,
+// further values are scored each time. The score is a function of the
+// value, so the rows listed and their order are the same either way.
+type scoreMemo map[uint64]float64
+
+// maxScoreMemo bounds a scoreMemo (about 2 MB).
+const maxScoreMemo = 1 << 16
+
+// at returns f(x), from the memo when x was scored before.
+func (m *scoreMemo) at(x float64, f func(float64) float64) float64 {
+	b := math.Float64bits(x)
+	if s, ok := (*m)[b]; ok {
+		return s
+	}
+	s := f(x)
+	if *m == nil {
+		*m = scoreMemo{}
+	}
+	if len(*m) < maxScoreMemo {
+		(*m)[b] = s
+	}
+	return s
+}
+
+// matchValue reports whether x is listed and its score.
+func (l *distributionLister) matchValue(x float64) (bool, float64) {
+	hit, score := l.found.match(x)
+	if hit && l.found.tail != nil {
+		score = l.scores.at(x, l.found.tail)
+	}
+	return hit, score
 }
 
 // Observe lists the batch's rows that match.
@@ -459,7 +499,7 @@ func (l *distributionLister) Observe(b *source.Batch) error {
 	if l.check.col.class == classNumber {
 		for i, x := range float64s(arr, &l.scratch.floats) {
 			if v.at(i) {
-				hit, score := l.found.match(x)
+				hit, score := l.matchValue(x)
 				add(i, hit, score)
 			}
 		}
@@ -467,7 +507,7 @@ func (l *distributionLister) Observe(b *source.Batch) error {
 	}
 	for i, x := range int64s(arr, &l.scratch.ints) {
 		if v.at(i) {
-			hit, score := l.found.match(float64(x))
+			hit, score := l.matchValue(float64(x))
 			add(i, hit, score)
 		}
 	}

@@ -8,6 +8,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/memory"
 
 	"github.com/assay-project/assay/engine/report"
+	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
 )
 
@@ -64,4 +65,52 @@ func BenchmarkDistributionAnalysis(b *testing.B) {
 			})
 		})
 	}
+}
+
+// BenchmarkDistributionSecondPass is the second pass of a failing
+// distribution rule over 1M rows: gamma tested by ks on lognormal values
+// rounded to 4 decimals (as load_kwh in bench/refdata), so that about half
+// the rows lie in the regions of excess and each is scored by its tail
+// probability under the fitted gamma.
+func BenchmarkDistributionSecondPass(b *testing.B) {
+	const n, per = 1_000_000, 1 << 16
+	mem := memory.NewGoAllocator()
+	rng := rand.New(rand.NewPCG(13, 14))
+	spec := distSpec("gamma")
+	check, err := Compile(newRule(spec, rules.Tolerance{Direction: rules.HigherIsWorse, Warn: rules.AtMost(0.001), Fail: rules.AtMost(0.002)}, "x"), floatEnv())
+	if err != nil {
+		b.Fatal(err)
+	}
+	first := check.NewAccumulator().(*DistributionAccumulator)
+	var batches []*source.Batch
+	for at := 0; at < n; at += per {
+		xs := make([]float64, per)
+		for i := range xs {
+			xs[i] = math.Round(math.Exp(1.2+0.4*rng.NormFloat64())*1e4) / 1e4
+		}
+		bt := numBatch(b, mem, int64(at), xs)
+		batches = append(batches, bt)
+		if err := first.Observe(bt); err != nil {
+			b.Fatal(err)
+		}
+	}
+	defer func() {
+		for _, bt := range batches {
+			bt.Release()
+		}
+	}()
+	if first.SecondPass() == nil {
+		b.Fatal("the rule has no rows to list")
+	}
+	perRow(b, n, func() {
+		l := first.SecondPass()
+		for _, bt := range batches {
+			if err := l.Observe(bt); err != nil {
+				b.Fatal(err)
+			}
+		}
+		if res := l.Finish(); res.Offending == nil || res.Offending.Count == 0 {
+			b.Fatal("no rows listed")
+		}
+	})
 }

@@ -499,11 +499,12 @@ func (ft *fitting) finding(fits []dist.Fit, skipped []report.Candidate) *distFin
 		f.match = func(x float64) (bool, float64) {
 			for _, g := range regions {
 				if g.holds(x, discrete) {
-					return true, tailScore(d, x, discrete)
+					return true, 0
 				}
 			}
 			return false, 0
 		}
+		f.tail = func(x float64) float64 { return tailScore(d, x, discrete) }
 	}
 	return f
 }

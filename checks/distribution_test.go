@@ -485,3 +485,43 @@ func TestDistributionGivenResolution(t *testing.T) {
 		t.Errorf("step 0.1 on data recorded to 0.01: status %s error %q", res.Status, res.Error)
 	}
 }
+
+// TestScoreMemo: a scoreMemo gives f(x) for every x, bit for bit, calls f
+// once per distinct value (-0 and +0 apart) while it has room, and stops
+// growing at maxScoreMemo values, scoring the others each time.
+func TestScoreMemo(t *testing.T) {
+	negZero := math.Copysign(0, -1)
+	tests := []struct {
+		name  string
+		x     []float64
+		calls int
+	}{
+		{"repeats", []float64{1.5, 2, 1.5, 1.5, 2, 3}, 3},
+		{"signed zeros", []float64{0, negZero, 0, negZero}, 2},
+		{"past the bound", func() []float64 {
+			var x []float64
+			for i := range maxScoreMemo + 10 {
+				x = append(x, float64(i))
+			}
+			return append(x, float64(maxScoreMemo+5), 0)
+		}(), maxScoreMemo + 11},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var m scoreMemo
+			calls := 0
+			f := func(x float64) float64 {
+				calls++
+				return 1 / (x + 0.25*math.Copysign(1, x)) // tells -0 from +0
+			}
+			for _, x := range tc.x {
+				if got, want := m.at(x, f), 1/(x+0.25*math.Copysign(1, x)); math.Float64bits(got) != math.Float64bits(want) {
+					t.Fatalf("at(%v) = %v, want %v", x, got, want)
+				}
+			}
+			if calls != tc.calls || len(m) > maxScoreMemo {
+				t.Errorf("%d calls, %d kept; want %d calls, at most %d kept", calls, len(m), tc.calls, maxScoreMemo)
+			}
+		})
+	}
+}
