@@ -40,6 +40,9 @@ type Reservoir struct {
 	// reservoir holds every value it was offered (items is then the
 	// concatenation of the runs); Merge orders merged values by it.
 	runs []run
+	// pending holds up to replaceBlock replacements drawn by AddAllAt and
+	// not yet written (see flush); it is empty between calls.
+	pending []replacement
 }
 
 // run is a stretch of values that entered a reservoir together, in
@@ -104,12 +107,6 @@ func (r *Reservoir) AddAllAt(pos int64, vs []float64) {
 	if r.items.n < r.size && len(vs) > 0 {
 		r.note(pos, min(r.size-r.items.n, len(vs)))
 	}
-	// Replacements are written a block at a time, in their order: the
-	// writes land at random places of the sample (8 MB at 10⁶ values) and
-	// overlap their memory accesses in a tight loop.
-	var pending [replaceBlock]replacement
-	np := 0
-	defer func() { r.items.apply(pending[:np]) }()
 	for len(vs) > 0 {
 		if r.items.n < r.size {
 			take := min(r.size-r.items.n, len(vs))
@@ -125,19 +122,30 @@ func (r *Reservoir) AddAllAt(pos int64, vs []float64) {
 		gap := r.next - r.seen - 1
 		if gap >= int64(len(vs)) {
 			r.seen += int64(len(vs))
-			return
+			break
 		}
 		r.seen += gap + 1
-		if np == replaceBlock {
-			r.items.apply(pending[:])
-			np = 0
+		if len(r.pending) == cap(r.pending) {
+			r.flush()
 		}
-		pending[np] = replacement{r.rng.IntN(r.size), vs[gap]}
-		np++
+		r.pending = append(r.pending, replacement{r.rng.IntN(r.size), vs[gap]})
 		vs = vs[gap+1:]
 		r.w *= math.Exp(math.Log(r.uniform()) / float64(r.size))
 		r.skip()
 	}
+	r.flush()
+}
+
+// flush writes the pending replacements, in the order drawn. They are
+// written a block at a time because they land at random places of the
+// sample (8 MB at 10⁶ values): in a tight loop the writes overlap their
+// memory accesses.
+func (r *Reservoir) flush() {
+	if len(r.pending) == 0 {
+		return
+	}
+	r.items.apply(r.pending)
+	r.pending = r.pending[:0]
 }
 
 // note records that n values from position pos entered the reservoir,
@@ -171,6 +179,9 @@ func (r *Reservoir) skip() {
 // Beta(size, Seen - size + 1) distributed and independent of which values
 // were kept. For Seen = Size this is Li's initial w = U^(1/size).
 func (r *Reservoir) resume() {
+	if r.pending == nil {
+		r.pending = make([]replacement, 0, min(replaceBlock, r.size))
+	}
 	k := float64(r.size)
 	if r.seen == int64(r.size) {
 		r.w = math.Exp(math.Log(r.uniform()) / k)
@@ -331,7 +342,8 @@ type replacement struct {
 	v float64
 }
 
-// replaceBlock is how many replacements AddAllAt holds before writing them.
+// replaceBlock is how many replacements AddAllAt holds before writing
+// them.
 const replaceBlock = 256
 
 // apply makes the replacements, in order.

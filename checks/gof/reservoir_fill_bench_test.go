@@ -25,3 +25,19 @@ func BenchmarkReservoirFill(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkReservoirAdd offers 1M values one at a time (Add), as a
+// joint rule's plot sample does, to a reservoir of 2,000.
+func BenchmarkReservoirAdd(b *testing.B) {
+	const n = 1 << 20
+	xs := seq(0, n)
+	b.ReportAllocs()
+	b.SetBytes(n * 8)
+	for b.Loop() {
+		r, _ := NewReservoir(2000, 1)
+		for _, x := range xs {
+			r.Add(x)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*n), "ns/value")
+}
