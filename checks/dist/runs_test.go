@@ -122,3 +122,37 @@ func TestCheckValuesRuns(t *testing.T) {
 		})
 	}
 }
+
+// TestEachRun: eachRun hands over each run of bit-identical consecutive
+// values once, with its length, in order.
+func TestEachRun(t *testing.T) {
+	negZero := math.Copysign(0, -1)
+	tests := []struct {
+		name   string
+		x      []float64
+		values []float64
+		counts []int
+	}{
+		{"empty", nil, nil, nil},
+		{"runs", []float64{1, 1, 2, 3, 3, 3}, []float64{1, 2, 3}, []int{2, 1, 3}},
+		{"unsorted", []float64{2, 1, 1, 2}, []float64{2, 1, 2}, []int{1, 2, 1}},
+		{"signed zeros", []float64{negZero, negZero, 0}, []float64{negZero, 0}, []int{2, 1}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var values []float64
+			var counts []int
+			eachRun(tc.x, func(v float64, c int) {
+				values, counts = append(values, v), append(counts, c)
+			})
+			if !slices.Equal(values, tc.values) || !slices.Equal(counts, tc.counts) {
+				t.Errorf("runs %v x %v, want %v x %v", values, counts, tc.values, tc.counts)
+			}
+			for i, v := range values {
+				if math.Signbit(v) != math.Signbit(tc.values[i]) {
+					t.Errorf("run %d is %v, want %v", i, v, tc.values[i])
+				}
+			}
+		})
+	}
+}
