@@ -20,14 +20,7 @@ func BenchmarkFit(b *testing.B) {
 		{"gamma", P{"shape": 2.5, "scale": 3}},
 		{"weibull", P{"shape": 1.7, "scale": 40}},
 	} {
-		f, err := Lookup(c.family)
-		if err != nil {
-			b.Fatal(err)
-		}
-		d, err := f.New(c.truth)
-		if err != nil {
-			b.Fatal(err)
-		}
+		f, d := benchDist(b, c.family, c.truth)
 		for _, n := range []int{1e4, 1e6} {
 			r := rand.New(rand.NewPCG(1, uint64(n)))
 			x := make([]float64, n)
@@ -61,14 +54,7 @@ func BenchmarkFitRecorded(b *testing.B) {
 		{"cauchy", P{"location": 5, "scale": 2}},
 		{"student-t", P{"location": 18, "scale": 6, "df": 5}},
 	} {
-		f, err := Lookup(c.family)
-		if err != nil {
-			b.Fatal(err)
-		}
-		d, err := f.New(c.truth)
-		if err != nil {
-			b.Fatal(err)
-		}
+		f, d := benchDist(b, c.family, c.truth)
 		r := rand.New(rand.NewPCG(2, 3))
 		x := make([]float64, 1e6)
 		for i := range x {
@@ -84,4 +70,18 @@ func BenchmarkFitRecorded(b *testing.B) {
 			}
 		})
 	}
+}
+
+// benchDist looks up a family and sets its parameters.
+func benchDist(b *testing.B, family string, params map[string]float64) (Family, Dist) {
+	b.Helper()
+	f, err := Lookup(family)
+	if err != nil {
+		b.Fatal(err)
+	}
+	d, err := f.New(params)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return f, d
 }
