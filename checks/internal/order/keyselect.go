@@ -103,7 +103,7 @@ func (s keyScan) each(fn func([]uint64)) {
 
 // quantilesOfKeys returns the type-7 quantiles of the n values whose keys
 // scan yields, reading each order statistic back from its key by value.
-// A digit of at most budget keys is gathered (see keySelector); budget 0
+// A prefix of at most budget keys is gathered (see keySelector); budget 0
 // means n/8, and at least gatherMin.
 func quantilesOfKeys[T int64 | float64](n int, ps []float64, budget int, scan func(func([]uint64)), value func(uint64) T) []float64 {
 	out := make([]float64, len(ps))
@@ -120,7 +120,7 @@ func quantilesOfKeys[T int64 | float64](n int, ps []float64, budget int, scan fu
 	}
 	if len(ranks) > 0 {
 		s := keySelector{scan: scan, budget: budget}
-		s.find(0, 64, n, ranks, keys)
+		s.find(n, ranks, keys)
 	}
 	at := func(r int) T { return value(keys[slices.Index(ranks, r)]) }
 	for i, p := range ps {
@@ -172,135 +172,148 @@ const gatherMin = 1 << 16
 // keySelector finds the keys of given ranks among keys it reads in
 // passes, by most-significant-digit radix selection (the distribution
 // counting of Knuth 1998, The Art of Computer Programming vol. 3, 2nd ed.,
-// §5.2.5, applied to selection): a pass counts the keys by their top 16
-// bits, the counts say which digit each wanted rank has, and the next
-// pass reads only the keys with that digit. Digits holding at most budget
-// keys are gathered together in one pass and the ranks selected among
-// them (Select, in expected linear time); a larger digit (ties, or values
-// in a narrow range) is counted again on its next 16 bits, and a key
-// whose 64 bits are all fixed is known without reading. So common data
-// costs two passes and copies at most budget keys per wanted digit; ties
-// or a narrow range cost at most two passes more per level, for each
-// large digit, over four levels.
+// §5.2.5, applied to selection), 16 bits a level. At each level the
+// wanted ranks lie in a few digit prefixes (nodes; at first one, every
+// key); one pass over the keys gathers those of each node of at most
+// budget keys, to select the ranks among them (Select, in expected
+// linear time), and counts those of each larger node by their next 16
+// bits, which says in which longer prefix each of its ranks lies: the
+// nodes of the next level. A node whose 64 bits are all fixed is its
+// own key. So common data costs two passes (count, then gather) and
+// copies at most budget keys per wanted digit; ties or a narrow range
+// cost one pass more per level, at most four levels.
 type keySelector struct {
 	scan   func(fn func([]uint64))
 	budget int
-	counts []int
-	slot   []int32 // slot[d] is 1 + the gathered digit d's index, or 0
+	slot   []int32 // slot[d]: 1 + the first node whose prefix ends in digit d, or 0
 }
 
-// digitWant is a digit of a level that holds wanted ranks.
-type digitWant struct {
-	digit    uint64
-	count    int   // keys with the digit
-	ranks    []int // wanted ranks among those keys, ascending
-	out      []uint64
-	gathered bool
+// keyNode is a prefix of the keys, at a level, that holds wanted ranks.
+type keyNode struct {
+	prefix uint64   // the keys k with k>>shift == prefix
+	count  int      // how many keys have it
+	ranks  []int    // wanted ranks among those keys, ascending
+	out    []uint64 // where their keys go
+	next   int32    // 1 + the next node whose prefix ends in the same digit, or 0
+	// counts of the keys by their next digit (a large node), or the
+	// stretch of the gathered keys where its keys go (a small one)
+	counts        []int
+	start, filled int
 }
+
+// digitMask keeps a digit.
+const digitMask = 1<<digitBits - 1
 
 // find writes to out[i] the key of rank ranks[i] (ascending, distinct,
-// within [0, m)) among the m keys k with k>>shift == prefix (all of them
-// when shift is 64).
-func (s *keySelector) find(prefix uint64, shift uint, m int, ranks []int, out []uint64) {
-	if shift == 0 { // every key is prefix
-		for i := range out {
-			out[i] = prefix
+// within [0, n)) among the n keys.
+func (s *keySelector) find(n int, ranks []int, out []uint64) {
+	s.slot = make([]int32, 1<<digitBits)
+	nodes := []keyNode{{count: n, ranks: ranks, out: out}}
+	for shift := uint(64); len(nodes) > 0; shift -= digitBits {
+		if shift == 0 { // every key of a node is its prefix
+			for _, nd := range nodes {
+				for i := range nd.out {
+					nd.out[i] = nd.prefix
+				}
+			}
+			return
 		}
-		return
+		nodes = s.level(nodes, shift)
 	}
-	if m <= s.budget {
-		buf := make([]uint64, 0, m)
+}
+
+// level reads the keys once for the nodes of the level whose prefixes
+// are shift bits short of a key: it gathers and selects for the small
+// nodes and returns the nodes of the next level, in the large ones.
+func (s *keySelector) level(nodes []keyNode, shift uint) []keyNode {
+	sub := shift - digitBits
+	gathered := 0
+	for i := range nodes {
+		nd := &nodes[i]
+		if nd.count <= s.budget {
+			nd.start, nd.filled = gathered, gathered
+			gathered += nd.count
+		} else {
+			nd.counts = make([]int, 1<<digitBits)
+		}
+		d := nd.prefix & digitMask
+		nd.next = s.slot[d]
+		s.slot[d] = int32(i + 1)
+	}
+	buf := make([]uint64, gathered)
+	slot := s.slot
+	switch {
+	case len(nodes) == 1 && nodes[0].counts != nil: // the first level, or a narrow range
+		prefix, counts := nodes[0].prefix, nodes[0].counts
 		s.scan(func(keys []uint64) {
 			for _, k := range keys {
 				if k>>shift == prefix {
-					buf = append(buf, k)
+					counts[(k>>sub)&digitMask]++
 				}
 			}
 		})
-		SelectRanks(buf, ranks)
-		for i, r := range ranks {
-			out[i] = buf[r]
-		}
-		return
-	}
-	sub := shift - digitBits
-	if s.counts == nil {
-		s.counts = make([]int, 1<<digitBits)
-		s.slot = make([]int32, 1<<digitBits)
-	} else {
-		clear(s.counts)
-	}
-	counts := s.counts
-	s.scan(func(keys []uint64) {
-		for _, k := range keys {
-			if k>>shift == prefix {
-				counts[(k>>sub)&(1<<digitBits-1)]++
+	case len(nodes) == 1: // one digit to gather
+		prefix := nodes[0].prefix
+		s.scan(func(keys []uint64) {
+			f := nodes[0].filled
+			for _, k := range keys {
+				if k>>shift == prefix {
+					buf[f] = k
+					f++
+				}
 			}
-		}
-	})
-	var wants []digitWant
-	below, i := 0, 0 // keys with a smaller digit; next rank to place
-	for d, c := range counts {
-		j := i
-		for j < len(ranks) && ranks[j] < below+c {
-			j++
-		}
-		if j > i {
-			w := digitWant{digit: uint64(d), count: c, out: out[i:j]}
-			for _, r := range ranks[i:j] {
-				w.ranks = append(w.ranks, r-below)
-			}
-			wants = append(wants, w)
-			i = j
-			if i == len(ranks) {
-				break
-			}
-		}
-		below += c
-	}
-	// Gather the small digits together, each into its own stretch of buf.
-	total := 0
-	var starts []int
-	for wi := range wants {
-		if wants[wi].count <= s.budget {
-			wants[wi].gathered = true
-			s.slot[wants[wi].digit] = int32(len(starts) + 1)
-			starts = append(starts, total)
-			total += wants[wi].count
-		}
-	}
-	if total > 0 {
-		buf := make([]uint64, total)
-		next := slices.Clone(starts)
-		slot := s.slot
+			nodes[0].filled = f
+		})
+	default:
 		s.scan(func(keys []uint64) {
 			for _, k := range keys {
-				if k>>shift != prefix {
+				p := k >> shift
+				i := slot[p&digitMask]
+				for i != 0 && nodes[i-1].prefix != p {
+					i = nodes[i-1].next
+				}
+				if i == 0 {
 					continue
 				}
-				if g := slot[(k>>sub)&(1<<digitBits-1)]; g != 0 {
-					buf[next[g-1]] = k
-					next[g-1]++
+				nd := &nodes[i-1]
+				if nd.counts != nil {
+					nd.counts[(k>>sub)&digitMask]++
+				} else {
+					buf[nd.filled] = k
+					nd.filled++
 				}
 			}
 		})
-		g := 0
-		for _, w := range wants {
-			if !w.gathered {
-				continue
+	}
+	var next []keyNode
+	for _, nd := range nodes {
+		slot[nd.prefix&digitMask] = 0
+		if nd.counts == nil {
+			part := buf[nd.start : nd.start+nd.count]
+			SelectRanks(part, nd.ranks)
+			for i, r := range nd.ranks {
+				nd.out[i] = part[r]
 			}
-			s.slot[w.digit] = 0
-			part := buf[starts[g] : starts[g]+w.count]
-			g++
-			SelectRanks(part, w.ranks)
-			for i, r := range w.ranks {
-				w.out[i] = part[r]
+			continue
+		}
+		below, i := 0, 0 // keys with a smaller digit; next rank to place
+		for d, c := range nd.counts {
+			j := i
+			for j < len(nd.ranks) && nd.ranks[j] < below+c {
+				j++
 			}
+			if j > i {
+				child := keyNode{prefix: nd.prefix<<digitBits | uint64(d), count: c, out: nd.out[i:j]}
+				for _, r := range nd.ranks[i:j] {
+					child.ranks = append(child.ranks, r-below)
+				}
+				next = append(next, child)
+				if i = j; i == len(nd.ranks) {
+					break
+				}
+			}
+			below += c
 		}
 	}
-	for _, w := range wants {
-		if !w.gathered {
-			s.find(prefix<<digitBits|w.digit, sub, w.count, w.ranks, w.out)
-		}
-	}
+	return next
 }

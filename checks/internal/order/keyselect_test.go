@@ -59,6 +59,13 @@ var keyShapes = map[string]func(rng *rand.Rand, n int) []float64{
 	"narrow": func(rng *rand.Rand, n int) []float64 {
 		return fill(n, func(int) float64 { return 1000 + rng.Float64()*1e-9 })
 	},
+	// keys in three 16-bit prefixes that end in the same second digit,
+	// so that the nodes of the third level share their last digit
+	"shared digit": func(rng *rand.Rand, n int) []float64 {
+		return fill(n, func(int) float64 {
+			return FloatOfKey(uint64(0xc001+rng.IntN(3))<<48 | 5<<32 | uint64(rng.Uint32()%64))
+		})
+	},
 	"narrower": func(rng *rand.Rand, n int) []float64 {
 		return fill(n, func(int) float64 { return math.Float64frombits(math.Float64bits(-7) + uint64(rng.IntN(50))) })
 	},
@@ -206,40 +213,47 @@ func TestDeviationQuantiles7(t *testing.T) {
 
 // BenchmarkChunksQuantiles7 compares radix selection over chunks of 64k
 // values with Quantiles7 of a flattened copy, for the median and the
-// three quartiles, at 1e6 and 1e7 normal values (1e7 skipped with
-// -short).
+// three quartiles, at 1e6 and 1e7 values (1e7 skipped with -short):
+// normal values 50 + 10 z, and "narrow" ones 1024 + 10 z, whose
+// quartiles lie in two 16-bit digits of about half the values each (the
+// selection then counts a second level).
 func BenchmarkChunksQuantiles7(b *testing.B) {
 	for _, n := range []int{1_000_000, 10_000_000} {
 		if n > 1_000_000 && testing.Short() {
 			continue
 		}
-		rng := rand.New(rand.NewPCG(7, 8))
-		var c Chunks[float64]
-		for lo := 0; lo < n; lo += 1 << 16 {
-			c.Add(fill(min(1<<16, n-lo), func(int) float64 { return 50 + 10*rng.NormFloat64() }))
-		}
-		for _, ps := range [][]float64{{0.5}, {0.25, 0.5, 0.75}} {
-			b.Run(fmt.Sprintf("copy+select/%.0e/%d", float64(n), len(ps)), func(b *testing.B) {
-				b.ReportAllocs()
-				b.SetBytes(int64(8 * n))
-				for b.Loop() {
-					Quantiles7(c.Copy(), ps...)
-				}
-			})
-			b.Run(fmt.Sprintf("radix/%.0e/%d", float64(n), len(ps)), func(b *testing.B) {
-				b.ReportAllocs()
-				b.SetBytes(int64(8 * n))
-				for b.Loop() {
-					c.Quantiles7(ps...)
-				}
-			})
-		}
-		b.Run(fmt.Sprintf("radix mad/%.0e", float64(n)), func(b *testing.B) {
-			b.ReportAllocs()
-			b.SetBytes(int64(8 * n))
-			for b.Loop() {
-				DeviationQuantiles7(&c, 50, 0.5)
+		for _, shape := range []struct {
+			name       string
+			center, sd float64
+		}{{"normal", 50, 10}, {"narrow", 1024, 10}} {
+			rng := rand.New(rand.NewPCG(7, 8))
+			var c Chunks[float64]
+			for lo := 0; lo < n; lo += 1 << 16 {
+				c.Add(fill(min(1<<16, n-lo), func(int) float64 { return shape.center + shape.sd*rng.NormFloat64() }))
 			}
-		})
+			for _, ps := range [][]float64{{0.5}, {0.25, 0.5, 0.75}} {
+				b.Run(fmt.Sprintf("copy+select/%s/%.0e/%d", shape.name, float64(n), len(ps)), func(b *testing.B) {
+					b.ReportAllocs()
+					b.SetBytes(int64(8 * n))
+					for b.Loop() {
+						Quantiles7(c.Copy(), ps...)
+					}
+				})
+				b.Run(fmt.Sprintf("radix/%s/%.0e/%d", shape.name, float64(n), len(ps)), func(b *testing.B) {
+					b.ReportAllocs()
+					b.SetBytes(int64(8 * n))
+					for b.Loop() {
+						c.Quantiles7(ps...)
+					}
+				})
+			}
+			b.Run(fmt.Sprintf("radix mad/%s/%.0e", shape.name, float64(n)), func(b *testing.B) {
+				b.ReportAllocs()
+				b.SetBytes(int64(8 * n))
+				for b.Loop() {
+					DeviationQuantiles7(&c, shape.center, 0.5)
+				}
+			})
+		}
 	}
 }
