@@ -120,6 +120,12 @@ func (c *extremesCheck) Rule() *rules.Rule { return c.rule }
 
 func (c *extremesCheck) streams() bool { return c.spec.Method == rules.ExtremesZScore }
 
+// tallies reports whether the method fits order statistics only, so that
+// the values can be kept as distinct values and counts (order.Tally).
+func (c *extremesCheck) tallies() bool {
+	return c.spec.Method == rules.ExtremesTukey || c.spec.Method == rules.ExtremesRobustZ
+}
+
 // keepsRows reports whether the method flags values by their position,
 // so that the rows of the values must be kept.
 func (c *extremesCheck) keepsRows() bool {
@@ -143,8 +149,12 @@ type ExtremesState struct {
 	// Moments are the count, mean and sum of squared deviations of the
 	// finite values (zscore only).
 	Moments *outlier.CoMoments
-	// Values are the finite values, in no particular order (every method
-	// but zscore); Rows the data-row number of each (esd and grubbs), in
+	// Tally holds the finite values as distinct values and counts while
+	// they are few, else the values (tukey and robust-z, whose fences are
+	// order statistics).
+	Tally order.Tally[float64]
+	// Values are the finite values, in no particular order (esd, grubbs
+	// and tail); Rows the data-row number of each (esd and grubbs), in
 	// the same order and the same parts.
 	Values order.Chunks[float64]
 	Rows   order.Chunks[int64]
@@ -155,7 +165,7 @@ func (s *ExtremesState) finite() int64 {
 	if s.Moments != nil {
 		return int64(s.Moments.N)
 	}
-	return int64(s.Values.Len())
+	return int64(s.Values.Len()) + s.Tally.Len()
 }
 
 // ExtremesAccumulator is the first pass of an extremes rule.
@@ -163,7 +173,7 @@ type ExtremesAccumulator struct {
 	ExtremesState
 	check   *extremesCheck
 	scratch scratch
-	vals    []float64 // zscore: the batch's finite values
+	vals    []float64 // zscore, tukey, robust-z: the batch's finite values
 	found   *extFinding
 }
 
@@ -178,7 +188,7 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 		rows   []int64
 		values = arr.Len() - arr.NullN()
 	)
-	if a.Moments == nil {
+	if !a.check.tallies() && a.Moments == nil {
 		finite = make([]float64, 0, values) // kept: a part of its own
 	}
 	if a.check.keepsRows() {
@@ -202,9 +212,14 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 			rows = append(rows, b.Row(i))
 		}
 	})
-	if a.Moments != nil {
+	switch {
+	case a.Moments != nil:
 		a.vals = finite
 		return a.Moments.AddColumns([][]float64{finite})
+	case a.check.tallies():
+		a.vals = finite
+		a.Tally.Add(finite)
+		return nil
 	}
 	a.Values.Add(finite)
 	a.Rows.Add(rows) // the same length and capacity: kept or copied alike
@@ -246,6 +261,7 @@ func (a *ExtremesAccumulator) Merge(other Accumulator) error {
 			return err
 		}
 	}
+	a.Tally.Merge(&o.Tally)
 	a.Values.Splice(&o.Values)
 	a.Rows.Splice(&o.Rows)
 	return nil

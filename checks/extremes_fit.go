@@ -2,6 +2,7 @@ package checks
 
 import (
 	"fmt"
+	"iter"
 	"math"
 	"slices"
 	"strings"
@@ -111,7 +112,7 @@ func (c *extremesCheck) analyse(st *ExtremesState) *extFinding {
 // deviation computed as it is read (order.DeviationQuantiles7); the
 // values flagged are counted in one pass over the parts.
 func (c *extremesCheck) byThreshold(st *ExtremesState, f *extFinding) {
-	q := st.Values.Quantiles7(0.25, 0.5, 0.75)
+	q := st.Tally.Quantiles7(0.25, 0.5, 0.75)
 	var r outlier.Rule
 	switch c.spec.Method {
 	case rules.ExtremesTukey:
@@ -123,7 +124,7 @@ func (c *extremesCheck) byThreshold(st *ExtremesState, f *extFinding) {
 		f.setScale(q[1], fences.IQR(), fences.Lower, fences.Upper)
 		r = fences
 	case rules.ExtremesRobustZ:
-		rz := outlier.RobustZ{Median: q[1], MAD: medianAbsDev(&st.Values, q[1]), Cutoff: c.spec.K}
+		rz := outlier.RobustZ{Median: q[1], MAD: order.DeviationQuantiles7Tally(&st.Tally, q[1], 0.5)[0], Cutoff: c.spec.K}
 		// |M| > k exactly when x lies beyond median ± k MAD / 0.6745.
 		half := c.spec.K * rz.MAD / 0.6745
 		f.estimates = map[string]float64{"median": rz.Median, "mad": rz.MAD, "k": c.spec.K,
@@ -141,35 +142,24 @@ func (c *extremesCheck) byThreshold(st *ExtremesState, f *extFinding) {
 		lo, hi           int64
 		whiskLo, whiskHi = math.Inf(1), math.Inf(-1)
 	)
-	for _, part := range st.Values.Parts() {
-		for _, x := range part {
-			switch {
-			case !r.Outside(x):
-				whiskLo, whiskHi = min(whiskLo, x), max(whiskHi, x)
-			case f.low(x):
-				lo++
-			default:
-				hi++
-			}
+	for x, n := range st.Tally.All() {
+		switch {
+		case !r.Outside(x):
+			whiskLo, whiskHi = min(whiskLo, x), max(whiskHi, x)
+		case f.low(x):
+			lo += n
+		default:
+			hi += n
 		}
 	}
 	box := &report.Box{Min: report.Number(st.Min), Q1: report.Number(q[0]), Median: report.Number(q[1]),
 		Q3: report.Number(q[2]), Max: report.Number(st.Max), WhiskerLo: report.Number(whiskLo), WhiskerHi: report.Number(whiskHi)}
-	if lo+hi == int64(st.Values.Len()) {
+	if lo+hi == st.Tally.Len() {
 		box.WhiskerLo, box.WhiskerHi = report.Number(math.NaN()), report.Number(math.NaN())
 	}
-	f.settle(lo, hi, box, valueHistogram(st.Values.Parts(), st.Min, st.Max, nil), func(x float64, _ int64) (bool, float64) {
+	f.settle(lo, hi, box, valueHistogram(st.Tally.All(), st.Min, st.Max, nil), func(x float64, _ int64) (bool, float64) {
 		return r.Outside(x), r.Score(x)
 	})
-}
-
-// medianAbsDev is the MAD of values about their median med, unscaled
-// (R's mad(constant = 1)): the type-7 median of |x − med|, found by radix
-// selection without copying or changing the values. |x − med| is exactly
-// med − x below the median, so it equals the MAD outlier.NewRobustZ reads
-// from the sorted values.
-func medianAbsDev(values *order.Chunks[float64], med float64) float64 {
-	return order.DeviationQuantiles7(values, med, 0.5)[0]
 }
 
 // setScale records the center, scale and thresholds of a finding; values
@@ -218,7 +208,7 @@ func (f *extFinding) settleSorted(sorted []float64, lo, hi int64, density func(a
 	if lo+hi < n {
 		box.WhiskerLo, box.WhiskerHi = report.Number(sorted[lo]), report.Number(sorted[n-1-hi])
 	}
-	f.settle(lo, hi, box, valueHistogram([][]float64{sorted}, sorted[0], sorted[n-1], density), hit)
+	f.settle(lo, hi, box, valueHistogram(eachOnce(sorted), sorted[0], sorted[n-1], density), hit)
 }
 
 // settle records that lo finite values below the center and hi above it
@@ -255,13 +245,13 @@ func binOf(x, lo, hi float64, k int) int {
 	return min(k-1, max(0, int((x-lo)/(hi-lo)*float64(k))))
 }
 
-// valueHistogram counts the values of parts, in any order, in equal-width
-// bins over their range [lo, hi] (one pass); density, if not nil, gives
-// the fitted probability per unit in a bin [a, b].
-func valueHistogram(parts [][]float64, lo, hi float64, density func(a, b float64) float64) *report.Histogram {
+// valueHistogram counts values, given with their counts in any order,
+// in equal-width bins over [lo, hi] (one bin when lo = hi), with the
+// density's mass per bin when density is not nil.
+func valueHistogram(values iter.Seq2[float64, int64], lo, hi float64, density func(a, b float64) float64) *report.Histogram {
 	var n int64
-	for _, p := range parts {
-		n += int64(len(p))
+	for _, c := range values {
+		n += c
 	}
 	k := histBins(n)
 	if hi == lo {
@@ -275,10 +265,8 @@ func valueHistogram(parts [][]float64, lo, hi float64, density func(a, b float64
 	if k == 1 {
 		h.Counts[0] = n
 	} else {
-		for _, p := range parts {
-			for _, x := range p {
-				h.Counts[binOf(x, lo, hi, k)]++
-			}
+		for x, c := range values {
+			h.Counts[binOf(x, lo, hi, k)] += c
 		}
 	}
 	if density != nil {
@@ -287,6 +275,17 @@ func valueHistogram(parts [][]float64, lo, hi float64, density func(a, b float64
 		}
 	}
 	return h
+}
+
+// eachOnce yields each of xs with the count 1.
+func eachOnce(xs []float64) iter.Seq2[float64, int64] {
+	return func(yield func(float64, int64) bool) {
+		for _, x := range xs {
+			if !yield(x, 1) {
+				return
+			}
+		}
+	}
 }
 
 // zscore fits mean ± k sd from the streamed moments. The extreme values

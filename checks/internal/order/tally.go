@@ -2,6 +2,7 @@ package order
 
 import (
 	"cmp"
+	"iter"
 	"math"
 	"slices"
 )
@@ -159,6 +160,48 @@ func (t *Tally[T]) Merge(o *Tally[T]) {
 
 // Len is the number of values.
 func (t *Tally[T]) Len() int64 { return t.n }
+
+// All yields each distinct value with its count, in no particular order;
+// spilled, each value with the count 1.
+func (t *Tally[T]) All() iter.Seq2[T, int64] {
+	return func(yield func(T, int64) bool) {
+		if t.spilled {
+			for _, part := range t.raw.Parts() {
+				for _, x := range part {
+					if !yield(x, 1) {
+						return
+					}
+				}
+			}
+			return
+		}
+		for _, s := range t.slots {
+			if s.count != 0 && !yield(valueOf[T](s.key), s.count) {
+				return
+			}
+		}
+	}
+}
+
+// DeviationQuantiles7 returns the p-quantiles, as Tally.Quantiles7, of the
+// absolute deviations |x − center| of t's values, each computed as
+// math.Abs(x − center) (so, with p = 0.5, the MAD about center exactly as
+// order.DeviationQuantiles7 finds it from the values): counted, from a
+// tally of the deviations of the distinct values, which are no more
+// numerous; spilled, by radix selection over the values.
+func DeviationQuantiles7Tally(t *Tally[float64], center float64, ps ...float64) []float64 {
+	if t.spilled {
+		return DeviationQuantiles7(&t.raw, center, ps...)
+	}
+	var d Tally[float64]
+	for _, s := range t.slots {
+		if s.count != 0 {
+			d.count(bitsOf(math.Abs(math.Float64frombits(s.key)-center)), s.count)
+		}
+	}
+	d.n = t.n
+	return d.Quantiles7(ps...)
+}
 
 // Spilled reports whether t keeps the values themselves.
 func (t *Tally[T]) Spilled() bool { return t.spilled }

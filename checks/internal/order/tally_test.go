@@ -143,3 +143,36 @@ func BenchmarkTallyAdd(b *testing.B) {
 		}
 	}
 }
+
+// TestTallyDeviations compares the MAD from a tally, counted and spilled,
+// with the one radix selection finds over the same values kept as Chunks.
+func TestTallyDeviations(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for _, distinct := range []int{40, 3 * TallyLimit} {
+		var (
+			ta Tally[float64]
+			ch Chunks[float64]
+		)
+		for range 8 {
+			part := make([]float64, 20_000)
+			for i := range part {
+				part[i] = float64(r.IntN(distinct)) / 7
+			}
+			ta.Add(part)
+			ch.Add(part)
+		}
+		med := ta.Quantiles7(0.5)[0]
+		got := DeviationQuantiles7Tally(&ta, med, 0.25, 0.5, 0.9)
+		want := DeviationQuantiles7(&ch, med, 0.25, 0.5, 0.9)
+		if !slices.Equal(got, want) {
+			t.Errorf("%d distinct (spilled %v): %v, want %v", distinct, ta.Spilled(), got, want)
+		}
+		var n int64
+		for _, c := range ta.All() {
+			n += c
+		}
+		if n != ta.Len() {
+			t.Errorf("%d distinct: All counts %d values, want %d", distinct, n, ta.Len())
+		}
+	}
+}
