@@ -19,7 +19,7 @@ type fixture struct {
 	rows   func(b *array.RecordBuilder) // appends the rows
 }
 
-func (fx fixture) record(t *testing.T) arrow.RecordBatch {
+func (fx fixture) record(t testing.TB) arrow.RecordBatch {
 	t.Helper()
 	b := array.NewRecordBuilder(memory.DefaultAllocator, arrow.NewSchema(fx.fields, nil))
 	defer b.Release()
@@ -29,7 +29,7 @@ func (fx fixture) record(t *testing.T) arrow.RecordBatch {
 
 // writeParquet writes fx as Parquet with row groups of at most groupRows
 // rows, storing its Arrow schema.
-func writeParquet(t *testing.T, path string, fx fixture, groupRows int64) {
+func writeParquet(t testing.TB, path string, fx fixture, groupRows int64) {
 	t.Helper()
 	rec := fx.record(t)
 	defer rec.Release()
@@ -38,7 +38,7 @@ func writeParquet(t *testing.T, path string, fx fixture, groupRows int64) {
 }
 
 // writeRecord writes rec as Parquet with the given properties.
-func writeRecord(t *testing.T, path string, rec arrow.RecordBatch, props *parquet.WriterProperties, arrowProps pqarrow.ArrowWriterProperties) {
+func writeRecord(t testing.TB, path string, rec arrow.RecordBatch, props *parquet.WriterProperties, arrowProps pqarrow.ArrowWriterProperties) {
 	t.Helper()
 	f, err := os.Create(path)
 	if err != nil {
