@@ -34,12 +34,30 @@ func (s *Set) openParquet(in *input, f *os.File, size int64) (*file.Reader, erro
 	}
 	props := parquet.NewReaderProperties(s.opts.Allocator)
 	props.BufferedStreamEnabled, props.BufferSize = true, parquetReadBuffer
-	r, err := file.NewParquetReader(f, file.WithReadProps(props))
+	r, err := guard(func() (*file.Reader, error) { return file.NewParquetReader(f, file.WithReadProps(props)) })
 	if err != nil {
 		return nil, &Error{Path: in.name, Err: err,
 			Msg: "cannot read the Parquet footer: " + err.Error() + " (the file is damaged; copy it again)"}
 	}
+	dropStoredSchema(r)
 	return r, nil
+}
+
+// dropStoredSchema hides from pqarrow the Arrow schema a writer may store
+// in a Parquet footer (the key "ARROW:schema", an Arrow IPC message in
+// base64), so that column types come from the Parquet schema alone, which
+// holds every type assay reads. pqarrow decodes that message with no
+// bound on the lengths it holds (arrow-go v18.8.0, through
+// flight.DeserializeSchema): in a damaged footer a length can make it
+// allocate hundreds of gigabytes and end the process, which no recover can
+// catch; FuzzParquet found such files. The key is renamed in the reader's
+// copy of the footer only; the file is not touched.
+func dropStoredSchema(r *file.Reader) {
+	for _, kv := range r.MetaData().KeyValueMetadata() {
+		if kv != nil && kv.Key == "ARROW:schema" {
+			kv.Key = "ARROW:schema (not read)"
+		}
+	}
 }
 
 // inspectParquet reads the schema and row count of a Parquet input.
@@ -49,11 +67,13 @@ func (s *Set) inspectParquet(in *input, f *os.File, size int64) error {
 		return err
 	}
 	defer r.Close()
-	fr, err := pqarrow.NewFileReader(r, pqarrow.ArrowReadProperties{}, s.opts.Allocator)
+	fr, err := guard(func() (*pqarrow.FileReader, error) {
+		return pqarrow.NewFileReader(r, pqarrow.ArrowReadProperties{}, s.opts.Allocator)
+	})
 	if err != nil {
 		return &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet schema: " + err.Error()}
 	}
-	sc, err := fr.Schema()
+	sc, err := guard(fr.Schema)
 	if err != nil {
 		return &Error{Path: in.name, Err: err, Msg: "cannot map the Parquet schema to Arrow types: " + err.Error()}
 	}
@@ -112,7 +132,9 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 		return total, emitRows(ctx, i, sc, first, total, int64(s.opts.BatchRows))
 	}
 	batchRows := int64(s.opts.BatchRows)
-	fr, err := pqarrow.NewFileReader(r, pqarrow.ArrowReadProperties{BatchSize: batchRows}, s.opts.Allocator)
+	fr, err := guard(func() (*pqarrow.FileReader, error) {
+		return pqarrow.NewFileReader(r, pqarrow.ArrowReadProperties{BatchSize: batchRows}, s.opts.Allocator)
+	})
 	if err != nil {
 		return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet schema: " + err.Error()}
 	}
@@ -141,7 +163,7 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 	}()
 	var rr pqarrow.RecordReader
 	if len(viaArrow) > 0 {
-		rr, err = fr.GetRecordReader(ctx, cols, nil)
+		rr, err = guard(func() (pqarrow.RecordReader, error) { return fr.GetRecordReader(ctx, cols, nil) })
 		if err != nil {
 			return 0, &Error{Path: in.name, Err: err, Msg: "cannot read the Parquet columns: " + err.Error()}
 		}

@@ -98,6 +98,9 @@ func (fc *flatColumn) advance() error {
 		}
 		fc.cr, fc.left = cr, rg.NumRows()
 		fc.group++
+		if fc.left < 0 {
+			return fmt.Errorf("row group %d claims %d rows", fc.group, fc.left)
+		}
 	}
 	return nil
 }
