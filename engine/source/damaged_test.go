@@ -87,25 +87,7 @@ func TestDamagedParquetPages(t *testing.T) {
 func FuzzParquet(f *testing.F) {
 	dir := f.TempDir()
 	good := filepath.Join(dir, "good.parquet")
-	writeParquet(f, good, fixture{
-		fields: []arrow.Field{
-			{Name: "id", Type: arrow.PrimitiveTypes.Int64},
-			{Name: "x", Type: arrow.PrimitiveTypes.Float64, Nullable: true},
-			{Name: "tag", Type: arrow.BinaryTypes.String, Nullable: true},
-		},
-		rows: func(b *array.RecordBuilder) {
-			for i := range 60 {
-				b.Field(0).(*array.Int64Builder).Append(int64(i))
-				if i%7 == 0 {
-					b.Field(1).(*array.Float64Builder).AppendNull()
-					b.Field(2).(*array.StringBuilder).AppendNull()
-				} else {
-					b.Field(1).(*array.Float64Builder).Append(float64(i) / 3)
-					b.Field(2).(*array.StringBuilder).Append(fmt.Sprintf("t%d", i%5))
-				}
-			}
-		},
-	}, 40)
+	writeParquet(f, good, smallFixture, 40)
 	data, err := os.ReadFile(good)
 	if err != nil {
 		f.Fatal(err)
@@ -143,25 +125,7 @@ func FuzzParquet(f *testing.F) {
 func TestMutatedParquet(t *testing.T) {
 	dir := t.TempDir()
 	good := filepath.Join(dir, "good.parquet")
-	writeParquet(t, good, fixture{
-		fields: []arrow.Field{
-			{Name: "id", Type: arrow.PrimitiveTypes.Int64},
-			{Name: "x", Type: arrow.PrimitiveTypes.Float64, Nullable: true},
-			{Name: "tag", Type: arrow.BinaryTypes.String, Nullable: true},
-		},
-		rows: func(b *array.RecordBuilder) {
-			for i := range 60 {
-				b.Field(0).(*array.Int64Builder).Append(int64(i))
-				if i%7 == 0 {
-					b.Field(1).(*array.Float64Builder).AppendNull()
-					b.Field(2).(*array.StringBuilder).AppendNull()
-				} else {
-					b.Field(1).(*array.Float64Builder).Append(float64(i) / 3)
-					b.Field(2).(*array.StringBuilder).Append(fmt.Sprintf("t%d", i%5))
-				}
-			}
-		},
-	}, 40)
+	writeParquet(t, good, smallFixture, 40)
 	data, err := os.ReadFile(good)
 	if err != nil {
 		t.Fatal(err)
@@ -194,4 +158,27 @@ func TestMutatedParquet(t *testing.T) {
 	if refused == 0 {
 		t.Error("no mutated copy was refused: the test does not reach the readers")
 	}
+}
+
+// smallFixture is the file FuzzParquet and TestMutatedParquet damage: 60
+// rows of an integer, a number and a text column, the last two with nulls,
+// in row groups of 40 rows.
+var smallFixture = fixture{
+	fields: []arrow.Field{
+		{Name: "id", Type: arrow.PrimitiveTypes.Int64},
+		{Name: "x", Type: arrow.PrimitiveTypes.Float64, Nullable: true},
+		{Name: "tag", Type: arrow.BinaryTypes.String, Nullable: true},
+	},
+	rows: func(b *array.RecordBuilder) {
+		for i := range 60 {
+			b.Field(0).(*array.Int64Builder).Append(int64(i))
+			if i%7 == 0 {
+				b.Field(1).(*array.Float64Builder).AppendNull()
+				b.Field(2).(*array.StringBuilder).AppendNull()
+			} else {
+				b.Field(1).(*array.Float64Builder).Append(float64(i) / 3)
+				b.Field(2).(*array.StringBuilder).Append(fmt.Sprintf("t%d", i%5))
+			}
+		}
+	},
 }
