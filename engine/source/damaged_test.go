@@ -101,11 +101,10 @@ func FuzzParquet(f *testing.F) {
 		for _, skip := range [][]bool{nil, {false, true, false}} {
 			set, err := Open([]string{path}, Options{})
 			if err == nil {
-				cols := []string{"id", "x", "tag"}
-				if set.Schema().NumFields() != 3 {
-					cols, skip = nil, nil
+				if set.Schema().NumFields() != len(skip) {
+					skip = nil
 				}
-				err = set.ScanSome(context.Background(), cols, skip, func(*Batch) error { return nil })
+				err = set.ScanSome(context.Background(), nil, skip, func(*Batch) error { return nil })
 				set.Close()
 			}
 			var located *Error
