@@ -274,13 +274,10 @@ func (pl *plan) idle(accs []checks.Accumulator) []bool {
 		}
 	}
 	skip := make([]bool, len(pl.columns))
-	any := false
 	for k, name := range pl.columns {
-		if !used[name] && !slices.Contains(pl.context, k) {
-			skip[k], any = true, true
-		}
+		skip[k] = !used[name] && !slices.Contains(pl.context, k)
 	}
-	if !any {
+	if !slices.Contains(skip, true) {
 		return nil
 	}
 	return skip
