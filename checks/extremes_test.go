@@ -452,7 +452,7 @@ func TestExtremesBySelection(t *testing.T) {
 					s.K = k
 					c := compile(t, newRule(s, atMost(0.05), "x"), envOf(bs[0], 5))
 					res := run(t, c, bs...)
-					sameJSON(t, "two workers", runTwoWorkers(t, c, bs...), res, 0)
+					sameJSON(t, "two workers", runInterleaved(t, c, 2, bs...), res, 0)
 					what := fmt.Sprintf("%s n=%d %s k=%v", name, n, m, k)
 					q1, q3 := order.Quantile7(sorted, 0.25), order.Quantile7(sorted, 0.75)
 					lower, upper := q1-k*(q3-q1), q3+k*(q3-q1)
@@ -512,7 +512,7 @@ func TestExtremesTestsTwoWorkers(t *testing.T) {
 		res := run(t, c, bs...)
 		// Grubbs sums the values in the order kept, which the interleaving
 		// changes: G may differ in its last bits.
-		sameJSON(t, string(m)+" two workers", runTwoWorkers(t, c, bs...), res, 1e-12)
+		sameJSON(t, string(m)+" two workers", runInterleaved(t, c, 2, bs...), res, 1e-12)
 		count, rows, _ := listed(res)
 		for _, r := range rows {
 			if x := xs[r-1]; x > 30 && x < 70 {

@@ -449,28 +449,6 @@ func TestQuantile7R(t *testing.T) {
 	}
 }
 
-// runTwoWorkers evaluates c as the engine does with two workers: batches
-// dealt alternately to two accumulators, merged (the first absorbs the
-// second), in both passes.
-func runTwoWorkers(t *testing.T, c Check, bs ...*source.Batch) report.Result {
-	t.Helper()
-	pass := func(make func() Accumulator) Accumulator {
-		w := []Accumulator{make(), make()}
-		for i, b := range bs {
-			observe(t, w[i%2], b)
-		}
-		if err := w[0].Merge(w[1]); err != nil {
-			t.Fatalf("Merge: %v", err)
-		}
-		return w[0]
-	}
-	first := pass(c.NewAccumulator)
-	if r, ok := first.(Rescanner); ok && r.SecondPass() != nil {
-		return pass(r.SecondPass).Finish()
-	}
-	return first.Finish()
-}
-
 // TestSummaryQuantileKept: the quantile of a float, an integer and a time
 // column, kept in parts per batch and found by selection, is Quantile7
 // of the sorted values to the last bit, with one accumulator and with
@@ -531,7 +509,7 @@ func TestSummaryQuantileKept(t *testing.T) {
 				for _, q := range []float64{0, 0.01, 0.25, 0.5, 0.95, 1} {
 					c := compile(t, summaryRule(rules.StatQuantile, q, within(-1e12, 1e12), "x"), envOf(bs[0], 10))
 					want := cc.want(q)
-					for how, res := range map[string]report.Result{"one": run(t, c, bs...), "two workers": runTwoWorkers(t, c, bs...)} {
+					for how, res := range map[string]report.Result{"one": run(t, c, bs...), "two workers": runInterleaved(t, c, 2, bs...)} {
 						if got := float64(res.Measure.Value); math.Float64bits(got) != math.Float64bits(want) {
 							t.Errorf("%s n=%d %s q=%v %s: %v, want %v", name, n, cc.col.typ, q, how, got, want)
 						}
@@ -574,7 +552,7 @@ func TestSummaryQuantileR(t *testing.T) {
 			t.Fatalf("quantile7.golden: %q", line)
 		}
 		c := compile(t, summaryRule(rules.StatQuantile, p, within(-1e12, 1e12), "x"), envOf(bs[0], 10))
-		if got := float64(runTwoWorkers(t, c, bs...).Measure.Value); got != want {
+		if got := float64(runInterleaved(t, c, 2, bs...).Measure.Value); got != want {
 			t.Errorf("%s p=%v: %.17g, R says %.17g", f[0], p, got, want)
 		}
 		checked++
