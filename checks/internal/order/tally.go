@@ -32,6 +32,9 @@ type Tally[T int64 | float64] struct {
 	n        int64
 	raw      Chunks[T]
 	spilled  bool
+	// warm keeps the sum of the keys Add reads ahead, only so that the
+	// compiler keeps those reads.
+	warm uint64
 }
 
 // slot is one entry of a Tally's table: a value's bits and its count.
@@ -42,12 +45,71 @@ type slot struct {
 
 // Add adds the values of part; the caller keeps part (it is copied once
 // the tally has spilled).
+//
+// The table outgrows the caches (2 MiB at most, one per column and lane),
+// so finding a value's slot is mostly a wait for memory. Add therefore
+// takes the values a block at a time: it first computes the slot each
+// value's hash names and reads it, in a loop whose reads do not depend on
+// one another, so the processor has many of them in flight at once; then
+// it probes for each value in turn, from slots now in cache. A block has
+// room in the table made for it first, so that no value of it moves the
+// slots the first loop named; near TallyLimit, where that room would
+// exceed the limit, values are counted one by one.
 func (t *Tally[T]) Add(part []T) {
-	if t.spilled {
-		t.raw.Add(slices.Clone(part))
-		t.n += int64(len(part))
-		return
+	var slot [addBlock]uint64
+	for len(part) > 0 {
+		if t.spilled {
+			t.raw.Add(slices.Clone(part))
+			t.n += int64(len(part))
+			return
+		}
+		blk := part[:min(len(part), addBlock)]
+		part = part[len(blk):]
+		if !t.reserve(len(blk)) {
+			t.addEach(blk)
+			continue
+		}
+		mask := uint64(len(t.slots) - 1)
+		var warm uint64
+		for i, x := range blk {
+			slot[i] = mix(bitsOf(x)) & mask
+			warm += t.slots[slot[i]].key
+		}
+		t.warm = warm
+		for i, x := range blk {
+			k := bitsOf(x)
+			j := t.probe(k, slot[i])
+			if t.slots[j].count == 0 {
+				t.slots[j].key = k
+				t.distinct++
+			}
+			t.slots[j].count++
+		}
+		t.n += int64(len(blk))
 	}
+}
+
+// addBlock is how many values Add hashes and reads ahead of probing: more
+// than a processor has reads in flight, few enough that their slots stay
+// in the first-level cache.
+const addBlock = 64
+
+// reserve grows the table until c more distinct values keep it at most
+// half full; false if that would take more than TallyLimit distinct
+// values (the table is left as it is then).
+func (t *Tally[T]) reserve(c int) bool {
+	if t.distinct+c > TallyLimit {
+		return false
+	}
+	for 2*(t.distinct+c) > len(t.slots) {
+		t.grow()
+	}
+	return true
+}
+
+// addEach adds the values of part one at a time, spilling at the value
+// that would exceed TallyLimit distinct values.
+func (t *Tally[T]) addEach(part []T) {
 	for i, x := range part {
 		if !t.count(bitsOf(x), 1) {
 			t.spill()
@@ -63,15 +125,12 @@ func (t *Tally[T]) Add(part []T) {
 // it as needed; false when that would exceed TallyLimit distinct values
 // (nothing is added then).
 func (t *Tally[T]) count(k uint64, c int64) bool {
-	if t.distinct >= len(t.slots)/2 {
-		if t.distinct >= TallyLimit {
-			if i, ok := t.find(k); ok {
-				t.slots[i].count += c
-				return true
-			}
-			return false
+	if !t.reserve(1) {
+		if i, ok := t.find(k); ok {
+			t.slots[i].count += c
+			return true
 		}
-		t.grow()
+		return false
 	}
 	i, ok := t.find(k)
 	if !ok {
@@ -85,13 +144,17 @@ func (t *Tally[T]) count(k uint64, c int64) bool {
 // find returns the slot of k, or the empty slot where k belongs, by
 // linear probing from the slot its hash names.
 func (t *Tally[T]) find(k uint64) (int, bool) {
+	i := t.probe(k, mix(k)&uint64(len(t.slots)-1))
+	return int(i), t.slots[i].count != 0
+}
+
+// probe returns the slot of k, or the empty slot where k belongs, by
+// linear probing from slot i.
+func (t *Tally[T]) probe(k, i uint64) uint64 {
 	mask := uint64(len(t.slots) - 1)
-	for i := mix(k) & mask; ; i = (i + 1) & mask {
-		switch s := t.slots[i]; {
-		case s.key == k && s.count != 0:
-			return int(i), true
-		case s.count == 0:
-			return int(i), false
+	for ; ; i = (i + 1) & mask {
+		if s := t.slots[i]; s.count == 0 || s.key == k {
+			return i
 		}
 	}
 }
@@ -226,7 +289,14 @@ func (t *Tally[T]) Quantiles7(ps ...float64) []float64 {
 			entries = append(entries, entry{valueOf[T](s.key), s.count})
 		}
 	}
-	slices.SortFunc(entries, func(a, b entry) int { return cmp.Compare(a.x, b.x) })
+	// -0 and 0, counted apart, sort -0 first, so that which of them a rank
+	// holds does not depend on where the table put them.
+	slices.SortFunc(entries, func(a, b entry) int {
+		if c := cmp.Compare(a.x, b.x); c != 0 {
+			return c
+		}
+		return cmp.Compare(bitsOf(b.x), bitsOf(a.x))
+	})
 	// at returns the value of 0-based rank r.
 	at := func(r int64) T {
 		i, _ := slices.BinarySearchFunc(entries, r, func(e entry, r int64) int {
