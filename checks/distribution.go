@@ -4,7 +4,6 @@ import (
 	"cmp"
 	"fmt"
 	"math"
-	"math/rand/v2"
 	"slices"
 	"strconv"
 	"strings"
@@ -12,6 +11,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 
+	"github.com/assay-project/assay/checks/bottomk"
 	"github.com/assay-project/assay/checks/dist"
 	"github.com/assay-project/assay/checks/gof"
 	"github.com/assay-project/assay/engine/report"
@@ -29,8 +29,9 @@ import (
 // cannot produce (a negative value for a lognormal, a fraction for a
 // Poisson) are counted exactly however many rows there are. The values
 // themselves are kept up to the rule's sample size; beyond it a seeded
-// reservoir sample of that size is kept instead (gof.Reservoir, Li 1994),
-// and the fit and the test run on it. Categorical rules count each listed
+// uniform sample of that many rows is kept instead (bottomk.Sample: the
+// rows of smallest key, a hash of the seed and the data-row number), and
+// the fit and the test run on it. Categorical rules count each listed
 // category exactly instead.
 //
 // Finish. A candidate with values outside its support is skipped; when
@@ -171,12 +172,11 @@ type DistributionState struct {
 	N        int64   // non-null values
 	Min, Max float64 // smallest and largest finite value (numeric families)
 	// Sample is a uniform sample of at most the rule's sample size of the
-	// finite values, all of them while there are no more (nil before the
-	// first value), then in row order whatever batches each accumulator
-	// saw. Once it samples, which values it keeps depends on the seed and
-	// on how the batches were dealt to accumulators (the engine's number
-	// of workers): each draws its own.
-	Sample *gof.Reservoir
+	// finite values (nil before the first value), in row order: every
+	// value while there are no more. Which values it keeps depends on the
+	// seed and the rows alone, not on how the batches were cut or dealt to
+	// accumulators.
+	Sample *bottomk.Sample
 	// Outside counts, per candidate, the values it cannot produce.
 	Outside []OutsideValues
 	// Counts counts each listed category, in the policy's order, and
@@ -246,14 +246,13 @@ type DistributionAccumulator struct {
 	check   *distributionCheck
 	scratch scratch
 	vals    []float64
+	at      []int        // the place in the batch of each of vals
 	found   *distFinding // the analysis, once made
 }
 
 // Observe counts the batch's values, tests them against each candidate's
-// support and offers the finite ones to the sample, at the batch's first
-// row (gof.Reservoir.AddAllAt), so that accumulators of interleaved
-// batches merge into the sample one accumulator would keep while it keeps
-// every value.
+// support and offers the finite ones to the sample, each under its
+// data-row number.
 func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 	arr, err := a.check.col.in(b)
 	if err != nil {
@@ -273,22 +272,37 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 		return nil
 	}
 	if a.Sample == nil {
-		// Each accumulator seeds its reservoir with the rule's seed and
-		// where its data begin, so shards merged later sample independently
-		// and a run repeats for the same seed and the same batches.
-		if a.Sample, err = gof.NewReservoir(a.check.spec.Sample, shardSeed(a.check.spec.Seed, b.FirstRow)); err != nil {
+		if a.Sample, err = bottomk.New(a.check.spec.Sample, 1, a.check.spec.Seed); err != nil {
 			return err
 		}
 	}
-	a.Sample.AddAllAt(b.FirstRow, finite)
+	offerRows(a.Sample, b, a.at, finite, arr.Len())
 	return nil
+}
+
+// offerRows offers to s the rows of batch b at places at (P values each
+// in vals), under their data-row numbers; when they are all of the
+// batch's n rows, at is not read.
+func offerRows(s *bottomk.Sample, b *source.Batch, at []int, vals []float64, n int) {
+	switch {
+	case b.Rows != nil:
+		p := s.P()
+		for i, k := range at {
+			s.Offer(b.Rows[k], vals[i*p:(i+1)*p])
+		}
+	case len(at) == n:
+		s.OfferRun(b.FirstRow, vals)
+	default:
+		s.OfferAt(b.FirstRow, at, vals)
+	}
 }
 
 // observeValues counts the non-null values of xs (valid says which), as
 // float64, tests each against every candidate's support and returns the
-// finite ones, in a's buffer: one pass over the array, read in place.
+// finite ones, in a's buffer, their places in a.at: one pass over the
+// array, read in place.
 func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batch, v valid, xs []T) []float64 {
-	finite := a.vals[:0]
+	finite, at := a.vals[:0], a.at[:0]
 	for i, x := range xs {
 		if !v.at(i) {
 			continue
@@ -304,9 +318,9 @@ func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batc
 			continue
 		}
 		a.Min, a.Max = min(a.Min, f), max(a.Max, f)
-		finite = append(finite, f)
+		finite, at = append(finite, f), append(at, i)
 	}
-	a.vals = finite
+	a.vals, a.at = finite, at
 	return finite
 }
 
@@ -322,13 +336,6 @@ func (a *DistributionAccumulator) count(s string, row int64) {
 		a.UnlistedValues = append(a.UnlistedValues, strings.Clone(s))
 		a.UnlistedRows = append(a.UnlistedRows, row)
 	}
-}
-
-// shardSeed is the seed of the reservoir of an accumulator whose data
-// begin at row first: the first output of PCG seeded with the rule's seed
-// and that row, so shards draw independent samples.
-func shardSeed(seed uint64, first int64) uint64 {
-	return rand.New(rand.NewPCG(seed, uint64(first))).Uint64()
 }
 
 // eachText calls f with the text of every non-null value of a string,
@@ -384,11 +391,8 @@ func (a *DistributionAccumulator) Merge(other Accumulator) error {
 		return nil
 	}
 	if a.Sample == nil {
-		r, err := gof.NewReservoir(o.Sample.Size(), shardSeed(a.check.spec.Seed, o.Sample.Seen()))
-		if err != nil {
-			return err
-		}
-		a.Sample = r
+		a.Sample = o.Sample
+		return nil
 	}
 	return a.Sample.Merge(o.Sample)
 }

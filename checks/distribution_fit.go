@@ -39,7 +39,7 @@ func (c *distributionCheck) analyse(st *DistributionState) *distFinding {
 	if len(usable) == 0 {
 		return c.outsideSupport(st, skipped)
 	}
-	s, err := gof.Sort(st.Sample.Values())
+	s, err := gof.SortInPlace(st.Sample.Values(0))
 	if err != nil {
 		return &distFinding{result: Failed(r, err)}
 	}
@@ -393,7 +393,7 @@ func (ft *fitting) bootstrapAtResolution(r gof.Resampling) (gof.Result, error) {
 				buf[j] = round(ft.best.Dist.Rand(rng))
 			}
 		}
-		s, err := gof.Sort(buf)
+		s, err := gof.SortInPlace(buf)
 		if err != nil {
 			return gof.Result{}, fmt.Errorf("bootstrap replicate %d of %d: %w", i+1, b, err)
 		}
@@ -423,7 +423,7 @@ func subsample(s gof.Sorted, k int, seed uint64) (gof.Sorted, error) {
 		j := i + rng.IntN(len(x)-i)
 		x[i], x[j] = x[j], x[i]
 	}
-	return gof.Sort(x[:k])
+	return gof.SortInPlace(x[:k])
 }
 
 // finding makes the result of a numeric fit.

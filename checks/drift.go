@@ -12,15 +12,15 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 
 	"github.com/assay-project/assay/checks/baseline"
-	"github.com/assay-project/assay/checks/gof"
+	"github.com/assay-project/assay/checks/bottomk"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
 )
 
 // driftSample is how many values of a numeric column a drift rule keeps
-// for its two-sample measures: beyond it they run on a seeded reservoir
-// sample of that size (as the distribution rule, rules.DefaultSample).
+// for its two-sample measures: beyond it they run on a seeded uniform
+// sample of that many rows (bottomk.Sample) (as the distribution rule, rules.DefaultSample).
 const driftSample = rules.DefaultSample
 
 // driftCategories is how many distinct values a drift rule counts on the
@@ -133,7 +133,7 @@ func (c *driftCheck) loadReference(numeric bool) error {
 	side := newDriftSide(numeric)
 	err = set.Scan(context.Background(), []string{c.col.name}, func(b *source.Batch) error {
 		defer b.Release()
-		side.observe(b.Record.Column(0))
+		side.observe(b, b.Record.Column(0))
 		return nil
 	})
 	if err != nil {
@@ -142,7 +142,7 @@ func (c *driftCheck) loadReference(numeric bool) error {
 	b := driftBase{rows: side.Rows, nulls: side.Nulls, numbers: numeric, count: side.Count, mean: side.Mean,
 		std: side.std(), cats: side.Cats, other: side.Other, exact: side.Sample == nil || side.Sample.Complete()}
 	if numeric {
-		b.dist = baseline.Unit(side.Sample.Values())
+		b.dist = baseline.Unit(side.Sample.Values(0))
 		if len(b.dist.X) > 0 {
 			b.bins = baseline.QuantileBins(b.dist, baseline.Bins)
 			b.lo, b.hi = b.dist.X[0], b.dist.X[len(b.dist.X)-1]
@@ -166,25 +166,27 @@ func (c *driftCheck) NewAccumulator() Accumulator {
 }
 
 // DriftSide is the sufficient statistic of one side of a drift rule: row
-// and null counts, the moments (Welford), a seeded reservoir sample of the
-// values of a numeric column, and the counts of a text column's values.
+// and null counts, the moments (Welford), a seeded uniform sample of the
+// values of a numeric column (keyed by data-row number, seed
+// rules.DefaultSeed), and the counts of a text column's values.
 type DriftSide struct {
 	Rows, Nulls, Count int64
 	Mean, M2           float64
-	Sample             *gof.Reservoir
+	Sample             *bottomk.Sample
 	Cats               map[string]int64
 	Other              int64 // values past driftCategories distinct ones
 }
 
 func newDriftSide(numeric bool) DriftSide {
 	if numeric {
-		r, _ := gof.NewReservoir(driftSample, rules.DefaultSeed)
-		return DriftSide{Sample: r}
+		s, _ := bottomk.New(driftSample, 1, rules.DefaultSeed) // the sizes are valid
+		return DriftSide{Sample: s}
 	}
 	return DriftSide{Cats: map[string]int64{}}
 }
 
-func (s *DriftSide) observe(arr arrow.Array) {
+// observe adds the values of arr, the drift column of batch b.
+func (s *DriftSide) observe(b *source.Batch, arr arrow.Array) {
 	s.Rows += int64(arr.Len())
 	for i := range arr.Len() {
 		if arr.IsNull(i) {
@@ -209,7 +211,7 @@ func (s *DriftSide) observe(arr arrow.Array) {
 		d := x - s.Mean
 		s.Mean += d / float64(s.Count)
 		s.M2 += d * (x - s.Mean)
-		s.Sample.Add(x)
+		s.Sample.Offer(b.Row(i), []float64{x})
 	}
 }
 
@@ -231,12 +233,12 @@ func (a *DriftAccumulator) Observe(b *source.Batch) error {
 	if err != nil {
 		return err
 	}
-	a.observe(arr)
+	a.observe(b, arr)
 	return nil
 }
 
 // Merge folds another run's side in: moments by Chan, Golub & LeVeque
-// (1979), reservoirs by gof.Reservoir.Merge, counts by sum.
+// (1979), samples by bottomk.Sample.Merge, counts by sum.
 func (a *DriftAccumulator) Merge(other Accumulator) error {
 	o, ok := other.(*DriftAccumulator)
 	if !ok || o.check != a.check {
@@ -279,7 +281,7 @@ func (a *DriftAccumulator) Finish() report.Result {
 		words []string
 	)
 	if a.Sample != nil {
-		cur := baseline.Unit(a.Sample.Values())
+		cur := baseline.Unit(a.Sample.Values(0))
 		d.Exact = b.exact && a.Sample.Complete()
 		shares := baseline.Shares(b.bins, cur.X)
 		sd := a.std()

@@ -6,7 +6,7 @@ import (
 	"math/rand/v2"
 	"slices"
 
-	"github.com/assay-project/assay/checks/gof"
+	"github.com/assay-project/assay/checks/bottomk"
 	"github.com/assay-project/assay/checks/outlier"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -33,7 +33,8 @@ import (
 // of Chan, Golub & LeVeque 1979 in the co-moment form of Pébay 2008);
 // memory O(p²). Robust: the judged rows are kept, up to the rule's sample
 // size; beyond it a seeded uniform sample of that many rows is kept
-// instead (RowSample), on which the estimate rests.
+// instead (bottomk.Sample: the rows of smallest key, a hash of the seed
+// and the data-row number), on which the estimate rests.
 //
 // Finish. Classical: the mean and sample covariance (outlier.Classical's
 // estimate). Robust: outlier.FastMCD (Rousseeuw & Van Driessen 1999,
@@ -57,6 +58,10 @@ type jointCheck struct {
 
 // maxQQSample bounds the distances kept for the report's plot.
 const maxQQSample = 10_000
+
+// plotSeed is xor-ed into the rule's seed for the plot's sample of rows,
+// so that it is not drawn from the rows the robust estimate rests on.
+const plotSeed = 0x706c6f74 // "plot"
 
 func newJointCheck(r *rules.Rule, s rules.JointSpec, env *Env) (Check, error) {
 	p := len(r.Columns)
@@ -92,7 +97,8 @@ func (c *jointCheck) NewAccumulator() Accumulator {
 	a := &JointAccumulator{check: c}
 	p := len(c.cols)
 	if c.spec.Robust {
-		a.Sample = NewRowSample(p, c.spec.Sample, c.spec.Seed)
+		// The sizes were checked when the rule was compiled.
+		a.Sample, _ = bottomk.New(c.spec.Sample, p, c.spec.Seed)
 	} else {
 		a.Moments = outlier.NewCoMoments(p)
 	}
@@ -106,7 +112,7 @@ type JointState struct {
 	// Moments are the count, mean and co-moments of the judged rows
 	// (classical); Sample a uniform sample of them (robust).
 	Moments *outlier.CoMoments
-	Sample  *RowSample
+	Sample  *bottomk.Sample
 }
 
 // JointAccumulator is the first pass of a joint rule.
@@ -271,7 +277,7 @@ func (c *jointCheck) estimate(st *JointState) *jointFinding {
 	}
 	var s outlier.Scatter
 	if c.spec.Robust {
-		cols := st.Sample.Columns()
+		cols := keyOrderColumns(st.Sample)
 		mcd, err := outlier.FastMCD(cols, outlier.MCDOptions{}, rand.New(rand.NewPCG(c.spec.Seed, 0x6d6364)))
 		if err != nil {
 			f.err = err
@@ -380,7 +386,7 @@ type jointJudge struct {
 	found   *jointFinding
 	listing Offenders
 	rows    jointRows
-	plot    *gof.Reservoir
+	plot    *bottomk.Sample
 }
 
 // Observe judges the batch's rows.
@@ -391,7 +397,7 @@ func (l *jointJudge) Observe(b *source.Batch) error {
 		return err
 	}
 	if l.plot == nil {
-		if l.plot, err = gof.NewReservoir(maxQQSample, shardSeed(c.spec.Seed, b.FirstRow)); err != nil {
+		if l.plot, err = bottomk.New(maxQQSample, 1, c.spec.Seed^plotSeed); err != nil {
 			return err
 		}
 	}
@@ -405,7 +411,7 @@ func (l *jointJudge) Observe(b *source.Batch) error {
 			continue
 		}
 		d2 := s.Dist2(l.rows.row)
-		l.plot.Add(d2)
+		l.plot.Offer(b.Row(i), []float64{d2})
 		if !(d2 > c.cutoff) {
 			continue
 		}
@@ -449,7 +455,7 @@ func (l *jointJudge) Merge(other Accumulator) error {
 func (l *jointJudge) Finish() report.Result {
 	var d2 []float64
 	if l.plot != nil {
-		d2 = l.plot.Values()
+		d2 = l.plot.Values(0)
 	}
 	return l.found.result(l.check, l.listing.Count, &l.listing, d2)
 }

@@ -15,6 +15,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
 
+	"github.com/assay-project/assay/checks/bottomk"
 	"github.com/assay-project/assay/checks/outlier"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -209,11 +210,14 @@ func TestJointFlagsByDefinition(t *testing.T) {
 		t.Fatal(err)
 	}
 	// The rule hands FastMCD its rows in the order of their sampling keys.
-	sample := NewRowSample(2, rules.DefaultJointSample, rules.DefaultSeed)
+	sample, err := bottomk.New(rules.DefaultJointSample, 2, rules.DefaultSeed)
+	if err != nil {
+		t.Fatal(err)
+	}
 	for i := range cols[0] {
 		sample.Offer(int64(i+1), []float64{cols[0][i], cols[1][i]})
 	}
-	mcd, err := outlier.FastMCD(sample.Columns(), outlier.MCDOptions{}, rand.New(rand.NewPCG(rules.DefaultSeed, 0x6d6364)))
+	mcd, err := outlier.FastMCD(keyOrderColumns(sample), outlier.MCDOptions{}, rand.New(rand.NewPCG(rules.DefaultSeed, 0x6d6364)))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -308,49 +312,42 @@ func TestJointFewRows(t *testing.T) {
 	}
 }
 
-// TestRowSample: the sample is uniform (each row kept about Size/n of the
-// time over seeds), bounded, and merges into exactly the sample of the
-// union.
-func TestRowSample(t *testing.T) {
-	const n, size, seeds = 200, 20, 2000
-	kept := make([]int, n)
-	for seed := range uint64(seeds) {
-		s := NewRowSample(1, size, seed)
-		for row := range int64(n) {
-			s.Offer(row+1, []float64{float64(row + 1)})
+// TestKeyOrderColumns: the robust rule's sample, kept by lanes of
+// interleaved rows and merged, is the sample of all the rows, handed over
+// in the order of the rows' keys, with each row's values together.
+func TestKeyOrderColumns(t *testing.T) {
+	for _, n := range []int64{30, 1000} { // all rows kept; sampled
+		mk := func() *bottomk.Sample {
+			s, err := bottomk.New(50, 2, 9)
+			if err != nil {
+				t.Fatal(err)
+			}
+			return s
 		}
-		if len(s.Keys) != size || s.Seen != n {
-			t.Fatalf("kept %d of %d", len(s.Keys), s.Seen)
+		whole, a, b := mk(), mk(), mk()
+		for row := range n {
+			v := []float64{float64(row), -float64(row)}
+			whole.Offer(row, v)
+			if row%3 == 0 {
+				a.Offer(row, v)
+			} else {
+				b.Offer(row, v)
+			}
 		}
-		for _, v := range s.Values {
-			kept[int(v)-1]++
+		if err := a.Merge(b); err != nil {
+			t.Fatal(err)
 		}
-	}
-	// Each count is binomial(seeds, size/n): mean 200, sd 13.4; over 200
-	// rows, all within 5 sd unless the sample is not uniform.
-	for row, k := range kept {
-		if math.Abs(float64(k)-200) > 5*math.Sqrt(seeds*0.1*0.9) {
-			t.Errorf("row %d kept %d times of %d, expected about 200", row+1, k, seeds)
+		got, want := keyOrderColumns(a), keyOrderColumns(whole)
+		if !slices.Equal(got[0], want[0]) || !slices.Equal(got[1], want[1]) || len(got[0]) != int(min(n, 50)) {
+			t.Fatalf("n %d: merged sample differs from the whole's, or is not of %d rows", n, min(n, 50))
 		}
-	}
-	whole, a, b := NewRowSample(2, 50, 9), NewRowSample(2, 50, 9), NewRowSample(2, 50, 9)
-	for row := range int64(1000) {
-		v := []float64{float64(row), -float64(row)}
-		whole.Offer(row, v)
-		if row%3 == 0 {
-			a.Offer(row, v)
-		} else {
-			b.Offer(row, v)
+		for i, x := range got[0] {
+			if got[1][i] != -x {
+				t.Fatalf("n %d: row %v holds %v", n, x, got[1][i])
+			}
+			if i > 0 && bottomk.Key(9, int64(got[0][i-1])) > bottomk.Key(9, int64(x)) {
+				t.Fatalf("n %d: rows not in key order at %d", n, i)
+			}
 		}
-	}
-	if err := a.Merge(b); err != nil {
-		t.Fatal(err)
-	}
-	got, want := a.Columns(), whole.Columns()
-	if !slices.Equal(got[0], want[0]) || !slices.Equal(got[1], want[1]) || a.Seen != 1000 {
-		t.Errorf("merged sample differs from the whole's")
-	}
-	if err := a.Merge(NewRowSample(3, 50, 9)); err == nil {
-		t.Error("merged samples of different widths")
 	}
 }

@@ -7,7 +7,7 @@ import (
 
 	"github.com/apache/arrow-go/v18/arrow"
 
-	"github.com/assay-project/assay/checks/gof"
+	"github.com/assay-project/assay/checks/bottomk"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
 	"github.com/assay-project/assay/rules"
@@ -147,88 +147,75 @@ func asFloats(c column, a arrow.Array, s *scratch) []float64 {
 	return out
 }
 
-// pairSample keeps a uniform sample of at most a size of pairs: two
-// reservoirs seeded alike. A reservoir's draws depend only on how many
-// values it has seen, never on the values, so the two keep the same
-// positions through adding and merging, and their samples stay paired.
-// While it keeps every pair it holds them in row order, however batches
-// were dealt to the accumulators merged; once it samples, which pairs it
-// keeps depends on the seed and on that dealing (the number of workers).
+// pairSample keeps a uniform sample of at most a size of pairs: a
+// bottomk.Sample of two values per row, keyed by the rule's seed and the
+// data-row number, so the pairs it keeps, in row order, depend on the
+// rows alone, not on how batches were cut or dealt to accumulators.
 type pairSample struct {
-	x, y *gof.Reservoir
+	s *bottomk.Sample
 }
 
 // newPairSample returns an empty sample of at most size pairs.
 func newPairSample(size int, seed uint64) (*pairSample, error) {
-	x, err := gof.NewReservoir(size, seed)
+	s, err := bottomk.New(size, 2, seed)
 	if err != nil {
 		return nil, err
 	}
-	y, err := gof.NewReservoir(size, seed)
-	if err != nil {
-		return nil, err
+	return &pairSample{s: s}, nil
+}
+
+// add offers the pairs (xs[i], ys[i]) of data rows first+at[i] (first+i
+// when at is nil).
+func (s *pairSample) add(first int64, at []int, xs, ys []float64) {
+	for i := range xs {
+		row := first + int64(i)
+		if at != nil {
+			row = first + int64(at[i])
+		}
+		s.s.Offer(row, []float64{xs[i], ys[i]})
 	}
-	return &pairSample{x: x, y: y}, nil
 }
 
-// add offers the pairs (xs[i], ys[i]), following those offered before.
-func (s *pairSample) add(xs, ys []float64) {
-	s.x.AddAll(xs)
-	s.y.AddAll(ys)
-}
-
-// addAt offers the pairs (xs[i], ys[i]) of a batch whose data begin at
-// row first: while the sample keeps every pair, merged samples hold their
-// pairs in row order (gof.Reservoir.AddAllAt), so accumulators of
-// interleaved batches merge into the sample one accumulator keeps.
-func (s *pairSample) addAt(first int64, xs, ys []float64) {
-	s.x.AddAllAt(first, xs)
-	s.y.AddAllAt(first, ys)
-}
-
-// offer offers the pairs of a batch whose data begin at row first to *s,
-// making it on first use: a sample of at most size pairs, seeded from the
-// rule's seed and first (shardSeed), so that shards merged later sample
-// independently and a run repeats.
-func offer(s **pairSample, size int, seed uint64, first int64, xs, ys []float64) error {
+// offer offers the pairs (xs[i], ys[i]) of rows at[i] of batch b to *s,
+// making it on first use: a sample of at most size pairs keyed by seed.
+func offer(s **pairSample, size int, seed uint64, b *source.Batch, at []int, xs, ys []float64) error {
 	if *s == nil {
 		var err error
-		if *s, err = newPairSample(size, shardSeed(seed, first)); err != nil {
+		if *s, err = newPairSample(size, seed); err != nil {
 			return err
 		}
 	}
-	(*s).addAt(first, xs, ys)
+	if b.Rows == nil {
+		(*s).add(b.FirstRow, at, xs, ys)
+		return nil
+	}
+	for i, k := range at {
+		(*s).s.Offer(b.Rows[k], []float64{xs[i], ys[i]})
+	}
 	return nil
 }
 
-// mergeSample folds o into s; a nil s takes a fresh sample of o's size
-// first, seeded as the distribution rule seeds its shards (shardSeed).
-func mergeSample(s, o *pairSample, seed uint64) (*pairSample, error) {
-	if o == nil {
+// mergeSample folds o into s; a nil s takes o.
+func mergeSample(s, o *pairSample) (*pairSample, error) {
+	switch {
+	case o == nil:
 		return s, nil
+	case s == nil:
+		return o, nil
 	}
-	if s == nil {
-		var err error
-		if s, err = newPairSample(o.x.Size(), shardSeed(seed, o.x.Seen())); err != nil {
-			return nil, err
-		}
-	}
-	if err := s.x.Merge(o.x); err != nil {
-		return nil, err
-	}
-	return s, s.y.Merge(o.y)
+	return s, s.s.Merge(o.s)
 }
 
-// values returns copies of the sampled pairs.
+// values returns copies of the sampled pairs, in row order.
 func (s *pairSample) values() (xs, ys []float64) {
 	if s == nil {
 		return nil, nil
 	}
-	return s.x.Values(), s.y.Values()
+	return s.s.Values(0), s.s.Values(1)
 }
 
 // sampled reports whether the sample holds fewer pairs than were offered.
-func (s *pairSample) sampled() bool { return s != nil && !s.x.Complete() }
+func (s *pairSample) sampled() bool { return s != nil && !s.s.Complete() }
 
 // points writes a sample as a report's points.
 func (s *pairSample) points() *report.Points {

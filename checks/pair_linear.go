@@ -19,7 +19,7 @@ import (
 // Pébay's co-moment), which is all that Pearson's r, its t test, the
 // least-squares line and R² need. A robust fit (theil-sen, huber) needs
 // the pairs themselves: they are kept up to the rule's sample size, beyond
-// it a seeded uniform sample of that size (two paired reservoirs, see
+// it a seeded uniform sample of that size (rows of smallest key, see
 // pairSample), and the result says so. A seeded sample of 500 pairs is
 // kept for a scatter plot.
 //
@@ -110,10 +110,10 @@ func (a *LinearAccumulator) Observe(b *source.Batch) error {
 	}
 	a.Moments.AddAll(a.rows.X, a.rows.Y)
 	seed := a.check.spec.Seed
-	if err := offer(&a.points, plotPoints, seed, b.FirstRow, a.rows.X, a.rows.Y); err != nil || !a.check.keeps {
+	if err := offer(&a.points, plotPoints, seed, b, a.rows.Rows, a.rows.X, a.rows.Y); err != nil || !a.check.keeps {
 		return err
 	}
-	return offer(&a.kept, a.check.spec.Sample, seed, b.FirstRow, a.rows.X, a.rows.Y)
+	return offer(&a.kept, a.check.spec.Sample, seed, b, a.rows.Rows, a.rows.X, a.rows.Y)
 }
 
 // Merge folds other's moments and samples into a.
@@ -126,10 +126,10 @@ func (a *LinearAccumulator) Merge(other Accumulator) error {
 	a.NonFinite += o.NonFinite
 	a.rows.NonFinite = a.NonFinite
 	var err error
-	if a.points, err = mergeSample(a.points, o.points, a.check.spec.Seed); err != nil {
+	if a.points, err = mergeSample(a.points, o.points); err != nil {
 		return err
 	}
-	a.kept, err = mergeSample(a.kept, o.kept, a.check.spec.Seed)
+	a.kept, err = mergeSample(a.kept, o.kept)
 	return err
 }
 

@@ -47,6 +47,7 @@ type OrderAccumulator struct {
 	listing    Offenders
 	sx, sy     scratch
 	px, py     []float64 // the rows with both values, for the plot
+	at         []int     // their places in the batch
 	points     *pairSample
 }
 
@@ -63,13 +64,13 @@ func (a *OrderAccumulator) Observe(b *source.Batch) error {
 	if c.exact() {
 		ix, iy = int64s(ax, &a.sx.ints), int64s(ay, &a.sy.ints)
 	}
-	a.px, a.py = a.px[:0], a.py[:0]
+	a.px, a.py, a.at = a.px[:0], a.py[:0], a.at[:0]
 	for i := range fx {
 		if !vx.at(i) || !vy.at(i) {
 			continue
 		}
 		a.Rows++
-		a.px, a.py = append(a.px, fx[i]), append(a.py, fy[i])
+		a.px, a.py, a.at = append(a.px, fx[i]), append(a.py, fy[i]), append(a.at, i)
 		var out bool
 		if ix != nil {
 			out = ix[i] > iy[i] || (c.spec.Strict && ix[i] == iy[i])
@@ -82,7 +83,7 @@ func (a *OrderAccumulator) Observe(b *source.Batch) error {
 		a.OutOfOrder++
 		a.listing.Add(fx[i]-fy[i], b.Row(i), func() report.Row { return pairRow(c.env, b, i, c.x, c.y) })
 	}
-	return offer(&a.points, plotPoints, c.spec.Seed, b.FirstRow, a.px, a.py)
+	return offer(&a.points, plotPoints, c.spec.Seed, b, a.at, a.px, a.py)
 }
 
 // Merge adds other's counts, listing and points to a.
@@ -95,7 +96,7 @@ func (a *OrderAccumulator) Merge(other Accumulator) error {
 	a.OutOfOrder += o.OutOfOrder
 	a.listing.Merge(&o.listing)
 	var err error
-	a.points, err = mergeSample(a.points, o.points, a.check.spec.Seed)
+	a.points, err = mergeSample(a.points, o.points)
 	return err
 }
 

@@ -17,7 +17,7 @@ import (
 //
 // Ranks need every pair at once: the pairs with both values finite are
 // kept up to the rule's sample size, beyond it a seeded uniform sample of
-// that size (two paired reservoirs, see pairSample), and the result says
+// that size (rows of smallest key, see pairSample), and the result says
 // so. Spearman's rho is an O(n log n) sort, Kendall's tau-b Knight's
 // O(n log n) merge sort.
 type rankCheck struct {
@@ -52,7 +52,7 @@ func (a *RankAccumulator) Observe(b *source.Batch) error {
 		return nil
 	}
 	a.N += int64(len(a.rows.X))
-	return offer(&a.kept, a.check.spec.Sample, a.check.spec.Seed, b.FirstRow, a.rows.X, a.rows.Y)
+	return offer(&a.kept, a.check.spec.Sample, a.check.spec.Seed, b, a.rows.Rows, a.rows.X, a.rows.Y)
 }
 
 // Merge folds other's counts and sample into a.
@@ -65,7 +65,7 @@ func (a *RankAccumulator) Merge(other Accumulator) error {
 	a.NonFinite += o.NonFinite
 	a.rows.NonFinite = a.NonFinite
 	var err error
-	a.kept, err = mergeSample(a.kept, o.kept, a.check.spec.Seed)
+	a.kept, err = mergeSample(a.kept, o.kept)
 	return err
 }
 
@@ -118,6 +118,6 @@ func plotSample(xs, ys []float64, seed uint64) *report.Points {
 	if err != nil || len(xs) == 0 {
 		return nil
 	}
-	s.add(xs, ys)
+	s.add(0, nil, xs, ys) // the pairs' places in the sample stand for rows
 	return s.points()
 }

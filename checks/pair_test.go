@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"reflect"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -16,12 +17,12 @@ import (
 	"github.com/assay-project/assay/rules"
 )
 
-// TestPairSampleStaysPaired: two reservoirs seeded alike keep the same
-// positions, through adding in uneven batches and merging, so every
-// sampled x stays with its own y.
+// TestPairSampleStaysPaired: every sampled x stays with its own y,
+// through adding in uneven batches and merging, and the merged shards hold
+// the sample one shard fed every pair holds.
 func TestPairSampleStaysPaired(t *testing.T) {
-	shard := func(from, to int, seed uint64) *pairSample {
-		s, err := newPairSample(100, seed)
+	shard := func(from, to int) *pairSample {
+		s, err := newPairSample(100, 3)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -31,21 +32,25 @@ func TestPairSampleStaysPaired(t *testing.T) {
 			for i := lo; i < hi; i++ {
 				xs, ys = append(xs, float64(i)), append(ys, 2*float64(i)+1)
 			}
-			s.add(xs, ys)
+			s.add(int64(lo), nil, xs, ys)
 			lo = hi
 		}
 		return s
 	}
-	a := shard(0, 5000, 1)
-	merged, err := mergeSample(a, shard(5000, 12000, 2), 3)
+	a := shard(0, 5000)
+	merged, err := mergeSample(a, shard(5000, 12000))
 	if err != nil {
 		t.Fatal(err)
 	}
-	merged, err = mergeSample(merged, shard(12000, 12050, 4), 3)
+	merged, err = mergeSample(merged, shard(12000, 12050))
 	if err != nil {
 		t.Fatal(err)
 	}
 	xs, ys := merged.values()
+	wx, wy := shard(0, 12050).values()
+	if !slices.Equal(xs, wx) || !slices.Equal(ys, wy) {
+		t.Errorf("merged shards hold other pairs than one sample of them all")
+	}
 	if len(xs) != 100 || !merged.sampled() {
 		t.Fatalf("%d pairs, sampled %v; want 100 sampled", len(xs), merged.sampled())
 	}

@@ -35,11 +35,10 @@ const Version = "0.1.0"
 // batch k goes to lane k mod Lanes, and the lanes' accumulators are merged
 // in lane order after the pass. The number is fixed, not taken from the
 // machine, so that which rows each accumulator sees, and so every sum's
-// rounding and every seeded sample, is the same on any machine and for any
-// Options.Workers; each worker serves whole lanes. They do depend on where
-// batches end (source.Options.BatchRows, fixed by default): a sample drawn
-// from more rows than it holds picks other, equally likely, rows when the
-// batches are cut elsewhere.
+// rounding, is the same on any machine and for any Options.Workers; each
+// worker serves whole lanes. Seeded samples depend on neither the lanes
+// nor where batches end: a row is kept by a key computed from the seed and
+// its data-row number (checks/bottomk).
 const Lanes = 4
 
 // DefaultMaxRowsListed is how many offending rows a result lists when

@@ -49,15 +49,6 @@ func BenchmarkTests(b *testing.B) {
 	}
 }
 
-func BenchmarkReservoir(b *testing.B) {
-	x := make([]float64, 1e6)
-	normalRef{mu: 0, sigma: 1}.Draw(newRand(1), x)
-	for b.Loop() {
-		r, _ := NewReservoir(10000, 1)
-		r.AddAll(x)
-	}
-}
-
 // FuzzTests feeds arbitrary numbers to every test: none may panic, and each
 // either fails with an error or returns a p-value in [0, 1] and a
 // statistic that is not negative.

@@ -25,7 +25,7 @@ import (
 //
 // Cost: B draws, sorts and refits of n values; at n = 1000 and B = 999,
 // tens of milliseconds for closed-form fits. At millions of rows run it on
-// a Reservoir sample of a few thousand values: its p-value is then that of
+// a uniform sample of a few thousand values: its p-value is then that of
 // the sample, which the result reports through N.
 func BootstrapPValue(t Test, observed float64, n int, fitted Fitted, refit Refit, r Resampling) (float64, error) {
 	if n < 1 {

@@ -78,20 +78,3 @@ func ExampleChiSquare() {
 	// deaths 2-4: observed 26, expected 25.0
 	// X2 = 0.0628, df = 1, p = 0.8021
 }
-
-// A reservoir per shard, merged: a uniform sample of the whole stream.
-func ExampleReservoir() {
-	a, _ := gof.NewReservoir(1000, 1)
-	b, _ := gof.NewReservoir(1000, 2)
-	for i := range 300000 {
-		if i%3 == 0 {
-			b.Add(float64(i))
-		} else {
-			a.Add(float64(i))
-		}
-	}
-	_ = a.Merge(b)
-	fmt.Println(len(a.Values()), a.Seen(), a.Complete())
-	// Output:
-	// 1000 300000 false
-}

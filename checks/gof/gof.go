@@ -44,8 +44,8 @@
 // # Samples
 //
 // The tests take a Sorted sample. At scale a test that needs every value runs
-// on a Reservoir sample drawn while streaming; the caller reports that a
-// sample was used and its size (Result.N).
+// on a uniform sample drawn while streaming (package checks/bottomk); the
+// caller reports that a sample was used and its size (Result.N).
 //
 // Nothing here depends on the engine or on the family-fitting package: a
 // reference is anything with a CDF method (gonum's distuv types qualify), and
@@ -110,14 +110,31 @@ type Sorted struct {
 // eight linear passes, -0 before +0). Sorting is the costliest part of
 // every test here; sort once and run several tests on the result.
 func Sort(x []float64) (Sorted, error) {
+	if err := finite(x); err != nil {
+		return Sorted{}, err
+	}
+	return SortInPlace(slices.Clone(x))
+}
+
+// SortInPlace is Sort without the copy, for a caller that hands over x:
+// it sorts x itself, which the result then holds; the caller must not
+// use x afterwards.
+func SortInPlace(x []float64) (Sorted, error) {
+	if err := finite(x); err != nil {
+		return Sorted{}, err
+	}
+	order.SortFloat64(x)
+	return Sorted{x: x}, nil
+}
+
+// finite rejects a NaN or infinite value, naming its place.
+func finite(x []float64) error {
 	for i, v := range x {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return Sorted{}, fmt.Errorf("sample value %d is %v: goodness-of-fit tests need finite numbers", i+1, v)
+			return fmt.Errorf("sample value %d is %v: goodness-of-fit tests need finite numbers", i+1, v)
 		}
 	}
-	c := slices.Clone(x)
-	order.SortFloat64(c)
-	return Sorted{x: c}, nil
+	return nil
 }
 
 // Len is the sample size.

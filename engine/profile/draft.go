@@ -290,7 +290,7 @@ func (d *drafter) numeric(cd *colDraft) {
 // by about 1/sqrt(n), under 0.01 at the default sample).
 func (d *drafter) family(c *column) (*famDraft, string) {
 	var x []float64
-	for _, v := range c.sample.Values() {
+	for _, v := range c.sample.Values(0) {
 		if !math.IsNaN(v) {
 			x = append(x, v)
 		}
@@ -304,7 +304,7 @@ func (d *drafter) family(c *column) (*famDraft, string) {
 			cands = append(cands, f)
 		}
 	}
-	sorted, err := gof.Sort(x)
+	sorted, err := gof.SortInPlace(x)
 	if err != nil {
 		return nil, err.Error()
 	}
@@ -393,7 +393,7 @@ func (d *drafter) relations() []pairDraft {
 				continue
 			}
 			r := m.Correlation()
-			xs, ys := aligned(num[i].sample.Values(), num[j].sample.Values())
+			xs, ys := aligned(num[i].sample.Values(0), num[j].sample.Values(0))
 			rho := math.NaN()
 			if sp, err := relate.SpearmanTest(xs, ys); err == nil {
 				rho = sp.Estimate

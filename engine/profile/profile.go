@@ -6,7 +6,7 @@
 // it is and that passes on the data it was drafted from.
 //
 // Memory does not grow with the rows beyond bounded parts: a seeded
-// reservoir sample of each numeric column (Options.Sample values), category
+// uniform sample of each numeric column (Options.Sample values), category
 // counts up to MaxEnum+1 values per column, and for key candidates a set of
 // value hashes per column up to MaxKeyValues (a column with more distinct
 // values than that is not offered as a key), and for two-column key
@@ -27,7 +27,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 
-	"github.com/assay-project/assay/checks/gof"
+	"github.com/assay-project/assay/checks/bottomk"
 	"github.com/assay-project/assay/checks/relate"
 	"github.com/assay-project/assay/engine/source"
 )
@@ -36,7 +36,7 @@ import (
 // (common practice for a first draft), documented in the README.
 const (
 	// DefaultSample is how many values of each numeric column the family
-	// fits and rank correlations rest on: a seeded reservoir sample
+	// fits and rank correlations rest on: a seeded uniform sample of rows
 	// beyond it.
 	DefaultSample = 20000
 	// MaxEnum is the most distinct values a string or integer column may
@@ -66,10 +66,10 @@ const (
 type Options struct {
 	// Source says how to read the inputs.
 	Source source.Options
-	// Sample is the reservoir size per numeric column; 0 means
+	// Sample is the sample size per numeric column; 0 means
 	// DefaultSample.
 	Sample int
-	// Seed seeds the reservoir samples; the same seed and data give the
+	// Seed seeds the samples; the same seed and data give the
 	// same draft.
 	Seed uint64
 	// Name is the policy's name; "" means "drafted".
@@ -93,7 +93,7 @@ type column struct {
 	numeric   bool
 	min, max  float64
 	nonFinite int64
-	sample    *gof.Reservoir
+	sample    *bottomk.Sample
 
 	// categories (string, integer, number, boolean): counts while at most
 	// MaxEnum; nil beyond, and for the other types
@@ -240,10 +240,11 @@ func scanSet(ctx context.Context, set *source.Set, opts Options) (*stats, error)
 			c.numeric = true
 		}
 		if c.typ == "integer" || c.typ == "number" {
-			// Every numeric column gets a reservoir with the same seed,
-			// fed every row (NaN for a missing value), so the samples keep
-			// the same rows and pairs can be read across them.
-			r, err := gof.NewReservoir(size, opts.Seed)
+			// Every numeric column gets a sample with the same seed, fed
+			// every row (NaN for a missing value), so the samples keep the
+			// same rows (the keys depend on the seed and the row number
+			// alone) and pairs can be read across them.
+			r, err := bottomk.New(size, 1, opts.Seed)
 			if err != nil {
 				return nil, err
 			}
@@ -283,7 +284,7 @@ func scanSet(ctx context.Context, set *source.Set, opts Options) (*stats, error)
 		st.rows += int64(rows)
 		for k, c := range st.cols {
 			c.invalid += int64(len(b.Invalid[k]))
-			vals[k] = c.observe(b.Record.Column(k), vals[k][:0])
+			vals[k] = c.observe(b.FirstRow, b.Record.Column(k), vals[k][:0])
 		}
 		st.observePairs(vals, rows)
 		st.observeCombos(rows)
@@ -295,9 +296,10 @@ func scanSet(ctx context.Context, set *source.Set, opts Options) (*stats, error)
 	return st, nil
 }
 
-// observe adds a batch's array to the column, and returns its values as
-// float64 (NaN for missing) for numeric columns.
-func (c *column) observe(a arrow.Array, out []float64) []float64 {
+// observe adds a batch's array, whose data begin at row first, to the
+// column, and returns its values as float64 (NaN for missing) for numeric
+// columns.
+func (c *column) observe(first int64, a arrow.Array, out []float64) []float64 {
 	rows := a.Len()
 	c.nulls += int64(a.NullN())
 	c.n += int64(rows - a.NullN())
@@ -372,7 +374,7 @@ func (c *column) observe(a arrow.Array, out []float64) []float64 {
 		}
 	}
 	if c.sample != nil {
-		c.sample.AddAll(out)
+		c.sample.OfferRun(first, out)
 	}
 	return out
 }

@@ -317,3 +317,24 @@ func (s *keySelector) level(nodes []keyNode, shift uint) []keyNode {
 	}
 	return next
 }
+
+// KeysOfRanks returns the keys of the given ranks (0-based, ascending,
+// distinct, within [0, n)) among the n keys that scan yields, a block at a
+// time (in buffers it may reuse), by radix selection (see keySelector):
+// about two passes over the keys, which are neither stored nor reordered.
+// Up to gatherMin keys are instead gathered and selected among (Select).
+func KeysOfRanks(n int, ranks []int, scan func(fn func([]uint64))) []uint64 {
+	out := make([]uint64, len(ranks))
+	if n <= gatherMin {
+		all := make([]uint64, 0, n)
+		scan(func(keys []uint64) { all = append(all, keys...) })
+		SelectRanks(all, ranks)
+		for i, r := range ranks {
+			out[i] = all[r]
+		}
+		return out
+	}
+	s := keySelector{scan: scan, budget: max(n/8, gatherMin)}
+	s.find(n, ranks, out)
+	return out
+}

@@ -257,3 +257,42 @@ func BenchmarkChunksQuantiles7(b *testing.B) {
 		}
 	}
 }
+
+// TestKeysOfRanks: the keys of given ranks, found from blocks of keys,
+// are those of the sorted keys, for spread, tied and narrow keys, below
+// and above the count that is gathered whole.
+func TestKeysOfRanks(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	tests := []struct {
+		name  string
+		n     int
+		key   func() uint64
+		ranks []int
+	}{
+		{"few spread", 1000, rng.Uint64, []int{0, 499, 500, 999}},
+		{"many spread", 300_000, rng.Uint64, []int{99_999, 100_000}},
+		{"many below a threshold", 300_000, func() uint64 { return rng.Uint64() >> 40 }, []int{0, 250_000, 299_999}},
+		{"many tied", 200_000, func() uint64 { return uint64(rng.IntN(5)) << 60 }, []int{70_000, 70_001}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			keys := make([]uint64, tc.n)
+			for i := range keys {
+				keys[i] = tc.key()
+			}
+			scan := func(fn func([]uint64)) {
+				for k := 0; k < len(keys); k += 777 {
+					fn(keys[k:min(k+777, len(keys))])
+				}
+			}
+			got := KeysOfRanks(tc.n, tc.ranks, scan)
+			sorted := slices.Clone(keys)
+			slices.Sort(sorted)
+			for i, r := range tc.ranks {
+				if got[i] != sorted[r] {
+					t.Errorf("rank %d: %#x, want %#x", r, got[i], sorted[r])
+				}
+			}
+		})
+	}
+}
