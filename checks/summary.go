@@ -113,13 +113,29 @@ func (c *summaryCheck) NewAccumulator() Accumulator {
 	return a
 }
 
-func (c *summaryCheck) keepsValues() bool {
-	return c.stat == rules.StatMedian || c.stat == rules.StatQuantile
+// summaryNeeds says which parts of a SummaryState a statistic is
+// computed from (beyond Count and NaN, which every one needs).
+type summaryNeeds struct {
+	moments bool // Mean and M2: std
+	extent  bool // Min and Max: min and max
+	sum     bool // Sum or FloatSum: mean
+	values  bool // Floats or Ints: median and quantile
+}
+
+func (c *summaryCheck) needs() summaryNeeds {
+	return summaryNeeds{
+		moments: c.stat == rules.StatStd,
+		extent:  c.stat == rules.StatMin || c.stat == rules.StatMax,
+		sum:     c.stat == rules.StatMean,
+		values:  c.stat == rules.StatMedian || c.stat == rules.StatQuantile,
+	}
 }
 
 // SummaryState is the sufficient statistic of a summary rule. Values are in
 // the column's own unit (days for date32, microseconds for timestamp[us]).
 // Mean, M2, Min and Max are over the Count-NaN values that are not NaN.
+// Only the fields the rule's statistic is computed from are kept
+// (summaryCheck.needs); the others stay at their zero or starting value.
 type SummaryState struct {
 	Count    int64    // non-null values, NaN included
 	NaN      int64    // NaN values (float columns)
@@ -217,14 +233,16 @@ func (a *SummaryAccumulator) Observe(b *source.Batch) error {
 }
 
 // observeFloats adds the values of xs that v says are valid; nulls of
-// them are not.
+// them are not. Only what the statistic is computed from is updated
+// (summaryCheck.needs): each of the moments, the sum and the kept values
+// is a chain of work per value that the others need not wait for.
 func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
 	var (
 		w          welford
-		nan        int64
+		n, nan     int64
 		lo, hi     = math.Inf(1), math.Inf(-1)
 		sum        = a.FloatSum
-		keep       = a.check.keepsValues()
+		need       = a.check.needs()
 		kept       = a.keptFloats[:0]
 		collectSet = a.Distinct != nil
 	)
@@ -239,29 +257,38 @@ func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
 			nan++
 			continue
 		}
-		w.add(x)
-		lo, hi = min(lo, x), max(hi, x)
-		sum.Add(x)
-		if keep {
+		n++
+		if need.moments {
+			w.add(x)
+		}
+		if need.extent {
+			lo, hi = min(lo, x), max(hi, x)
+		}
+		if need.sum {
+			sum.Add(x)
+		}
+		if need.values {
 			kept = append(kept, x)
 		}
 	}
 	a.Floats.Add(kept)
 	a.keptFloats = kept
 	a.FloatSum = sum
+	w.n = n
 	a.pool(w, lo, hi)
-	a.Count += w.n + nan
+	a.Count += n + nan
 	a.NaN += nan
 }
 
 // observeInts adds the values of xs that v says are valid; nulls of them
-// are not.
+// are not. As observeFloats, it updates only what the statistic needs.
 func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
 	var (
 		w          welford
+		n          int64
 		lo, hi     int64 = math.MaxInt64, math.MinInt64
 		sum              = a.Sum
-		keep             = a.check.keepsValues()
+		need             = a.check.needs()
 		kept             = a.keptInts[:0]
 		collectSet       = a.Distinct != nil
 	)
@@ -269,10 +296,17 @@ func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
 		if !v.at(i) {
 			continue
 		}
-		w.add(float64(x))
-		lo, hi = min(lo, x), max(hi, x)
-		sum.Add(x)
-		if keep {
+		n++
+		if need.moments {
+			w.add(float64(x))
+		}
+		if need.extent {
+			lo, hi = min(lo, x), max(hi, x)
+		}
+		if need.sum {
+			sum.Add(x)
+		}
+		if need.values {
 			kept = append(kept, x)
 		}
 		if collectSet {
@@ -282,10 +316,15 @@ func (a *SummaryAccumulator) observeInts(xs []int64, v valid) {
 	a.Ints.Add(kept)
 	a.keptInts = kept
 	a.Sum = sum
-	if w.n > 0 {
-		a.pool(w, float64(lo), float64(hi))
+	if n > 0 {
+		w.n = n
+		flo, fhi := math.Inf(1), math.Inf(-1)
+		if need.extent {
+			flo, fhi = float64(lo), float64(hi)
+		}
+		a.pool(w, flo, fhi)
 	}
-	a.Count += w.n
+	a.Count += n
 }
 
 // floatKey is x's bits for counting distinct values: -0 as 0, every NaN
