@@ -66,6 +66,8 @@ type Options struct {
 	// Progress, when set, is called at the start of each pass over the data
 	// and after each batch, from the goroutine that calls Run.
 	Progress func(Progress)
+
+	spill spillMode // when to copy the first pass for the second; tests force it
 }
 
 // Run evaluates policy p on the data at paths (files, globs, or "-" for
@@ -191,7 +193,19 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 	}
 	files := set.Files()
 	refuse := func(b *source.Batch) error { return pl.refuseUntyped(b, files) }
-	broken, err := scan(ctx, set, pl.columns, nil, lanes, workers, refuse, track.pass(1, false))
+	sp := pl.startSpill(set, lanes[0], opts)
+	defer sp.Close()
+	after := track.pass(1, false)
+	if sp != nil {
+		progress := after
+		after = func(b *source.Batch) {
+			sp.Write(b)
+			if progress != nil {
+				progress(b)
+			}
+		}
+	}
+	broken, err := scan(ctx, set.ScanSome, pl.columns, nil, lanes, workers, refuse, after)
 	if err != nil {
 		return nil, err
 	}
@@ -220,9 +234,15 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 			accs[i] = pass2[0][i]
 		}
 	}
+	read := set.ScanSome
+	if second && sp != nil && sp.Finish() == nil {
+		read = sp.ScanSome
+	} else {
+		_ = sp.Close() // not needed, or failed to write: free its disk now
+	}
 	if second {
 		skip := pl.idle(pass2[0])
-		again, err := scan(ctx, set, pl.columns, skip, pass2, workers, nil, track.pass(2, false))
+		again, err := scan(ctx, read, pl.columns, skip, pass2, workers, nil, track.pass(2, false))
 		if err != nil {
 			return nil, fmt.Errorf("second pass: %w", err)
 		}
@@ -237,6 +257,7 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 			}
 		}
 	}
+	_ = sp.Close() // frees its disk now; a copy already unnamed cannot fail to be removed
 	if opts.Gate != nil && !slices.ContainsFunc(broken, func(err error) bool { return err != nil }) {
 		n := 2
 		if second {
@@ -282,9 +303,13 @@ func (pl *plan) idle(accs []checks.Accumulator) []bool {
 	return skip
 }
 
-// scan reads the data once and feeds every batch to the accumulators:
-// lanes[l][i] is lane l's accumulator of check i (nil: the check sits this
-// pass out). Batch k goes to lane k mod len(lanes); worker w serves the
+// reader is how a pass reads the data: source.Set.ScanSome, or
+// source.Spill.ScanSome for a second pass that reads the first one's copy.
+type reader func(ctx context.Context, columns []string, skip []bool, fn func(*source.Batch) error) error
+
+// scan reads the data once, through read, and feeds every batch to the
+// accumulators: lanes[l][i] is lane l's accumulator of check i (nil: the
+// check sits this pass out). Batch k goes to lane k mod len(lanes); worker w serves the
 // lanes l with l mod workers = w, so a lane sees its batches in order
 // whatever the number of workers. skip marks columns no accumulator reads
 // (see source.Set.ScanSome). refuse, when set, sees each batch first, in
@@ -294,7 +319,7 @@ func (pl *plan) idle(accs []checks.Accumulator) []bool {
 // scan returns, per check, the error of the first batch (in data order) on
 // which its Observe failed; such a check sees no more batches in that lane
 // and its accumulators must not be merged.
-func scan(ctx context.Context, set *source.Set, columns []string, skip []bool, lanes [][]checks.Accumulator, workers int, refuse func(*source.Batch) error, after func(*source.Batch)) ([]error, error) {
+func scan(ctx context.Context, read reader, columns []string, skip []bool, lanes [][]checks.Accumulator, workers int, refuse func(*source.Batch) error, after func(*source.Batch)) ([]error, error) {
 	faults := make([][]fault, len(lanes))
 	for l := range faults {
 		faults[l] = make([]fault, len(lanes[l]))
@@ -320,7 +345,7 @@ func scan(ctx context.Context, set *source.Set, columns []string, skip []bool, l
 		}
 	}
 	k := 0
-	err := set.ScanSome(ctx, columns, skip, func(b *source.Batch) error {
+	err := read(ctx, columns, skip, func(b *source.Batch) error {
 		if err := ctx.Err(); err != nil {
 			return err
 		}

@@ -13,8 +13,11 @@ import (
 )
 
 // TestWorkersAgree runs every conformance case in 7-row batches on one
-// worker and on three: the lanes see the same batches either way, so the
-// results must be identical to the last digit and the last sampled row.
+// worker and on three, and on three with the second pass reading the
+// first pass's copy of the data (a spill, forced on whatever the format)
+// and reading the data again (forced off): the lanes see the same batches
+// either way, so the results must be identical to the last digit and the
+// last sampled row.
 func TestWorkersAgree(t *testing.T) {
 	paths, err := filepath.Glob("../testdata/conformance/*/policy.yaml")
 	if err != nil || len(paths) == 0 {
@@ -26,12 +29,10 @@ func TestWorkersAgree(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			run := func(workers int) []byte {
+			run := func(opts engine.Options) []byte {
 				t.Helper()
-				rep, err := engine.Run(context.Background(), pol, nil, engine.Options{
-					Workers: workers,
-					Source:  source.Options{BatchRows: 7},
-				})
+				opts.Source = source.Options{BatchRows: 7}
+				rep, err := engine.Run(context.Background(), pol, nil, opts)
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -41,22 +42,32 @@ func TestWorkersAgree(t *testing.T) {
 				}
 				return out
 			}
-			one, three := run(1), run(3)
-			if !bytes.Equal(one, three) {
-				t.Errorf("results differ between one worker and three:\n%s", firstDifference(one, three))
+			one := run(engine.Options{Workers: 1})
+			for _, tc := range []struct {
+				name string
+				opts engine.Options
+			}{
+				{"three", engine.Options{Workers: 3}},
+				{"three, spill", engine.ForceSpill(engine.Options{Workers: 3}, true)},
+				{"three, no spill", engine.ForceSpill(engine.Options{Workers: 3}, false)},
+				{"one, spill", engine.ForceSpill(engine.Options{Workers: 1}, true)},
+			} {
+				if got := run(tc.opts); !bytes.Equal(one, got) {
+					t.Errorf("results differ between one worker and %s:\n%s", tc.name, firstDifference(one, got, "one", tc.name))
+				}
 			}
 		})
 	}
 }
 
-// firstDifference shows the lines around the first line where a and b
-// differ.
-func firstDifference(a, b []byte) string {
+// firstDifference shows the lines around the first line where a and b,
+// named aName and bName, differ.
+func firstDifference(a, b []byte, aName, bName string) string {
 	al, bl := bytes.Split(a, []byte("\n")), bytes.Split(b, []byte("\n"))
 	for i := range min(len(al), len(bl)) {
 		if !bytes.Equal(al[i], bl[i]) {
 			lo := max(0, i-3)
-			return "one:\n" + string(bytes.Join(al[lo:i+1], []byte("\n"))) + "\nthree:\n" + string(bytes.Join(bl[lo:i+1], []byte("\n")))
+			return aName + ":\n" + string(bytes.Join(al[lo:i+1], []byte("\n"))) + "\n" + bName + ":\n" + string(bytes.Join(bl[lo:i+1], []byte("\n")))
 		}
 	}
 	return "one is a prefix of the other"

@@ -1,0 +1,66 @@
+package engine
+
+import (
+	"slices"
+
+	"github.com/assay-project/assay/checks"
+	"github.com/assay-project/assay/engine/source"
+)
+
+// spillMode says when the first pass keeps a copy of the columns a second
+// pass may read (see source.Spill).
+type spillMode int
+
+const (
+	spillAuto   spillMode = iota // when the data has a CSV input (see wantSpill)
+	spillAlways                  // whatever the formats
+	spillNever                   // the second pass reads the data again
+)
+
+// wantSpill tells whether the first pass over set should keep a copy for
+// the second. It pays for CSV inputs (standard input included), whose
+// second reading would split and parse every line again; Parquet and Arrow
+// decode the few columns a second pass reads about as fast as the copy
+// would be written and read back.
+func wantSpill(set *source.Set, mode spillMode) bool {
+	switch mode {
+	case spillAlways:
+		return true
+	case spillNever:
+		return false
+	}
+	return slices.ContainsFunc(set.Files(), func(f source.File) bool { return f.Format == source.CSV })
+}
+
+// startSpill starts the copy that the first pass writes for the second:
+// the columns that the checks which may ask for a second pass read (a
+// checks.Rescanner's accumulator, accs being one lane's), with the key
+// columns listed rows show. It returns nil when no check may ask, when
+// wantSpill says no, or when the file cannot be made (the second pass then
+// reads the data again).
+func (pl *plan) startSpill(set *source.Set, accs []checks.Accumulator, opts Options) *source.Spill {
+	if !wantSpill(set, opts.spill) {
+		return nil
+	}
+	may := make([]checks.Accumulator, len(accs))
+	for i, a := range accs {
+		if _, ok := a.(checks.Rescanner); ok {
+			may[i] = a
+		}
+	}
+	if !slices.ContainsFunc(may, func(a checks.Accumulator) bool { return a != nil }) {
+		return nil
+	}
+	var keep []bool
+	if skip := pl.idle(may); skip != nil {
+		keep = make([]bool, len(skip))
+		for k, s := range skip {
+			keep[k] = !s
+		}
+	}
+	sp, err := set.NewSpill(pl.columns, keep)
+	if err != nil {
+		return nil
+	}
+	return sp
+}
