@@ -3,6 +3,7 @@ package checks
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/apache/arrow-go/v18/arrow"
 
@@ -194,24 +195,29 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 	if a.check.keepsRows() {
 		rows = make([]int64, 0, values)
 	}
-	eachNumber(arr, &a.scratch, func(i int, x float64) {
+	v := validOf(arr)
+	lo, hi := a.Min, a.Max
+	for i, x := range numbers(arr, &a.scratch) {
 		switch {
+		case !v.at(i):
+			continue
 		case math.IsNaN(x):
 			a.NaN++
-			return
+			continue
 		case math.IsInf(x, -1):
 			a.NegInf++
-			return
+			continue
 		case math.IsInf(x, 1):
 			a.PosInf++
-			return
+			continue
 		}
-		a.Min, a.Max = min(a.Min, x), max(a.Max, x)
+		lo, hi = min(lo, x), max(hi, x)
 		finite = append(finite, x)
 		if rows != nil {
 			rows = append(rows, b.Row(i))
 		}
-	})
+	}
+	a.Min, a.Max = lo, hi
 	switch {
 	case a.Moments != nil:
 		a.vals = finite
@@ -226,23 +232,20 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 	return nil
 }
 
-// eachNumber calls f with the index and value of every non-null value of
-// an integer or float array.
-func eachNumber(arr arrow.Array, s *scratch, f func(i int, x float64)) {
-	v := validOf(arr)
+// numbers returns the values of an integer or float array as float64
+// (null slots hold arbitrary values): float64 arrays in place, others
+// converted into s.floats.
+func numbers(arr arrow.Array, s *scratch) []float64 {
 	if classOf(arr.DataType()) == classNumber {
-		for i, x := range float64s(arr, &s.floats) {
-			if v.at(i) {
-				f(i, x)
-			}
-		}
-		return
+		return float64s(arr, &s.floats)
 	}
-	for i, x := range int64s(arr, &s.ints) {
-		if v.at(i) {
-			f(i, float64(x))
-		}
+	xs := int64s(arr, &s.ints)
+	out := slices.Grow(s.floats[:0], len(xs))
+	for _, x := range xs {
+		out = append(out, float64(x))
 	}
+	s.floats = out
+	return out
 }
 
 // Merge folds other's counts, moments and values into a; other's values

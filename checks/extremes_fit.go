@@ -37,6 +37,13 @@ type extFinding struct {
 	// score; low says whether a flagged finite value lies on the low side.
 	match func(x float64, row int64) (bool, float64)
 	low   func(x float64) bool
+	// calmLo and calmHi bound finite values match does not flag, so that
+	// the second pass need not ask it about them: empty (calmLo > calmHi)
+	// unless the method's rule is a threshold whose Outside is monotone in
+	// the distance from the center, and neither bound is outside. Any
+	// value between them then lies between the center and a bound on its
+	// side, and is not outside either.
+	calmLo, calmHi float64
 }
 
 // minValues is the fewest finite values each method can be fitted on.
@@ -60,7 +67,7 @@ func (c *extremesCheck) analyse(st *ExtremesState) *extFinding {
 	m := c.spec.Method
 	fin := st.finite()
 	infs := st.NegInf + st.PosInf
-	f := &extFinding{n: fin + infs, count: infs, below: st.NegInf, above: st.PosInf}
+	f := &extFinding{n: fin + infs, count: infs, below: st.NegInf, above: st.PosInf, calmLo: math.Inf(1), calmHi: math.Inf(-1)}
 	f.ext = report.Extremes{Method: string(m), N: f.n, NaN: st.NaN, Score: scoreNames[m],
 		Center: report.Number(math.NaN()), Scale: report.Number(math.NaN())}
 	if st.NaN > 0 {
@@ -157,6 +164,7 @@ func (c *extremesCheck) byThreshold(st *ExtremesState, f *extFinding) {
 	if lo+hi == st.Tally.Len() {
 		box.WhiskerLo, box.WhiskerHi = report.Number(math.NaN()), report.Number(math.NaN())
 	}
+	f.calmLo, f.calmHi = whiskLo, whiskHi
 	f.settle(lo, hi, box, valueHistogram(st.Tally.All(), st.Min, st.Max, nil), func(x float64, _ int64) (bool, float64) {
 		return r.Outside(x), r.Score(x)
 	})
@@ -303,9 +311,24 @@ func (c *extremesCheck) zscore(st *ExtremesState, f *extFinding) {
 	f.fitted = fmt.Sprintf("with |z| beyond %s (mean %s, sd %s)", number(c.spec.K), sig(z.Mean), sig(sd))
 	f.setScale(z.Mean, sd, lower, upper)
 	f.match = withInf(func(x float64, _ int64) (bool, float64) { return z.Outside(x), z.Score(x) })
+	f.calmLo, f.calmHi = calmBound(lower, z), calmBound(upper, z)
 	if z.Outside(st.Min) || z.Outside(st.Max) {
 		f.count = -1
 	}
+}
+
+// calmBound is x, a threshold of z, moved towards the mean until z does
+// not flag it (computed, mean ± k sd may fall a rounding beyond the
+// cutoff), or the mean itself, which z never flags, if a few steps do not
+// do. A NaN x stays NaN, which leaves the calm interval empty.
+func calmBound(x float64, z outlier.ZScore) float64 {
+	for range 8 {
+		if !z.Outside(x) {
+			return x
+		}
+		x = math.Nextafter(x, z.Mean)
+	}
+	return z.Mean
 }
 
 // tail fits the column's family (the best of its candidates by AIC, then
@@ -519,34 +542,49 @@ type extremesLister struct {
 	lo, hi float64
 }
 
-// Observe lists the batch's extreme values.
+// Observe lists the batch's extreme values. Values between calmLo and
+// calmHi are only binned.
 func (l *extremesLister) Observe(b *source.Batch) error {
 	arr, err := l.check.col.in(b)
 	if err != nil {
 		return err
 	}
-	cols := []int{l.check.col.index}
-	f := l.found
-	eachNumber(arr, &l.scratch, func(i int, x float64) {
-		if math.IsNaN(x) {
-			return
+	v := validOf(arr)
+	calmLo, calmHi := l.found.calmLo, l.found.calmHi
+	for i, x := range numbers(arr, &l.scratch) {
+		switch {
+		case !v.at(i):
+		case x >= calmLo && x <= calmHi:
+			if l.bins != nil {
+				l.bins[binOf(x, l.lo, l.hi, len(l.bins))]++
+			}
+		default:
+			l.judge(b, i, x)
 		}
-		if l.bins != nil && !math.IsInf(x, 0) {
-			l.bins[binOf(x, l.lo, l.hi, len(l.bins))]++
-		}
-		row := b.Row(i)
-		hit, score := f.match(x, row)
-		if !hit {
-			return
-		}
-		if math.IsInf(x, -1) || (!math.IsInf(x, 1) && f.low(x)) {
-			l.below++
-		} else {
-			l.above++
-		}
-		l.listing.Add(score, row, func() report.Row { return RowAt(l.check.env, b, i, cols) })
-	})
+	}
 	return nil
+}
+
+// judge bins the value x of row i of batch b and lists it if it is
+// extreme.
+func (l *extremesLister) judge(b *source.Batch, i int, x float64) {
+	if math.IsNaN(x) {
+		return
+	}
+	if l.bins != nil && !math.IsInf(x, 0) {
+		l.bins[binOf(x, l.lo, l.hi, len(l.bins))]++
+	}
+	row := b.Row(i)
+	hit, score := l.found.match(x, row)
+	if !hit {
+		return
+	}
+	if math.IsInf(x, -1) || (!math.IsInf(x, 1) && l.found.low(x)) {
+		l.below++
+	} else {
+		l.above++
+	}
+	l.listing.Add(score, row, func() report.Row { return RowAt(l.check.env, b, i, []int{l.check.col.index}) })
 }
 
 // Merge adds other's counts and listing to l.

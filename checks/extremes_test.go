@@ -537,3 +537,47 @@ func batchesOf(t *testing.T, mem memory.Allocator, xs []float64, size int) []*so
 	}
 	return bs
 }
+
+// TestExtremesCalm: no value between a finding's calmLo and calmHi, which
+// the second pass does not ask match about, is one match flags; probed at
+// the data, the thresholds and the calm bounds and their float64
+// neighbours. The interval is not empty for the threshold methods, so the
+// second pass does take the short way.
+func TestExtremesCalm(t *testing.T) {
+	mem := checkedMem(t)
+	rng := rand.New(rand.NewPCG(8, 9))
+	measured := make([]float64, 5000)
+	for i := range measured {
+		measured[i] = math.Round((18+6*rng.NormFloat64())*1000) / 1000
+	}
+	data := map[string][]float64{
+		"planted normal": plantedNormal(1000, 3, map[int]float64{7: 90, 300: 12, 512: 75}),
+		"measured":       measured,
+		"all equal":      slices.Repeat([]float64{2.5}, 50),
+		"two values":     {1, 1, 1, 1, 1, 1, 1, 1, 9},
+	}
+	for _, m := range []rules.ExtremesMethod{rules.ExtremesTukey, rules.ExtremesZScore, rules.ExtremesRobustZ} {
+		for name, xs := range data {
+			t.Run(string(m)+"/"+name, func(t *testing.T) {
+				bs := batchesOf(t, mem, xs, 300)
+				a := compile(t, newRule(extSpec(m), atMost(0.05), "x"), envOf(bs[0], 20)).NewAccumulator().(*ExtremesAccumulator)
+				for _, b := range bs {
+					observe(t, a, b)
+				}
+				f := a.finding()
+				if !(f.calmLo <= f.calmHi) {
+					t.Fatalf("calm interval [%v, %v] is empty", f.calmLo, f.calmHi)
+				}
+				probes := slices.Clone(xs)
+				for _, p := range []float64{f.estimates["lower"], f.estimates["upper"], f.calmLo, f.calmHi} {
+					probes = append(probes, p, math.Nextafter(p, math.Inf(-1)), math.Nextafter(p, math.Inf(1)))
+				}
+				for _, x := range probes {
+					if hit, _ := f.match(x, 0); hit && x >= f.calmLo && x <= f.calmHi {
+						t.Errorf("%v is flagged but within the calm interval [%v, %v]", x, f.calmLo, f.calmHi)
+					}
+				}
+			})
+		}
+	}
+}
