@@ -16,7 +16,6 @@ import (
 	"github.com/apache/arrow-go/v18/parquet/compress"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 
-	"github.com/assay-project/assay/bench/refdata"
 	"github.com/assay-project/assay/engine"
 	"github.com/assay-project/assay/rules"
 )
@@ -131,25 +130,14 @@ func BenchmarkRunReference(b *testing.B) {
 		b.Fatal(err)
 	}
 	for _, format := range []string{"parquet", "csv"} {
-		path := filepath.Join(dir, "ref."+format)
-		write := refdata.WriteParquet
-		if format == "csv" {
-			write = refdata.WriteCSV
-		}
-		if err := write(path, rows, 1); err != nil {
-			b.Fatal(err)
-		}
-		st, err := os.Stat(path)
-		if err != nil {
-			b.Fatal(err)
-		}
+		path, size := engine.WriteReference(b, dir, format, rows)
 		for _, workers := range []int{1, 0} {
 			name := fmt.Sprintf("%s/workers=%d", format, workers)
 			if workers == 0 {
 				name = fmt.Sprintf("%s/workers=GOMAXPROCS(%d)", format, runtime.GOMAXPROCS(0))
 			}
 			b.Run(name, func(b *testing.B) {
-				b.SetBytes(st.Size())
+				b.SetBytes(size)
 				b.ReportAllocs()
 				for b.Loop() {
 					rep, err := engine.Run(context.Background(), pol, []string{path}, engine.Options{Workers: workers})

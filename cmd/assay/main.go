@@ -147,6 +147,7 @@ type checkFlags struct {
 	accepted      string
 	rejected      string
 	quiet         bool
+	tempDir       string
 }
 
 // formats are the report formats --format and --report take.
@@ -190,6 +191,7 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 	fs.StringVar(&f.accepted, "accepted", "", "write the rows that break no row-level rule to this .csv or .parquet file (atomically)")
 	fs.StringVar(&f.rejected, "rejected", "", "write the rows that break a row-level rule to this .csv or .parquet file (atomically), with a column naming the rules")
 	fs.BoolVar(&f.quiet, "quiet", false, "no progress bar and no line saying where the rows went, on standard error")
+	fs.StringVar(&f.tempDir, "temp-dir", "", "folder for temporary files (the copy of standard input, the columns a second pass rereads); default the system's")
 	fs.Usage = func() {
 		fmt.Fprintln(stderr, "usage: assay check POLICY [DATA...] [flags]\n\nflags:")
 		fs.PrintDefaults()
@@ -218,6 +220,7 @@ func runCheck(ctx context.Context, args []string, stdin io.Reader, stdout, stder
 		opts.MaxRowsListed = -1
 	}
 	opts.Source.Stdin = stdin
+	opts.Source.TempDir = f.tempDir
 	g, err := startGate(f.accepted, f.rejected)
 	if err != nil {
 		return trouble(stderr, err)
@@ -305,6 +308,11 @@ func (f *checkFlags) validate() error {
 	}
 	if f.maxRowsListed < 0 {
 		return fmt.Errorf("--max-rows-listed must be 0 or more, not %d", f.maxRowsListed)
+	}
+	if f.tempDir != "" {
+		if fi, err := os.Stat(f.tempDir); err != nil || !fi.IsDir() {
+			return fmt.Errorf("--temp-dir %s is not a folder", f.tempDir)
+		}
 	}
 	paths := map[string]string{} // cleaned path -> the flag that names it
 	claim := func(flagText, path string) error {

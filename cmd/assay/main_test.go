@@ -82,6 +82,7 @@ func TestExitCodes(t *testing.T) {
 		{"glob", "", []string{"check", pol, "testdata/soil/batches/*.csv"}, 0, []string{"13 rows from 2 files"}},
 		{"output - is standard output", "", []string{"check", pol, "testdata/soil/good.csv", "--output", "-"}, 0, []string{"verdict: PASS"}},
 		{"no rows listed", "", []string{"check", "--max-rows-listed", "0", pol, "testdata/soil/bad.csv"}, 1, []string{"verdict: FAIL"}},
+		{"temporary folder", string(good), []string{"check", "--temp-dir", os.TempDir(), pol, "-"}, 0, []string{"10 rows"}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -167,6 +168,7 @@ func TestTrouble(t *testing.T) {
 		{"unknown format", []string{"check", "--format", "xml", pol, "testdata/soil/good.csv"}, []string{"--format"}},
 		{"expression types without data", []string{"explain", "testdata/soil/mixed.yaml"}, []string{"mixed.yaml:7:18", "mismatched types number and string"}},
 		{"unknown flag", []string{"check", "--fast", pol}, []string{"-fast"}},
+		{"temporary folder absent", []string{"check", "--temp-dir", filepath.Join(dir, "absent"), pol, "testdata/soil/good.csv"}, []string{"--temp-dir", "absent is not a folder"}},
 		{"unknown command", []string{"chek"}, []string{`unknown command "chek"`}},
 	}
 	for _, tt := range tests {

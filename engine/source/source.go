@@ -54,7 +54,7 @@ type Options struct {
 	ParseWorkers int
 	SampleRows   int // CSV rows per file used to infer types; 0 means DefaultSampleRows
 
-	TempDir   string           // folder for the copy of standard input; "" means os.TempDir()
+	TempDir   string           // folder for temporary files (the copy of standard input, spills); "" means os.TempDir()
 	Stdin     io.Reader        // what "-" reads; nil means os.Stdin
 	Allocator memory.Allocator // nil means memory.DefaultAllocator
 
