@@ -2,6 +2,7 @@ package source
 
 import (
 	"bufio"
+	"bytes"
 	"context"
 	"encoding/csv"
 	"fmt"
@@ -9,8 +10,11 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"runtime"
+	"slices"
 	"strconv"
 	"sync"
+	"syscall"
 	"testing"
 	"time"
 
@@ -213,6 +217,34 @@ func reportRates(b *testing.B, rows int64) {
 	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
 }
 
+// cpuTime returns the CPU time the process has used, in user and system
+// mode, on all its threads.
+func cpuTime(b *testing.B) time.Duration {
+	b.Helper()
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		b.Fatal(err)
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
+}
+
+// startCPU collects the garbage of the benchmark's setup and returns the
+// CPU time used so far, for reportCPU.
+func startCPU(b *testing.B) time.Duration {
+	b.Helper()
+	runtime.GC()
+	return cpuTime(b)
+}
+
+// reportCPU adds the CPU time per operation since since, a startCPU taken
+// before the benchmark loop: on a machine shared with other work it varies
+// less than the elapsed time, which counts the time the benchmark waits for
+// a core.
+func reportCPU(b *testing.B, since time.Duration) {
+	b.Helper()
+	b.ReportMetric(float64(cpuTime(b)-since)/float64(b.N), "cpu-ns/op")
+}
+
 // BenchmarkCSVSource reads the CSV file with this package: Open (header and
 // a 10000-row sample for inference) and a full Scan of all columns.
 func BenchmarkCSVSource(b *testing.B) {
@@ -233,6 +265,7 @@ func benchSourceWith(b *testing.B, path string, want *arrow.Schema, opts Options
 	b.SetBytes(fileSize(b, path))
 	b.ReportAllocs()
 	var rows int64
+	cpu := startCPU(b)
 	for b.Loop() {
 		s, err := Open([]string{path}, opts)
 		if err != nil {
@@ -248,6 +281,7 @@ func benchSourceWith(b *testing.B, path string, want *arrow.Schema, opts Options
 			b.Fatalf("schema %v; want %v", got, want)
 		}
 	}
+	reportCPU(b, cpu)
 	reportRates(b, rows)
 }
 
@@ -414,6 +448,140 @@ func BenchmarkCSVRef(b *testing.B) {
 	for _, workers := range []int{1, 2, 4} {
 		b.Run(fmt.Sprintf("workers=%d", workers), func(b *testing.B) {
 			benchSourceWith(b, refCSV, nil, Options{ParseWorkers: workers})
+		})
+	}
+}
+
+// benchText returns the text of refCSV when it has been made, else of the
+// generated benchmark CSV, read into memory.
+func benchText(b *testing.B) []byte {
+	b.Helper()
+	path := refCSV
+	if _, err := os.Stat(path); err != nil {
+		path, _ = benchFiles(b)
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return data
+}
+
+// BenchmarkCSVSplit cuts a CSV text held in memory into records and fields
+// with the splitter alone: no column is parsed.
+func BenchmarkCSVSplit(b *testing.B) {
+	data := benchText(b)
+	text := make([]byte, len(data))
+	b.SetBytes(int64(len(data)))
+	b.ReportAllocs()
+	var rows int64
+	cpu := startCPU(b)
+	for b.Loop() {
+		copy(text, data) // undoing doubled quotes rewrites the text
+		sp := newSplitter(nil, ',', '"', true, 1)
+		sp.reset(text, true, 1)
+		rows = 0
+		for {
+			ok, err := sp.next()
+			if err != nil {
+				b.Fatal(err)
+			}
+			if !ok {
+				break
+			}
+			rows++
+		}
+	}
+	reportCPU(b, cpu)
+	reportRates(b, rows-1)
+}
+
+// BenchmarkCSVCut cuts a CSV text held in memory into pieces of 65536
+// records, as the goroutine that feeds the parse workers does.
+func BenchmarkCSVCut(b *testing.B) {
+	data := benchText(b)
+	b.SetBytes(int64(len(data)))
+	b.ReportAllocs()
+	var rows int64
+	cpu := startCPU(b)
+	for b.Loop() {
+		c := &csvCutter{r: bytes.NewReader(data), quote: '"', quotes: true, line: 1, read: &counter{}}
+		rows = 0
+		for p := c.next(DefaultBatchRows); p != nil; p = c.next(DefaultBatchRows) {
+			rows += int64(p.want)
+			c.free = append(c.free, p.data[:0])
+		}
+		if c.failed {
+			b.Fatal("the cutter gave up")
+		}
+	}
+	reportCPU(b, cpu)
+	reportRates(b, rows-1)
+}
+
+// benchCells returns the cells of the columns of the benchmark text whose
+// names are given (of its first 200,000 rows), as slices of one buffer in
+// which a comma follows each, as cells are slices of the splitter's buffer.
+func benchCells(b *testing.B, names ...string) [][]byte {
+	b.Helper()
+	recs, err := csv.NewReader(bytes.NewReader(benchText(b))).ReadAll()
+	if err != nil {
+		b.Fatal(err)
+	}
+	var text []byte
+	var ends []int
+	for j, name := range recs[0] {
+		if slices.Contains(names, name) {
+			for _, rec := range recs[1:min(len(recs), 200_001)] {
+				text = append(text, rec[j]...)
+				ends = append(ends, len(text))
+				text = append(text, ',')
+			}
+		}
+	}
+	if len(ends) == 0 {
+		b.Skipf("no column named %v", names)
+	}
+	cells := make([][]byte, len(ends))
+	start := 0
+	for k, end := range ends {
+		cells[k] = text[start:end]
+		start = end + 1
+	}
+	return cells
+}
+
+// BenchmarkCellParsers parses the cells of measurement columns of the
+// benchmark text as numbers and integers (bytes are those of the cells).
+func BenchmarkCellParsers(b *testing.B) {
+	for _, tt := range []struct {
+		name  string
+		cols  []string
+		parse func([]byte) bool
+	}{
+		{"float", []string{"temp_c", "humidity_pct", "pressure_hpa", "load_kwh", "wait_s", "cost_eur", "weight_kg", "score"},
+			func(c []byte) bool { _, ok := parseFloat(c); return ok }},
+		{"int", []string{"id", "items", "humidity"}, func(c []byte) bool { _, ok := parseInt(c); return ok }},
+		{"timestamp", []string{"ts", "at"}, func(c []byte) bool { _, ok := parseTimestamp(c); return ok }},
+	} {
+		b.Run(tt.name, func(b *testing.B) {
+			cells := benchCells(b, tt.cols...)
+			var size int64
+			for _, c := range cells {
+				size += int64(len(c))
+			}
+			b.SetBytes(size)
+			b.ReportAllocs()
+			cpu := startCPU(b)
+			for b.Loop() {
+				for _, c := range cells {
+					if !tt.parse(c) && len(c) > 0 {
+						b.Fatalf("%q does not parse", c)
+					}
+				}
+			}
+			reportCPU(b, cpu)
+			b.ReportMetric(float64(len(cells))*float64(b.N)/b.Elapsed().Seconds(), "cells/s")
 		})
 	}
 }

@@ -212,19 +212,7 @@ func FuzzCells(f *testing.F) {
 	}
 	f.Fuzz(func(t *testing.T, s string) {
 		b := []byte(s)
-		v, ok := parseFloat(b)
-		want, err := strconv.ParseFloat(s, 64)
-		switch {
-		case ok != (numberRE.MatchString(s) && err == nil):
-			t.Fatalf("parseFloat(%q) ok = %v; grammar %v, strconv error %v", s, ok, numberRE.MatchString(s), err)
-		case ok && math.Float64bits(v) != math.Float64bits(want):
-			t.Fatalf("parseFloat(%q) = %v; strconv gives %v", s, v, want)
-		}
-		i, ok := parseInt(b)
-		wantI, err := strconv.ParseInt(s, 10, 64)
-		if ok != (err == nil && !strings.Contains(s, "_")) || ok && i != wantI {
-			t.Fatalf("parseInt(%q) = %d, %v; strconv gives %d, %v", s, i, ok, wantI, err)
-		}
+		checkNumber(t, b)
 		if us, ok := parseTimestamp(b); ok {
 			norm := []byte(strings.ToUpper(s))
 			norm[10] = 'T'
@@ -240,5 +228,90 @@ func FuzzCells(f *testing.F) {
 				t.Fatalf("parseTimestamp(%q) = %d; time gives %d", s, us, wantUs)
 			}
 		}
+	})
+}
+
+// inBuffer returns s as a slice of a larger buffer in which tail follows
+// it, as cells are slices of the splitter's buffer: the short-cell path
+// loads eight bytes from the cell's start whenever the buffer has them.
+func inBuffer(s string, tail []byte) []byte {
+	buf := append([]byte(s), tail...)
+	return buf[:len(s):len(buf)]
+}
+
+// checkNumber compares parseFloat and parseInt on b with strconv: the
+// grammar is numberRE (a subset of strconv's syntax), the values must be
+// bit-identical.
+func checkNumber(t *testing.T, b []byte) {
+	t.Helper()
+	s := string(b)
+	v, ok := parseFloat(b)
+	want, err := strconv.ParseFloat(s, 64)
+	switch {
+	case ok != (numberRE.MatchString(s) && err == nil):
+		t.Fatalf("parseFloat(%q) ok = %v; grammar %v, strconv error %v", s, ok, numberRE.MatchString(s), err)
+	case ok && math.Float64bits(v) != math.Float64bits(want):
+		t.Fatalf("parseFloat(%q) = %v (%#x); strconv gives %v (%#x)", s, v, math.Float64bits(v), want, math.Float64bits(want))
+	}
+	i, ok := parseInt(b)
+	wantI, err := strconv.ParseInt(s, 10, 64)
+	if ok != (err == nil && !strings.Contains(s, "_")) || ok && i != wantI {
+		t.Fatalf("parseInt(%q) = %d, %v; strconv gives %d, %v", s, i, ok, wantI, err)
+	}
+}
+
+// TestShortCells checks the eight-byte path of the number parsers on cells
+// of one to nine bytes, followed in their buffer by no byte, by digits, by
+// a delimiter and by a point, so that loads past the cell show.
+func TestShortCells(t *testing.T) {
+	cells := []string{"0", "7", "-7", "+7", "-0", "00", ".5", "5.", "-.5", "+5.", ".", "-.", "+", "-", "..",
+		"1.2.3", "12345678", "99999999", "-9999999", "9999999.", ".9999999", "1234.567", "0.000001", "-0.00001",
+		"123456789", "1234567.8", "-1234567", "1e5", "1E-2", "-1e+3", "12-3", "1+2", "1 2", " 12", "12 ", "1,5",
+		"1/2", "1:2", "١٢", "0x1f", "NaN", "inf", "12\x00", "\xff", "/", ":", "9.", "-9.9", "+.0", "0.0.",
+		"1234.5678", "-123.4567", "00000000", "-0000000", "1.000000"}
+	tails := [][]byte{nil, []byte("12345678"), []byte(",x,y,z,w"), []byte("........"), []byte("-+eE\n\r\"0")}
+	for _, c := range cells {
+		for _, tail := range tails {
+			checkNumber(t, inBuffer(c, tail))
+		}
+	}
+}
+
+// TestEightDigits checks the word arithmetic of the short-cell path on
+// every value of some digit patterns and on bytes around the digits.
+func TestEightDigits(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for range 100000 {
+		v := rng.Uint64N(100000000)
+		s := fmt.Sprintf("%08d", v)
+		w := uint64(0)
+		for k := 7; k >= 0; k-- {
+			w = w<<8 | uint64(s[k])
+		}
+		if !isEightDigits(w) || eightDigits(w) != v {
+			t.Fatalf("%q: isEightDigits %v, eightDigits %d", s, isEightDigits(w), eightDigits(w))
+		}
+		// Any non-digit byte fails the test.
+		k := rng.IntN(8)
+		for c := range 256 {
+			bad := w&^(0xff<<(8*k)) | uint64(c)<<(8*k)
+			if isEightDigits(bad) != (c >= '0' && c <= '9') {
+				t.Fatalf("%q with byte %d = %#x: isEightDigits %v", s, k, c, isEightDigits(bad))
+			}
+		}
+	}
+}
+
+// FuzzNumbers compares the number parsers with strconv on arbitrary texts
+// placed in a buffer before arbitrary bytes: they must accept exactly the
+// texts of the number and integer grammars and give bit-identical values.
+func FuzzNumbers(f *testing.F) {
+	for _, s := range []string{"1", "-1.5", ".5", "5.", "-.5", "1234.567", "12345678", "99999999", "1e5",
+		"0.1", "9007199254740993", "1.7976931348623157e308", "4.9e-324", "9223372036854775808", "1.2.3", "+", "."} {
+		f.Add(s, []byte(",1234567"))
+		f.Add(s, []byte(nil))
+	}
+	f.Fuzz(func(t *testing.T, s string, tail []byte) {
+		checkNumber(t, inBuffer(s, tail))
 	})
 }

@@ -81,27 +81,32 @@ func newColumn(k kind, nulls *nullSet, mem memory.Allocator) *column {
 	return c
 }
 
-// start readies the column for a batch of up to rows rows.
+// start readies the column for a batch of up to rows rows. The validity
+// bitmap starts with every cell valid, as most are; append clears the bit
+// of a null cell. The values are written by append, null cells as zero,
+// so their buffers are not cleared first.
 func (c *column) start(rows int) {
 	c.n, c.nullCount, c.invalid = 0, 0, nil
-	c.valid = zeroed(c.mem, int(bitutil.BytesForBits(int64(rows))))
+	c.valid = sized(c.mem, int(bitutil.BytesForBits(int64(rows))))
 	c.bits = c.valid.Bytes()
+	memory.Set(c.bits, 0xff)
 	switch c.kind {
 	case kInt, kTimestamp:
-		c.vals = zeroed(c.mem, rows*8)
+		c.vals = sized(c.mem, rows*8)
 		c.i64 = arrow.Int64Traits.CastFromBytes(c.vals.Bytes())
 	case kFloat:
-		c.vals = zeroed(c.mem, rows*8)
+		c.vals = sized(c.mem, rows*8)
 		c.f64 = arrow.Float64Traits.CastFromBytes(c.vals.Bytes())
 	case kDate:
-		c.vals = zeroed(c.mem, rows*4)
+		c.vals = sized(c.mem, rows*4)
 		c.i32 = arrow.Int32Traits.CastFromBytes(c.vals.Bytes())
 	case kBool:
 		c.vals = zeroed(c.mem, int(bitutil.BytesForBits(int64(rows))))
 		c.vbits = c.vals.Bytes()
 	case kString:
-		c.vals = zeroed(c.mem, (rows+1)*4)
+		c.vals = sized(c.mem, (rows+1)*4)
 		c.i32 = arrow.Int32Traits.CastFromBytes(c.vals.Bytes())
+		c.i32[0] = 0
 		// The previous batch's size is a good guess.
 		size := max(64<<10, c.dlen+c.dlen/8)
 		c.data = memory.NewResizableBuffer(c.mem)
@@ -110,10 +115,16 @@ func (c *column) start(rows int) {
 	}
 }
 
-// zeroed allocates a buffer of n zero bytes.
-func zeroed(mem memory.Allocator, n int) *memory.Buffer {
+// sized allocates a buffer of n bytes, of any content.
+func sized(mem memory.Allocator, n int) *memory.Buffer {
 	b := memory.NewResizableBuffer(mem)
 	b.Resize(n)
+	return b
+}
+
+// zeroed allocates a buffer of n zero bytes.
+func zeroed(mem memory.Allocator, n int) *memory.Buffer {
+	b := sized(mem, n)
 	memory.Set(b.Bytes(), 0)
 	return b
 }
@@ -123,10 +134,7 @@ func (c *column) append(b []byte) {
 	i := c.n
 	c.n++
 	if c.nullFirst && c.nulls.has(b) {
-		c.nullCount++
-		if c.kind == kString {
-			c.i32[i+1] = int32(c.dlen)
-		}
+		c.null(i)
 		return
 	}
 	ok := true
@@ -156,14 +164,29 @@ func (c *column) append(b []byte) {
 		c.i32[i+1] = int32(end)
 	}
 	if !ok {
-		// Null either way; invalid unless a null token.
-		c.nullCount++
+		// Null either way; invalid unless a null token. The parsers
+		// return zero when they fail.
+		c.null(i)
 		if c.nullFirst || !c.nulls.has(b) {
 			c.invalid = append(c.invalid, InvalidCell{Row: i, Text: string(b)})
 		}
-		return
 	}
-	bitutil.SetBit(c.bits, i)
+}
+
+// null makes cell i null, its value zero (or, for strings, empty).
+func (c *column) null(i int) {
+	c.nullCount++
+	bitutil.ClearBit(c.bits, i)
+	switch c.kind {
+	case kInt, kTimestamp:
+		c.i64[i] = 0
+	case kFloat:
+		c.f64[i] = 0
+	case kDate:
+		c.i32[i] = 0
+	case kString:
+		c.i32[i+1] = int32(c.dlen)
+	}
 }
 
 // finish returns the column's cells as an array and lets go of the batch's
@@ -175,6 +198,9 @@ func (c *column) finish() arrow.Array {
 		c.valid = nil
 	} else {
 		c.valid.ResizeNoShrink(int(bitutil.BytesForBits(int64(n))))
+		if tail := n % 8; tail != 0 { // the bits past the last cell
+			c.bits[n/8] &= byte(1)<<tail - 1
+		}
 	}
 	buffers := []*memory.Buffer{c.valid, c.vals}
 	switch c.kind {
