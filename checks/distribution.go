@@ -262,11 +262,14 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 		eachText(arr, func(i int, s string) { a.count(s, b.Row(i)) })
 		return nil
 	}
-	var finite []float64
+	var (
+		finite []float64
+		all    bool
+	)
 	if a.check.col.class == classNumber {
-		finite = observeValues(a, b, validOf(arr), float64s(arr, &a.scratch.floats))
+		finite, all = observeValues(a, b, validOf(arr), float64s(arr, &a.scratch.floats))
 	} else {
-		finite = observeValues(a, b, validOf(arr), int64s(arr, &a.scratch.ints))
+		finite, all = observeValues(a, b, validOf(arr), int64s(arr, &a.scratch.ints))
 	}
 	if len(finite) == 0 {
 		return nil
@@ -276,35 +279,42 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 			return err
 		}
 	}
-	offerRows(a.Sample, b, a.at, finite, arr.Len())
-	return nil
-}
-
-// offerRows offers to s the rows of batch b at places at (P values each
-// in vals), under their data-row numbers; when they are all of the
-// batch's n rows, at is not read.
-func offerRows(s *bottomk.Sample, b *source.Batch, at []int, vals []float64, n int) {
 	switch {
-	case b.Rows != nil:
-		p := s.P()
-		for i, k := range at {
-			s.Offer(b.Rows[k], vals[i*p:(i+1)*p])
+	case all && b.Rows == nil:
+		a.Sample.OfferRun(b.FirstRow, finite)
+	case all:
+		for i, x := range finite {
+			a.Sample.Offer(b.Rows[i], []float64{x})
 		}
-	case len(at) == n:
-		s.OfferRun(b.FirstRow, vals)
+	case b.Rows == nil:
+		a.Sample.OfferAt(b.FirstRow, a.at, finite)
 	default:
-		s.OfferAt(b.FirstRow, at, vals)
+		for i, k := range a.at {
+			a.Sample.Offer(b.Rows[k], finite[i:i+1])
+		}
 	}
+	return nil
 }
 
 // observeValues counts the non-null values of xs (valid says which), as
 // float64, tests each against every candidate's support and returns the
-// finite ones, in a's buffer, their places in a.at: one pass over the
-// array, read in place.
-func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batch, v valid, xs []T) []float64 {
+// finite ones, in a's buffer, and whether they are every value of xs;
+// when they are not, a.at holds the place of each in xs. One pass over
+// the array, read in place.
+func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batch, v valid, xs []T) ([]float64, bool) {
 	finite, at := a.vals[:0], a.at[:0]
+	all := true
+	skip := func(i int) { // value i is left out: the places so far are 0..i-1
+		if all {
+			for k := range i {
+				at = append(at, k)
+			}
+			all = false
+		}
+	}
 	for i, x := range xs {
 		if !v.at(i) {
+			skip(i)
 			continue
 		}
 		a.N++
@@ -315,13 +325,17 @@ func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batc
 			}
 		}
 		if math.IsNaN(f) || math.IsInf(f, 0) {
+			skip(i)
 			continue
 		}
 		a.Min, a.Max = min(a.Min, f), max(a.Max, f)
-		finite, at = append(finite, f), append(at, i)
+		finite = append(finite, f)
+		if !all {
+			at = append(at, i)
+		}
 	}
 	a.vals, a.at = finite, at
-	return finite
+	return finite, all
 }
 
 // count adds one categorical value, of data row row.

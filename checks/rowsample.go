@@ -8,22 +8,18 @@ import (
 )
 
 // keyOrderColumns returns the rows of a sample as P columns, in the order
-// of their sampling keys (ties by row number), so that what is computed
+// of their sampling keys (no two rows share one), so that what is computed
 // from them does not depend on the order the rows came in, and a robust
 // estimate that draws subsets by position does not see the rows in data
 // order.
 func keyOrderColumns(s *bottomk.Sample) [][]float64 {
-	rows := s.Rows()
-	n := len(rows)
-	keys := make([]uint64, n)
-	for i, r := range rows {
-		keys[i] = bottomk.Key(s.Seed(), r)
-	}
+	keys := s.Keys()
+	n := len(keys)
 	order := make([]int, n)
 	for i := range order {
 		order[i] = i
 	}
-	slices.SortFunc(order, func(a, b int) int { return cmp.Or(cmp.Compare(keys[a], keys[b]), cmp.Compare(rows[a], rows[b])) })
+	slices.SortFunc(order, func(a, b int) int { return cmp.Compare(keys[a], keys[b]) })
 	cols := make([][]float64, s.P())
 	for j := range cols {
 		cols[j] = make([]float64, n)

@@ -11,29 +11,33 @@ import (
 	"cmp"
 	"fmt"
 	"math"
-	"math/rand/v2"
+	"math/bits"
 	"slices"
 
 	"github.com/assay-project/assay/checks/internal/order"
 )
 
 // Sample keeps the Size rows of smallest key among the rows offered, P
-// values each. The key of data row r is Key(seed, r); equal keys are
-// ordered by row number, so the sample is a function of the seed and of
-// the set of rows offered. With independent uniform keys every subset of
-// Size rows is equally likely to hold the smallest keys, so the sample is
-// a uniform sample without replacement; samples of disjoint sets of rows
-// merge into the sample of their union (Cohen & Kaplan 2007, "Summarizing
-// data using bottom-k sketches", PODC, sections 2 and 3).
+// values each. The key of data row r is Key(seed, r), a one-to-one
+// function of r, so no two rows share a key and the sample is a function
+// of the seed and of the set of rows offered. With keys that behave as
+// independent uniform draws every subset of Size rows is equally likely
+// to hold the smallest keys, so the sample is a uniform sample without
+// replacement; samples of disjoint sets of rows merge into the sample of
+// their union (Cohen & Kaplan 2007, "Summarizing data using bottom-k
+// sketches", PODC, sections 2 and 3).
 //
 // How it is kept. The rows whose key is at most a threshold (at first
-// every row) are appended to a buffer; when the buffer holds more than
-// about 1.25 Size rows, the key of rank Size is found by radix selection
-// (order.KeysOfRanks) and only the rows up to it are kept, in place, in
-// the order they came; the threshold drops to that key. A row costs one
-// key and one comparison, and after n rows about Size (1 + ln(n/Size))
-// have entered the buffer. Keys are not stored: each selection computes
-// them again from the rows.
+// every row) are appended to a buffer, as their key and values (the row
+// number is read back from the key), and counted in a histogram of their
+// keys' leading bits. When the buffer holds 1.25 Size rows (at least
+// Size + 1024), the rows up to the end of the histogram's bucket that
+// holds the key of rank Size are kept, in place, in the order they came,
+// and the threshold drops to that bucket's end: one pass over the buffer.
+// The first time, and whenever a bucket would keep too many, the key of
+// rank Size is found exactly by radix selection (order.KeysOfRanks)
+// instead. A row costs one key and one comparison, and after n rows about
+// Size (1 + ln(n/Size)) have entered the buffer.
 //
 // The kept rows are in row order when the rows were offered in increasing
 // order (as a lane of the engine offers them) and merged; otherwise they
@@ -45,28 +49,40 @@ import (
 type Sample struct {
 	size, p int
 	seed    uint64
+	base    uint64 // mix(seed), the start of the keys' Weyl sequence
 	seen    int64
 	bound   int    // the buffer's length that triggers a selection
 	limit   uint64 // rows of a larger key are not kept
-	rows    []int64
-	vals    []float64 // p values per kept row
-	// sorted says that rows is ascending.
+	// hist counts the buffered rows by key >> shift, 1 << histBits
+	// buckets that cover [0, limit]; nil before the first selection.
+	hist  []int32
+	shift uint
+	keys  []uint64  // of the buffered rows
+	vals  []float64 // P values per buffered row
+	// parts are the rows of merged samples, each in row order, not yet
+	// merged with the buffer (see consolidate).
+	parts []part
+	// last is the last row buffered; sorted says that the buffered rows
+	// are in row order.
+	last   int64
 	sorted bool
-	// coarse drops the low bits of every key (0 but in tests, which use
-	// it to make ties).
-	coarse uint
 }
 
 // slack is the buffer beyond Size, as a share of it: the rows with a key
 // below the threshold accumulate up to (1 + 1/slack) Size before a
-// selection brings them back to Size. A quarter (own measurement,
-// BenchmarkOffer: a half costs 40% more memory for a few percent less
+// selection brings them back to about Size (own choice by measurement,
+// BenchmarkOfferRun: a half costs 20% more memory for about a tenth less
 // time).
 const slack = 4
 
 // minSlack is the least room beyond Size, so that small samples (a plot's
 // 500 points) do not select every few rows.
 const minSlack = 1024
+
+// histBits is the width of the histogram's bucket index: 4,096 counts
+// (16 KiB). With m rows buffered, a bucket holds about m/4096 of them,
+// which is about how many rows beyond Size a selection by buckets keeps.
+const histBits = 12
 
 // New returns an empty sample of at most size rows of p values each,
 // whose keys come from seed.
@@ -77,31 +93,56 @@ func New(size, p int, seed uint64) (*Sample, error) {
 	if p < 1 {
 		return nil, fmt.Errorf("a sampled row needs at least 1 value, got %d", p)
 	}
-	return &Sample{size: size, p: p, seed: seed, bound: size + max(size/slack, minSlack), limit: math.MaxUint64, sorted: true}, nil
+	return &Sample{size: size, p: p, seed: seed, base: mix(seed), bound: size + max(size/slack, minSlack),
+		limit: math.MaxUint64, sorted: true}, nil
 }
 
-// Key is the sampling key of data row row under seed: the first output of
-// the PCG generator (math/rand/v2, O'Neill 2014, "PCG: a family of simple
-// fast space-efficient statistically good algorithms for random number
-// generation", with the DXSM output function) seeded with seed and the
-// row number, a well-mixed function of the two.
-func Key(seed uint64, row int64) uint64 {
-	var g rand.PCG
-	g.Seed(seed, uint64(row))
-	return g.Uint64()
+// The constants of SplitMix64 (Steele, Lea & Flood 2014, "Fast splittable
+// pseudorandom number generators", OOPSLA, section 3; its output function
+// is Stafford's 2011 "Mix13"), and the inverses modulo 2⁶⁴ of the odd
+// multipliers, which undo the mixing.
+const (
+	gamma    = 0x9e3779b97f4a7c15 // the golden-ratio increment
+	mul1     = 0xbf58476d1ce4e5b9
+	mul2     = 0x94d049bb133111eb
+	gammaInv = 0xf1de83e19937733d
+	mul1Inv  = 0x96de1b173f119089
+	mul2Inv  = 0x319642b2d24d8ec3
+)
+
+// mix is SplitMix64's output function, a bijection of the 64-bit words.
+func mix(z uint64) uint64 {
+	z = (z ^ z>>30) * mul1
+	z = (z ^ z>>27) * mul2
+	return z ^ z>>31
 }
+
+// unmix inverts mix: each xorshift x ^ x>>s (s >= 22) is undone by
+// x ^ x>>s ^ x>>2s, each product by the inverse multiplier.
+func unmix(z uint64) uint64 {
+	z ^= z>>31 ^ z>>62
+	z *= mul2Inv
+	z ^= z>>27 ^ z>>54
+	z *= mul1Inv
+	return z ^ z>>30 ^ z>>60
+}
+
+// Key is the sampling key of data row row under seed: output number row
+// of SplitMix64 seeded with mix(seed), mix(mix(seed) + row·γ). For a
+// given seed it is one-to-one in row, and SplitMix64's outputs pass the
+// BigCrush battery of statistical tests (Steele, Lea & Flood 2014,
+// section 5), so the keys of distinct rows behave as independent uniform
+// draws.
+func Key(seed uint64, row int64) uint64 { return mix(mix(seed) + uint64(row)*gamma) }
 
 // key is row's key in this sample.
-func (s *Sample) key(row int64) uint64 { return Key(s.seed, row) >> s.coarse }
+func (s *Sample) key(row int64) uint64 { return mix(s.base + uint64(row)*gamma) }
 
-// Size is the most rows the sample keeps.
-func (s *Sample) Size() int { return s.size }
+// rowOf is the row whose key is k.
+func (s *Sample) rowOf(k uint64) int64 { return int64((unmix(k) - s.base) * gammaInv) }
 
 // P is the number of values per row.
 func (s *Sample) P() int { return s.p }
-
-// Seed is the seed of the keys.
-func (s *Sample) Seed() uint64 { return s.seed }
 
 // Seen is the number of rows offered (merged samples included).
 func (s *Sample) Seen() int64 { return s.seen }
@@ -109,33 +150,41 @@ func (s *Sample) Seen() int64 { return s.seen }
 // Complete reports whether the sample holds every row offered.
 func (s *Sample) Complete() bool { return s.seen <= int64(s.size) }
 
-// Offer offers data row row with its P values (copied).
+// part is a run of rows in row order: their keys and values.
+type part struct {
+	keys []uint64
+	vals []float64
+}
+
+// Offer offers data row row with its P values (copied). Rows must not be
+// offered twice.
 func (s *Sample) Offer(row int64, vals []float64) {
+	s.consolidate()
 	s.seen++
-	if s.key(row) > s.limit {
-		return
+	if k := s.key(row); k <= s.limit {
+		s.keep(row, k, vals[:s.p])
 	}
-	s.keep(row, vals[:s.p])
 }
 
 // OfferRun offers the rows first, first+1, ..., P values each from vals
 // (row first+i holds vals[i*P : (i+1)*P]).
 func (s *Sample) OfferRun(first int64, vals []float64) {
+	s.consolidate()
 	n := len(vals) / s.p
 	s.seen += int64(n)
 	if s.p == 1 {
 		for i, v := range vals {
 			row := first + int64(i)
-			if s.key(row) <= s.limit {
-				s.keep1(row, v)
+			if k := s.key(row); k <= s.limit {
+				s.keep1(row, k, v)
 			}
 		}
 		return
 	}
 	for i := range n {
 		row := first + int64(i)
-		if s.key(row) <= s.limit {
-			s.keep(row, vals[i*s.p:(i+1)*s.p])
+		if k := s.key(row); k <= s.limit {
+			s.keep(row, k, vals[i*s.p:(i+1)*s.p])
 		}
 	}
 }
@@ -143,219 +192,309 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 // OfferAt offers the rows first+at[i], P values each from vals (row
 // first+at[i] holds vals[i*P : (i+1)*P]).
 func (s *Sample) OfferAt(first int64, at []int, vals []float64) {
+	s.consolidate()
 	s.seen += int64(len(at))
-	for i, k := range at {
-		row := first + int64(k)
-		if s.key(row) <= s.limit {
-			s.keep(row, vals[i*s.p:(i+1)*s.p])
+	for i, a := range at {
+		row := first + int64(a)
+		if k := s.key(row); k <= s.limit {
+			s.keep(row, k, vals[i*s.p:(i+1)*s.p])
 		}
 	}
 }
 
-// keep1 appends a row of one value to the buffer.
-func (s *Sample) keep1(row int64, v float64) {
+// keep1 buffers a row of key k and one value.
+func (s *Sample) keep1(row int64, k uint64, v float64) {
 	s.note(row)
-	s.rows = append(s.rows, row)
+	s.keys = append(s.keys, k)
 	s.vals = append(s.vals, v)
-	if len(s.rows) >= s.bound {
-		s.reduce()
-	}
+	s.counted(k)
 }
 
-// keep appends a row to the buffer.
-func (s *Sample) keep(row int64, vals []float64) {
+// keep buffers a row of key k.
+func (s *Sample) keep(row int64, k uint64, vals []float64) {
 	s.note(row)
-	s.rows = append(s.rows, row)
+	s.keys = append(s.keys, k)
 	s.vals = append(s.vals, vals...)
-	if len(s.rows) >= s.bound {
-		s.reduce()
-	}
+	s.counted(k)
 }
 
 // note makes room for one more row, growing the buffer by doubling up to
 // its bound (never beyond, so a full buffer holds no spare capacity), and
 // records whether row keeps the rows ascending.
 func (s *Sample) note(row int64) {
-	if n := len(s.rows); n > 0 && row <= s.rows[n-1] {
+	if len(s.keys) > 0 && row <= s.last {
 		s.sorted = false
 	}
-	if len(s.rows) < cap(s.rows) {
+	s.last = row
+	if len(s.keys) < cap(s.keys) {
 		return
 	}
-	c := min(max(2*cap(s.rows), 64), s.bound)
-	s.rows = slices.Grow(s.rows, c-len(s.rows))
-	s.vals = slices.Grow(s.vals, (c-len(s.rows))*s.p)
+	c := min(max(2*cap(s.keys), 64), s.bound)
+	s.keys = slices.Grow(s.keys, c-len(s.keys))
+	s.vals = slices.Grow(s.vals, (c-len(s.keys))*s.p)
 }
 
-// reduce keeps the Size rows of smallest key, in place and in row order,
-// and lowers the threshold to the largest kept key.
+// counted counts a row of key k just buffered, and reduces the buffer
+// when it is full.
+func (s *Sample) counted(k uint64) {
+	if s.hist != nil {
+		s.hist[k>>s.shift]++
+	}
+	if len(s.keys) >= s.bound {
+		s.reduce()
+	}
+}
+
+// setLimit sets the threshold, and the shift that maps the keys up to it
+// to the histogram's buckets.
+func (s *Sample) setLimit(k uint64) {
+	s.limit = k
+	s.shift = uint(max(0, bits.Len64(k)-histBits))
+}
+
+// reduce brings a full buffer back to about Size rows, in place and in
+// row order, and lowers the threshold. The histogram says in which bucket
+// the key of rank Size lies; the rows up to the end of that bucket are
+// kept and the threshold drops to it. When that would keep more than half
+// the slack (a first selection, or keys bunched in a bucket), the exact
+// selection runs instead.
 func (s *Sample) reduce() {
 	s.order()
-	if len(s.rows) <= s.size {
+	if s.hist == nil {
+		s.exact()
 		return
 	}
-	k, ties := s.cut(s.rows, nil)
-	n := s.filter(s.rows, s.vals, nil, nil, k, ties, s.rows, s.vals)
-	s.rows, s.vals = s.rows[:n], s.vals[:n*s.p]
-	s.limit = k
-}
-
-// cut returns the key of rank Size among the rows of a and b (together
-// more than Size, disjoint), and how many rows of that key the sample
-// keeps: all of them (-1) unless the key of rank Size+1 is the same (a
-// tie, which 64-bit keys make rare), when only the first so many of them
-// by row number belong to the sample.
-func (s *Sample) cut(a, b []int64) (uint64, int) {
-	n := len(a) + len(b)
-	ks := order.KeysOfRanks(n, []int{s.size - 1, s.size}, s.scan(a, b))
-	if ks[1] != ks[0] {
-		return ks[0], -1
+	cum, b := 0, 0
+	for ; cum+int(s.hist[b]) < s.size; b++ {
+		cum += int(s.hist[b])
 	}
-	below := 0
-	s.scan(a, b)(func(keys []uint64) {
-		for _, k := range keys {
-			if k < ks[0] {
-				below++
-			}
-		}
-	})
-	return ks[0], s.size - below
-}
-
-// scan yields the keys of the rows of a, then b, a block at a time.
-func (s *Sample) scan(a, b []int64) func(func([]uint64)) {
-	return func(fn func([]uint64)) {
-		var buf [1024]uint64
-		for _, rows := range [][]int64{a, b} {
-			for len(rows) > 0 {
-				m := min(len(rows), len(buf))
-				for i, r := range rows[:m] {
-					buf[i] = s.key(r)
-				}
-				fn(buf[:m])
-				rows = rows[m:]
-			}
-		}
+	if cum+int(s.hist[b]) > s.size+(s.bound-s.size)/2 {
+		s.exact()
+		return
 	}
+	s.drop(min(uint64(b)<<s.shift|(1<<s.shift-1), s.limit))
 }
 
-// filter writes to rows and vals, from the start, the rows of (ra, va)
-// and (rb, vb) whose key is below k, and of those of key k the first ties
-// by row number (all of them when ties is negative), merging the two
-// ascending lists into one; it returns how many rows it wrote. The output
-// may be ra and va themselves when rb is empty (it never overtakes what
-// it reads).
-func (s *Sample) filter(ra []int64, va []float64, rb []int64, vb []float64, k uint64, ties int, rows []int64, vals []float64) int {
-	n, i, j := 0, 0, 0
-	p := s.p
-	for i < len(ra) || j < len(rb) {
-		var row int64
-		var v []float64
-		if j == len(rb) || i < len(ra) && ra[i] < rb[j] {
-			row, v = ra[i], va[i*p:(i+1)*p]
-			i++
-		} else {
-			row, v = rb[j], vb[j*p:(j+1)*p]
-			j++
-		}
-		key := s.key(row)
-		if key > k || key == k && ties == 0 {
+// exact keeps exactly the Size rows of smallest key (more than Size are
+// buffered), in place and in row order, and lowers the threshold to the
+// largest kept key.
+func (s *Sample) exact() {
+	keys := s.keys
+	k := order.KeysOfRanks(len(keys), []int{s.size - 1}, func(fn func([]uint64)) { fn(keys) })[0]
+	s.drop(k)
+}
+
+// drop keeps the buffered rows of key at most k, in place and in order,
+// lowers the threshold to k and counts the kept rows into the histogram
+// afresh.
+func (s *Sample) drop(k uint64) {
+	s.setLimit(k)
+	if s.hist == nil {
+		s.hist = make([]int32, 1<<histBits)
+	}
+	clear(s.hist)
+	p, n := s.p, 0
+	for i, key := range s.keys {
+		if key > k {
 			continue
 		}
-		if key == k && ties > 0 {
-			ties--
+		s.hist[key>>s.shift]++
+		s.keys[n] = key
+		if p == 1 {
+			s.vals[n] = s.vals[i]
+		} else {
+			copy(s.vals[n*p:(n+1)*p], s.vals[i*p:(i+1)*p])
 		}
-		rows[n] = row
-		copy(vals[n*p:(n+1)*p], v)
+		n++
+	}
+	s.keys, s.vals = s.keys[:n], s.vals[:n*p]
+}
+
+// order puts the buffered rows in row order, when they are not.
+func (s *Sample) order() {
+	if s.sorted {
+		return
+	}
+	rows := make([]int64, len(s.keys))
+	idx := make([]int, len(s.keys))
+	for i, k := range s.keys {
+		rows[i], idx[i] = s.rowOf(k), i
+	}
+	slices.SortFunc(idx, func(a, b int) int { return cmp.Compare(rows[a], rows[b]) })
+	keys := make([]uint64, len(s.keys), cap(s.keys))
+	vals := make([]float64, len(s.vals), cap(s.vals))
+	for to, from := range idx {
+		keys[to] = s.keys[from]
+		copy(vals[to*s.p:(to+1)*s.p], s.vals[from*s.p:(from+1)*s.p])
+	}
+	s.keys, s.vals, s.sorted = keys, vals, true
+	if len(rows) > 0 {
+		s.last = rows[idx[len(idx)-1]]
+	}
+}
+
+// Merge folds o, a sample of rows disjoint from s's, into s, which then
+// keeps the Size rows of smallest key of both, in row order. It takes
+// over o's rows and leaves o empty. The rows are not moved yet: the
+// samples merged are kept as parts until the sample is read, offered
+// more rows or holds more than four times its bound, and then merged in
+// one pass (consolidate), so merging the engine's lanes one after the
+// other copies the rows once.
+func (s *Sample) Merge(o *Sample) error {
+	if o.size != s.size || o.p != s.p || o.seed != s.seed {
+		return fmt.Errorf("cannot merge a sample of %d rows of %d values (seed %d) into one of %d rows of %d (seed %d)",
+			o.size, o.p, o.seed, s.size, s.p, s.seed)
+	}
+	o.order()
+	s.parts = append(s.parts, o.parts...)
+	if len(o.keys) > 0 {
+		s.parts = append(s.parts, part{o.keys, o.vals})
+	}
+	s.seen += o.seen
+	s.setLimit(min(s.limit, o.limit))
+	*o = Sample{size: o.size, p: o.p, seed: o.seed, base: o.base, bound: o.bound, limit: math.MaxUint64, sorted: true}
+	held := len(s.keys)
+	for _, pt := range s.parts {
+		held += len(pt.keys)
+	}
+	if held > 4*s.bound {
+		s.consolidate()
+	}
+	return nil
+}
+
+// consolidate merges the parts and the buffer into one buffer of the rows
+// of smallest key, at most Size of them, in row order, in one pass: the
+// key of rank Size is found by radix selection over all the parts, then
+// the parts are merged by row number, a run at a time (the lanes of the
+// engine hold whole batches, so the runs of one part between rows of
+// another are long).
+func (s *Sample) consolidate() {
+	if len(s.parts) == 0 {
+		return
+	}
+	s.order()
+	parts := append(s.parts, part{s.keys, s.vals})
+	n := 0
+	for _, pt := range parts {
+		n += len(pt.keys)
+	}
+	k := uint64(math.MaxUint64)
+	if n > s.size {
+		k = order.KeysOfRanks(n, []int{s.size - 1}, func(fn func([]uint64)) {
+			for _, pt := range parts {
+				fn(pt.keys)
+			}
+		})[0]
+		s.setLimit(min(s.limit, k))
+		n = s.size
+	}
+	keys, vals := make([]uint64, n), make([]float64, n*s.p)
+	at := make([]int, len(parts))
+	for w := 0; ; {
+		// The part whose next row comes first, and the next row of the
+		// others.
+		first, next := -1, int64(math.MaxInt64)
+		var firstRow int64
+		for i, pt := range parts {
+			if at[i] == len(pt.keys) {
+				continue
+			}
+			switch r := s.rowOf(pt.keys[at[i]]); {
+			case first < 0 || r < firstRow:
+				if first >= 0 {
+					next = min(next, firstRow)
+				}
+				first, firstRow = i, r
+			default:
+				next = min(next, r)
+			}
+		}
+		if first < 0 {
+			break
+		}
+		pt := parts[first]
+		e := at[first] + 1
+		for e < len(pt.keys) && s.rowOf(pt.keys[e]) < next {
+			e++
+		}
+		w = s.take(pt.keys, pt.vals, at[first], e, k, keys, vals, w)
+		at[first] = e
+	}
+	s.keys, s.vals, s.parts = keys, vals, nil
+	if s.hist != nil {
+		clear(s.hist)
+		for _, key := range keys {
+			s.hist[key>>s.shift]++
+		}
+	}
+	if len(keys) > 0 {
+		s.last = s.rowOf(keys[len(keys)-1])
+	}
+}
+
+// take writes the rows from..to-1 of (ks, vs) whose key is at most k to
+// (keys, vals) from place n on, and returns the next place.
+func (s *Sample) take(ks []uint64, vs []float64, from, to int, k uint64, keys []uint64, vals []float64, n int) int {
+	p := s.p
+	if k == math.MaxUint64 {
+		copy(keys[n:], ks[from:to])
+		copy(vals[n*p:], vs[from*p:to*p])
+		return n + to - from
+	}
+	for t := from; t < to; t++ {
+		if ks[t] > k {
+			continue
+		}
+		keys[n] = ks[t]
+		if p == 1 {
+			vals[n] = vs[t]
+		} else {
+			copy(vals[n*p:(n+1)*p], vs[t*p:(t+1)*p])
+		}
 		n++
 	}
 	return n
 }
 
-// order puts the kept rows in row order, when they are not.
-func (s *Sample) order() {
-	if s.sorted {
-		return
-	}
-	idx := make([]int, len(s.rows))
-	for i := range idx {
-		idx[i] = i
-	}
-	slices.SortStableFunc(idx, func(a, b int) int { return cmp.Compare(s.rows[a], s.rows[b]) })
-	rows := make([]int64, len(s.rows), cap(s.rows))
-	vals := make([]float64, len(s.vals), cap(s.vals))
-	for to, from := range idx {
-		rows[to] = s.rows[from]
-		copy(vals[to*s.p:(to+1)*s.p], s.vals[from*s.p:(from+1)*s.p])
-	}
-	s.rows, s.vals, s.sorted = rows, vals, true
-}
-
-// Merge folds o, a sample of rows disjoint from s's, into s, leaving o
-// unchanged: s then keeps the Size rows of smallest key of both, in row
-// order.
-func (s *Sample) Merge(o *Sample) error {
-	if o.size != s.size || o.p != s.p || o.seed != s.seed || o.coarse != s.coarse {
-		return fmt.Errorf("cannot merge a sample of %d rows of %d values (seed %d) into one of %d rows of %d (seed %d)",
-			o.size, o.p, o.seed, s.size, s.p, s.seed)
-	}
-	s.order()
-	if !o.sorted {
-		c := o.clone()
-		c.order()
-		o = c
-	}
-	s.seen += o.seen
-	s.limit = min(s.limit, o.limit)
-	n := len(s.rows) + len(o.rows)
-	if n == len(s.rows) {
-		return nil
-	}
-	k, ties := uint64(math.MaxUint64), -1
-	if n > s.size {
-		k, ties = s.cut(s.rows, o.rows)
-		s.limit = k
-		n = s.size
-	}
-	rows, vals := make([]int64, n), make([]float64, n*s.p)
-	s.filter(s.rows, s.vals, o.rows, o.vals, k, ties, rows, vals)
-	s.rows, s.vals = rows, vals
-	return nil
-}
-
-// clone returns a copy of s that shares no memory with it.
-func (s *Sample) clone() *Sample {
-	c := *s
-	c.rows, c.vals = slices.Clone(s.rows), slices.Clone(s.vals)
-	return &c
-}
-
 // trim brings the sample to its final rows: at most Size, in row order.
 func (s *Sample) trim() {
+	s.consolidate()
 	s.order()
-	if len(s.rows) > s.size {
-		s.reduce()
+	if len(s.keys) > s.size {
+		s.exact()
 	}
 }
 
 // Len is the number of rows the sample holds: min(Seen, Size).
 func (s *Sample) Len() int {
 	s.trim()
-	return len(s.rows)
+	return len(s.keys)
 }
 
-// Rows returns the data-row numbers of the sampled rows, ascending; the
-// caller must not change them.
+// Rows returns the data-row numbers of the sampled rows, ascending, in a
+// new slice.
 func (s *Sample) Rows() []int64 {
 	s.trim()
-	return s.rows
+	rows := make([]int64, len(s.keys))
+	for i, k := range s.keys {
+		rows[i] = s.rowOf(k)
+	}
+	return rows
+}
+
+// Keys returns the keys of the sampled rows, in row order; the caller
+// must not change them.
+func (s *Sample) Keys() []uint64 {
+	s.trim()
+	return s.keys
 }
 
 // Values returns value j (0 <= j < P) of every sampled row, in row order,
 // as a new slice.
 func (s *Sample) Values(j int) []float64 {
 	s.trim()
-	out := make([]float64, len(s.rows))
+	out := make([]float64, len(s.keys))
 	for i := range out {
 		out[i] = s.vals[i*s.p+j]
 	}
