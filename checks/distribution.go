@@ -304,17 +304,11 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batch, v valid, xs []T) ([]float64, bool) {
 	finite, at := a.vals[:0], a.at[:0]
 	all := true
-	skip := func(i int) { // value i is left out: the places so far are 0..i-1
-		if all {
-			for k := range i {
-				at = append(at, k)
-			}
-			all = false
-		}
-	}
 	for i, x := range xs {
 		if !v.at(i) {
-			skip(i)
+			if all { // the first value left out: the places so far are 0..i-1
+				at, all = appendPlaces(at, i), false
+			}
 			continue
 		}
 		a.N++
@@ -325,7 +319,9 @@ func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batc
 			}
 		}
 		if math.IsNaN(f) || math.IsInf(f, 0) {
-			skip(i)
+			if all {
+				at, all = appendPlaces(at, i), false
+			}
 			continue
 		}
 		a.Min, a.Max = min(a.Min, f), max(a.Max, f)
@@ -336,6 +332,14 @@ func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batc
 	}
 	a.vals, a.at = finite, at
 	return finite, all
+}
+
+// appendPlaces appends 0, 1, ..., n-1 to at.
+func appendPlaces(at []int, n int) []int {
+	for k := range n {
+		at = append(at, k)
+	}
+	return at
 }
 
 // count adds one categorical value, of data row row.

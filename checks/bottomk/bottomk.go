@@ -167,24 +167,47 @@ func (s *Sample) Offer(row int64, vals []float64) {
 }
 
 // OfferRun offers the rows first, first+1, ..., P values each from vals
-// (row first+i holds vals[i*P : (i+1)*P]).
+// (row first+i holds vals[i*P : (i+1)*P]). The buffer is grown for
+// reserveStep rows at a time, so the loop over the rows only computes keys
+// and appends.
 func (s *Sample) OfferRun(first int64, vals []float64) {
 	s.consolidate()
 	n := len(vals) / s.p
-	s.seen += int64(n)
-	if s.p == 1 {
-		for i, v := range vals {
-			row := first + int64(i)
-			if k := s.key(row); k <= s.limit {
-				s.keep1(row, k, v)
-			}
-		}
+	if n == 0 {
 		return
 	}
-	for i := range n {
+	s.seen += int64(n)
+	if len(s.keys) > 0 && first <= s.last {
+		s.sorted = false
+	}
+	s.last = first + int64(n) - 1
+	for i := 0; i < n; {
+		s.reserve(min(n-i, reserveStep))
+		keys, vs, hist := s.keys, s.vals, s.hist
+		limit, shift := s.limit, s.shift
 		row := first + int64(i)
-		if k := s.key(row); k <= s.limit {
-			s.keep(row, k, vals[i*s.p:(i+1)*s.p])
+		if s.p == 1 {
+			for ; i < n && len(keys) < cap(keys); i, row = i+1, row+1 {
+				if k := s.key(row); k <= limit {
+					keys, vs = append(keys, k), append(vs, vals[i])
+					if hist != nil {
+						hist[k>>shift]++
+					}
+				}
+			}
+		} else {
+			for ; i < n && len(keys) < cap(keys); i, row = i+1, row+1 {
+				if k := s.key(row); k <= limit {
+					keys, vs = append(keys, k), append(vs, vals[i*s.p:(i+1)*s.p]...)
+					if hist != nil {
+						hist[k>>shift]++
+					}
+				}
+			}
+		}
+		s.keys, s.vals = keys, vs
+		if len(s.keys) >= s.bound {
+			s.reduce()
 		}
 	}
 }
@@ -202,14 +225,6 @@ func (s *Sample) OfferAt(first int64, at []int, vals []float64) {
 	}
 }
 
-// keep1 buffers a row of key k and one value.
-func (s *Sample) keep1(row int64, k uint64, v float64) {
-	s.note(row)
-	s.keys = append(s.keys, k)
-	s.vals = append(s.vals, v)
-	s.counted(k)
-}
-
 // keep buffers a row of key k.
 func (s *Sample) keep(row int64, k uint64, vals []float64) {
 	s.note(row)
@@ -218,18 +233,28 @@ func (s *Sample) keep(row int64, k uint64, vals []float64) {
 	s.counted(k)
 }
 
-// note makes room for one more row, growing the buffer by doubling up to
-// its bound (never beyond, so a full buffer holds no spare capacity), and
-// records whether row keeps the rows ascending.
+// note records whether row keeps the buffered rows ascending, and makes
+// room for it.
 func (s *Sample) note(row int64) {
 	if len(s.keys) > 0 && row <= s.last {
 		s.sorted = false
 	}
-	s.last = row
-	if len(s.keys) < cap(s.keys) {
+	s.last = max(s.last, row)
+	s.reserve(1)
+}
+
+// reserveStep is the most rows OfferRun makes room for at a time, so
+// that a buffer grows with what it keeps, not with the length of a run.
+const reserveStep = 4096
+
+// reserve makes room for up to n more rows, growing the buffer to at
+// least twice its capacity (fewer copies as it fills) but never beyond its
+// bound, so a full buffer holds no spare capacity.
+func (s *Sample) reserve(n int) {
+	if cap(s.keys)-len(s.keys) >= n || cap(s.keys) >= s.bound {
 		return
 	}
-	c := min(max(2*cap(s.keys), 64), s.bound)
+	c := min(max(2*cap(s.keys), len(s.keys)+n, 64), s.bound)
 	s.keys = slices.Grow(s.keys, c-len(s.keys))
 	s.vals = slices.Grow(s.vals, (c-len(s.keys))*s.p)
 }
