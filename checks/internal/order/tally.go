@@ -202,20 +202,32 @@ func (t *Tally[T]) spill() {
 	t.slots, t.distinct = nil, 0
 }
 
-// Merge adds o's values to t and leaves o empty.
+// Merge adds o's values to t and leaves o empty. When o's counts do not
+// all fit in t's table, t spills, and the values of o's counts not yet
+// added follow as values.
 func (t *Tally[T]) Merge(o *Tally[T]) {
-	if !t.spilled && !o.spilled {
-		for _, s := range o.slots {
-			if s.count != 0 && !t.count(s.key, s.count) {
-				t.spill()
-				break
-			}
-		}
-	}
-	if t.spilled || o.spilled {
+	switch {
+	case o.spilled:
 		t.spill()
+		t.raw.Splice(&o.raw)
+	case t.spilled:
 		o.spill()
 		t.raw.Splice(&o.raw)
+	default:
+		var rest []T // o's values that t's table had no room for
+		for _, s := range o.slots {
+			if s.count == 0 || rest == nil && t.count(s.key, s.count) {
+				continue
+			}
+			x := valueOf[T](s.key)
+			for range s.count {
+				rest = append(rest, x)
+			}
+		}
+		if rest != nil {
+			t.spill()
+			t.raw.Add(rest)
+		}
 	}
 	t.n += o.n
 	*o = Tally[T]{}

@@ -219,3 +219,47 @@ func BenchmarkTallyAddLanes(b *testing.B) {
 		}
 	}
 }
+
+// TestTallyMergeOverLimit merges counted tallies whose values together
+// have more distinct values than TallyLimit, though each has fewer: the
+// result spills and holds every value once.
+func TestTallyMergeOverLimit(t *testing.T) {
+	for _, tc := range []struct{ a, b, overlap int }{
+		{40_000, 40_000, 10_000},
+		{TallyLimit, 1, 0},
+		{TallyLimit, TallyLimit, TallyLimit - 1},
+		{50_000, 50_000, 50_000}, // the same values: fits
+	} {
+		xs := make([]float64, tc.a)
+		for i := range xs {
+			xs[i] = float64(i)
+		}
+		ys := make([]float64, tc.b)
+		for i := range ys {
+			ys[i] = float64(tc.a - tc.overlap + i)
+		}
+		var a, b Tally[float64]
+		a.Add(xs)
+		a.Add(xs[:7])
+		b.Add(ys)
+		a.Merge(&b)
+		all := slices.Concat(xs, xs[:7], ys)
+		var n int64
+		for _, c := range a.All() {
+			n += c
+		}
+		distinct := tc.a + tc.b - tc.overlap
+		if a.Len() != int64(len(all)) || n != a.Len() || a.Spilled() != (distinct > TallyLimit) || b.Len() != 0 {
+			t.Errorf("%+v: Len %d, All counts %d, spilled %v; want %d values, spilled %v", tc, a.Len(), n, a.Spilled(),
+				len(all), distinct > TallyLimit)
+		}
+		slices.Sort(all)
+		ps := []float64{0, 0.3, 0.5, 0.99, 1}
+		got := a.Quantiles7(ps...)
+		for k, p := range ps {
+			if want := Quantile7(all, p); got[k] != want {
+				t.Errorf("%+v: p=%v: %v, want %v", tc, p, got[k], want)
+			}
+		}
+	}
+}
