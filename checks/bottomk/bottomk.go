@@ -160,7 +160,6 @@ type part struct {
 // Offer offers data row row with its P values (copied). Rows must not be
 // offered twice.
 func (s *Sample) Offer(row int64, vals []float64) {
-	s.consolidate()
 	s.seen++
 	if k := s.key(row); k <= s.limit {
 		s.keep(row, k, vals[:s.p])
@@ -216,7 +215,6 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 // OfferAt offers the rows first+at[i], P values each from vals (row
 // first+at[i] holds vals[i*P : (i+1)*P]).
 func (s *Sample) OfferAt(first int64, at []int, vals []float64) {
-	s.consolidate()
 	s.seen += int64(len(at))
 	for i, a := range at {
 		row := first + int64(a)
@@ -226,8 +224,11 @@ func (s *Sample) OfferAt(first int64, at []int, vals []float64) {
 	}
 }
 
-// keep buffers a row of key k.
+// keep buffers a row of key k. A row whose key is above the threshold,
+// which merges only lower, is dropped without merging the parts first
+// (see consolidate).
 func (s *Sample) keep(row int64, k uint64, vals []float64) {
+	s.consolidate()
 	s.note(row)
 	s.keys = append(s.keys, k)
 	s.vals = append(s.vals, vals...)
