@@ -48,8 +48,8 @@ var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 
 // parseInt parses b by the integer grammar.
 func parseInt(b []byte) (int64, bool) {
-	if w, digits, neg, ok := shortCell(b); ok && digits > 0 && isEightDigits(w) {
-		v := int64(eightDigits(w))
+	if mant, frac, neg, ok := shortDecimal(b); ok && frac < 0 {
+		v := int64(mant)
 		if neg {
 			v = -v
 		}
@@ -88,34 +88,9 @@ func parseInt(b []byte) (int64, bool) {
 // Short cells: a cell of at most eight bytes is read as one 64-bit word
 // and its digits converted together, with no branch per byte. The method
 // is that of Lemire (2021, "Number parsing at a gigabyte per second",
-// Software: Practice and Experience 51(8), section 5): a test that all
+// Software: Practice and Experience 51(8)): a test that all
 // eight bytes are digits, then three multiplications that combine the
 // digits pairwise into 2-, 4- and 8-digit values.
-
-// shortCell loads a cell of one to eight bytes into a word, right-aligned
-// (its last byte in the word's high byte, as a little-endian load of the
-// text puts the last digit there), the positions before it filled with
-// '0' and a leading sign replaced by '0', so that the word reads as eight
-// characters with the cell's value. digits counts the cell's bytes after
-// the sign. ok is false when the cell is longer, empty, or not followed by
-// enough bytes of its buffer to load eight (the bytes past the cell are
-// read but shifted out).
-func shortCell(b []byte) (w uint64, digits int, neg, ok bool) {
-	n := len(b)
-	if n == 0 || n > 8 || cap(b) < 8 {
-		return 0, 0, false, false
-	}
-	const zeros = 0x3030303030303030 // "00000000"
-	shift := uint(8 * (8 - n))
-	w = binary.LittleEndian.Uint64(b[:8])<<shift | zeros&(1<<shift-1)
-	digits = n
-	if c := b[0]; c == '-' || c == '+' {
-		neg = c == '-'
-		w = w&^(0xff<<shift) | '0'<<shift
-		digits--
-	}
-	return w, digits, neg, true
-}
 
 // isEightDigits reports whether every byte of w is an ASCII digit: its
 // high nibble is 3, and adding 6 does not carry out of the low nibble.
@@ -138,17 +113,33 @@ func eightDigits(w uint64) uint64 {
 	return w & 0xffffffff
 }
 
-// shortDecimal reads a cell of at most eight bytes of the form [sign]
-// digits ["." digits] (at least one digit) as mant / 10^frac. ok is false
-// when the cell is not of that form or shortCell cannot load it.
+// shortDecimal reads a cell of one to eight bytes of the form [sign]
+// digits ["." digits], with at least one digit, as mant / 10^frac; frac is
+// -1 when the cell has no point. ok is false when the cell is not of that
+// form, or is not followed in its buffer by enough bytes to load eight.
+//
+// The cell is loaded into a word right-aligned (its last byte in the
+// word's high byte, where a little-endian load puts the last digit), the
+// positions before it filled with '0', a leading sign replaced by '0' and
+// the bytes before a point moved up over it, so that the word reads as
+// eight digits with the cell's value. The bytes past the cell are loaded
+// but shifted out.
 func shortDecimal(b []byte) (mant uint64, frac int, neg, ok bool) {
-	w, digits, neg, ok := shortCell(b)
-	if !ok {
+	n := len(b)
+	if uint(n-1) > 7 || cap(b) < 8 { // n is not 1 to 8
 		return 0, 0, false, false
 	}
+	const zeros = 0x3030303030303030 // "00000000"
+	shift := uint(8 * (8 - n))
+	w := binary.LittleEndian.Uint64(b[:8])<<shift | zeros>>(64-shift)
+	digits := n
+	if c := b[0]; c == '-' || c == '+' {
+		neg = c == '-'
+		w += uint64('0'-c) << shift // the sign byte becomes '0'
+		digits--
+	}
+	frac = -1
 	if dots := ^nonzeroBytes(w^0x2e2e2e2e2e2e2e2e) & highBits; dots != 0 {
-		// Move the bytes before the point up over it; the first becomes
-		// a leading '0'.
 		k := uint(bits.TrailingZeros64(dots)) &^ 7 // bit offset of the point
 		before := uint64(1)<<k - 1
 		w = w&^(before|0xff<<k) | (w&before)<<8 | '0'
@@ -175,7 +166,7 @@ func shortDecimal(b []byte) (mant uint64, frac int, neg, ok bool) {
 // parseNumber.
 func parseFloat(b []byte) (float64, bool) {
 	if mant, frac, neg, ok := shortDecimal(b); ok {
-		f := float64(mant) / pow10[frac] // mant < 10^8, frac <= 7: exact operands
+		f := float64(mant) / pow10[max(frac, 0)] // mant < 10^8, frac <= 7: exact operands
 		if neg {
 			f = -f
 		}
@@ -375,6 +366,13 @@ func parseTimestamp(b []byte) (int64, bool) {
 	if !ok {
 		return 0, false
 	}
+	return timeOfDay(b, days)
+}
+
+// timeOfDay parses the part of a timestamp b (of at least 19 bytes) after
+// its date, whose day is days since 1970-01-01, into microseconds since
+// 1970-01-01T00:00:00Z.
+func timeOfDay(b []byte, days int64) (int64, bool) {
 	if c := b[10]; c != 'T' && c != 't' && c != ' ' {
 		return 0, false
 	}

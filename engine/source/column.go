@@ -65,6 +65,12 @@ type column struct {
 	dbuf         []byte
 	dlen         int // bytes in data; kept after finish as a size guess
 	invalid      []InvalidCell
+
+	// The last date read by a date or timestamp column, as written and
+	// as days since 1970-01-01: successive cells often share it, and then
+	// it is not parsed again. All zero bytes (no date) at first.
+	day  [10]byte
+	days int64
 }
 
 func newColumn(k kind, nulls *nullSet, mem memory.Allocator) *column {
@@ -144,9 +150,17 @@ func (c *column) append(b []byte) {
 	case kFloat:
 		c.f64[i], ok = parseFloat(b)
 	case kTimestamp:
-		c.i64[i], ok = parseTimestamp(b)
+		if ok = len(b) >= 19 && c.date(b); ok {
+			c.i64[i], ok = timeOfDay(b, c.days)
+		} else {
+			c.i64[i] = 0
+		}
 	case kDate:
-		c.i32[i], ok = parseDate(b)
+		ok = len(b) == 10 && c.date(b)
+		c.i32[i] = 0
+		if ok {
+			c.i32[i] = int32(c.days)
+		}
 	case kBool:
 		var v bool
 		v, ok = parseBool(b)
@@ -171,6 +185,21 @@ func (c *column) append(b []byte) {
 			c.invalid = append(c.invalid, InvalidCell{Row: i, Text: string(b)})
 		}
 	}
+}
+
+// date sets c.days to the day of the date at the start of b (which has at
+// least 10 bytes), false when it is not a date; the text of the last date
+// read is remembered and not parsed again.
+func (c *column) date(b []byte) bool {
+	if string(b[:10]) == string(c.day[:]) {
+		return true
+	}
+	days, ok := parseYMD(b)
+	if ok {
+		copy(c.day[:], b)
+		c.days = days
+	}
+	return ok
 }
 
 // null makes cell i null, its value zero (or, for strings, empty).

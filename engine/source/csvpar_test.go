@@ -150,3 +150,54 @@ func TestCSVParallelStops(t *testing.T) {
 		t.Errorf("scan returned %v after %d calls; want context.Canceled after 1", err, calls)
 	}
 }
+
+// TestCutterCounts checks that the cutter's pieces hold exactly the
+// records it counted, as the splitter reads them, and end where they
+// end, on texts of many plain lines with blank lines (LF and CRLF), quoted
+// fields with line breaks and doubled quotes, and no final line break:
+// where the cutter counts right no piece is read again.
+func TestCutterCounts(t *testing.T) {
+	var long strings.Builder
+	for i := range 5000 {
+		fmt.Fprintf(&long, "%d,plain text of some length,%d.25\n", i, i%13)
+		switch i % 997 {
+		case 5:
+			long.WriteString("\n\n")
+		case 6:
+			long.WriteString("\r\n")
+		case 7:
+			long.WriteString("x,\"quoted, with\nline break\",\"\"\"\"\n")
+		}
+	}
+	texts := []string{long.String(), manyRows(3000)[len("id,note,x\n"):], "1,2\n\n3,4\r\n\r\n5,6", "\n\n1\n", "a\n\"b\nc\"\nd"}
+	for _, text := range texts {
+		for _, want := range []int{1, 3, 100, 65536} {
+			c := &csvCutter{r: strings.NewReader(text), quote: '"', quotes: true, line: 1, read: &counter{}}
+			var all strings.Builder
+			for p := c.next(want); p != nil; p = c.next(want) {
+				all.Write(p.data)
+				sp := newSplitter(nil, ',', '"', true, 1)
+				sp.reset(append([]byte(nil), p.data...), true, p.line)
+				recs := 0
+				for {
+					ok, err := sp.next()
+					if err != nil {
+						t.Fatalf("piece at line %d: %v", p.line, err)
+					}
+					if !ok {
+						break
+					}
+					recs++
+				}
+				if recs != p.want || p.want > want || p.want < want && !p.last {
+					t.Fatalf("text %.40q, want %d: piece at line %d holds %d records; the cutter counted %d (last %v)",
+						text, want, p.line, recs, p.want, p.last)
+				}
+			}
+			// Only blank lines, if any, follow the last piece.
+			if rest, ok := strings.CutPrefix(text, all.String()); c.failed || !ok || strings.Trim(rest, "\r\n") != "" {
+				t.Fatalf("text %.40q, want %d: the pieces do not make up the text (failed %v)", text, want, c.failed)
+			}
+		}
+	}
+}
