@@ -12,8 +12,9 @@ import (
 
 // BenchmarkDistributionObserve is a distribution rule's first pass, one
 // accumulator, over 1M rows (its default sample of 10⁶ keeps every value)
-// and 4M rows (the reservoir samples), lognormal values with 1% missing:
-// the support test, the sample and the counts, without the analysis.
+// and 4M rows (the sample keeps 10⁶ of them), lognormal values with 1%
+// missing: the support test, the sample and the counts, without the
+// analysis.
 func BenchmarkDistributionObserve(b *testing.B) {
 	const per = 1 << 16
 	mem := memory.NewGoAllocator()

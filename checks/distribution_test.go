@@ -405,7 +405,7 @@ func TestDistributionBenford(t *testing.T) {
 }
 
 // TestDistributionSampled: beyond the sample size the fit runs on a seeded
-// reservoir sample; the result says so, repeats for the same seed and
+// uniform sample; the result says so, repeats for the same seed and
 // changes with another.
 func TestDistributionSampled(t *testing.T) {
 	xs := draw(5000, 8, func(r *rand.Rand) float64 { return 3 + r.NormFloat64() })
