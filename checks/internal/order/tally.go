@@ -8,33 +8,44 @@ import (
 )
 
 // TallyLimit is the most distinct values a Tally counts before it keeps
-// the values themselves. Counting them takes at most 2 MiB (a table of
-// 2^17 slots of 16 bytes, at most half full); beyond it a column is
-// taken to hold values of fine resolution, for which counting saves
-// little.
+// the values themselves. Counting them takes at most 2.5 MiB (a table of
+// 2^17 slots of 16 bytes, at most half full, and a grid of 2^16 counts);
+// beyond it a column is taken to hold values of fine resolution, for
+// which counting saves little.
 const TallyLimit = 1 << 16
 
 // Tally is an exact multiset of values: while it has seen at most
 // TallyLimit distinct values, each distinct value and how often it
-// occurred, in an open-addressing hash table; past that, the values
-// themselves, in Chunks (it has then spilled). Measured values are mostly
-// of limited resolution (a temperature to 0.001 °C, a pressure to 0.01
-// hPa): ten million of them may take ten thousand distinct values, whose
-// counts take 160 KB where the values take 80 MB. Either way its order
-// statistics (Quantiles7) are exact. Values are told apart by their bits,
-// so -0 and 0 are counted apart (and compare equal). The zero value is
-// ready to use.
+// occurred; past that, the values themselves, in Chunks (it has then
+// spilled). Measured values are mostly of limited resolution (a
+// temperature to 0.001 °C, a pressure to 0.01 hPa): ten million of them
+// may take ten thousand distinct values, whose counts take 160 KB where
+// the values take 80 MB. Either way its order statistics (Quantiles7) are
+// exact. Values are told apart by their bits, so -0 and 0 are counted
+// apart (and compare equal). The zero value is ready to use.
+//
+// A float64 tally counts the values of the decimal resolution of its
+// first part, near them, in a grid (see grid): by their position, with
+// neighbouring values in neighbouring counts. Every other value is
+// counted in an open-addressing hash table. A value's place depends on
+// the value alone, so each is counted in one place.
 type Tally[T int64 | float64] struct {
-	// slots is the table; a count of 0 marks an empty slot.
-	slots []slot
-	// distinct is the number of occupied slots, n the number of values.
+	// slots is the table; a count of 0 marks an empty slot. used is the
+	// number of occupied slots, distinct the number of distinct values
+	// (in the table and the grid), n the number of values.
+	slots    []slot
+	used     int
 	distinct int
+	grid     grid
 	n        int64
 	raw      Chunks[T]
 	spilled  bool
-	// warm keeps the sum of the keys Add reads ahead, only so that the
-	// compiler keeps those reads.
+	// warm keeps the sum of the keys addHashed reads ahead, only so that
+	// the compiler keeps those reads.
 	warm uint64
+	// miss holds a part's values the grid does not count, reused from
+	// part to part.
+	miss []T
 }
 
 // slot is one entry of a Tally's table: a value's bits and its count.
@@ -43,24 +54,157 @@ type slot struct {
 	count int64
 }
 
+// grid counts the values x that are k/scale for a whole k in [lo,
+// lo+len(counts)), exactly: rounded to float64, k/scale gives back x's
+// bits (so -0, which would be k = 0, is not one of them). Its scale is
+// the least power of ten that makes 7/8 of a tally's first values (up to
+// gridSample of them) whole numbers of 1/scale; its span is four times
+// theirs around their middle, from gridMin to gridMax counts. Counting
+// there takes a multiplication, a division and one count in 512 KiB at
+// most, and values close together, as most of a column's are, share
+// cache lines; the table would spend a cache miss on most values.
+type grid struct {
+	tried  bool    // the first part has been seen
+	scale  float64 // a power of ten, at most 10^gridDigits
+	lo     int64
+	counts []int64 // nil: no grid
+	// lof and size are lo and len(counts) as float64.
+	lof, size float64
+}
+
+// Bounds of a grid.
+const (
+	gridSample = 1024
+	gridDigits = 9
+	gridMin    = 1 << 10
+	gridMax    = 1 << 16
+)
+
+// newGrid makes the grid of a tally whose first values are xs; without
+// counts when no scale up to 10^gridDigits fits them.
+func newGrid(xs []float64) grid {
+	xs = xs[:min(len(xs), gridSample)]
+	for d := range gridDigits + 1 {
+		scale := math.Pow10(d)
+		var (
+			lo, hi int64 = math.MaxInt64, math.MinInt64
+			fit    int
+		)
+		for _, x := range xs {
+			m := math.RoundToEven(x * scale)
+			if !(math.Abs(m) < 1<<53) {
+				continue
+			}
+			if k := int64(m); math.Float64bits(float64(k)/scale) == math.Float64bits(x) {
+				fit++
+				lo, hi = min(lo, k), max(hi, k)
+			}
+		}
+		if fit == 0 || 8*fit < 7*len(xs) {
+			continue
+		}
+		size := min(gridMax, max(gridMin, 4*(hi-lo+1)))
+		g := grid{tried: true, scale: scale, lo: lo + (hi-lo)/2 - size/2, counts: make([]int64, size)}
+		g.lof, g.size = float64(g.lo), float64(size)
+		return g
+	}
+	return grid{tried: true}
+}
+
+// index returns the count of x in the grid; false if x is not counted
+// there. x is k/scale rounded for the k that x·scale rounds to, or for
+// none.
+func (g *grid) index(x float64) (int, bool) {
+	f := math.RoundToEven(x*g.scale) - g.lof
+	if !(f >= 0 && f < g.size) {
+		return 0, false
+	}
+	j := int(f)
+	return j, math.Float64bits(g.value(j)) == math.Float64bits(x)
+}
+
+// value is the value counted by counts[j].
+func (g *grid) value(j int) float64 { return float64(g.lo+int64(j)) / g.scale }
+
 // Add adds the values of part; the caller keeps part (it is copied once
-// the tally has spilled).
+// the tally has spilled). The grid, when there is one, counts the values
+// it can; the others go to the table (addHashed). Which value makes the
+// tally spill may then differ from the order of part, but not what it
+// holds: a tally spills once it has seen more than TallyLimit distinct
+// values, whatever their order.
+func (t *Tally[T]) Add(part []T) {
+	t.n += int64(len(part))
+	if t.spilled {
+		t.raw.Add(slices.Clone(part))
+		return
+	}
+	if !t.grid.tried && len(part) > 0 {
+		t.startGrid(part)
+	}
+	if t.grid.counts != nil {
+		if part = t.addGridded(part); t.spilled {
+			return
+		}
+	}
+	t.addHashed(part)
+}
+
+// startGrid makes the grid of a float64 tally from its first part.
+func (t *Tally[T]) startGrid(part []T) {
+	t.grid.tried = true
+	var zero T
+	if _, ok := any(zero).(float64); !ok {
+		return
+	}
+	xs := make([]float64, min(len(part), gridSample))
+	for i := range xs {
+		xs[i] = float64(part[i])
+	}
+	t.grid = newGrid(xs)
+}
+
+// addGridded counts the values of part the grid holds and returns the
+// others; when a value would exceed TallyLimit distinct values, the tally
+// spills with the values not yet counted.
+func (t *Tally[T]) addGridded(part []T) []T {
+	g := &t.grid
+	miss := t.miss[:0]
+	for i, x := range part {
+		j, ok := g.index(float64(x))
+		if !ok {
+			miss = append(miss, x)
+			continue
+		}
+		if g.counts[j] == 0 {
+			if t.distinct >= TallyLimit {
+				t.spill()
+				t.raw.Add(slices.Concat(part[i:], miss))
+				return nil
+			}
+			t.distinct++
+		}
+		g.counts[j]++
+	}
+	t.miss = miss
+	return miss
+}
+
+// addHashed adds the values of part to the table.
 //
 // The table outgrows the caches (2 MiB at most, one per column and lane),
-// so finding a value's slot is mostly a wait for memory. Add therefore
-// takes the values a block at a time: it first computes the slot each
-// value's hash names and reads it, in a loop whose reads do not depend on
-// one another, so the processor has many of them in flight at once; then
-// it probes for each value in turn, from slots now in cache. A block has
-// room in the table made for it first, so that no value of it moves the
-// slots the first loop named; near TallyLimit, where that room would
-// exceed the limit, values are counted one by one.
-func (t *Tally[T]) Add(part []T) {
+// so finding a value's slot is mostly a wait for memory. addHashed
+// therefore takes the values a block at a time: it first computes the
+// slot each value's hash names and reads it, in a loop whose reads do not
+// depend on one another, so the processor has many of them in flight at
+// once; then it probes for each value in turn, from slots now in cache. A
+// block has room in the table made for it first, so that no value of it
+// moves the slots the first loop named; near TallyLimit, where that room
+// would exceed the limit, values are counted one by one.
+func (t *Tally[T]) addHashed(part []T) {
 	var slot [addBlock]uint64
 	for len(part) > 0 {
 		if t.spilled {
 			t.raw.Add(slices.Clone(part))
-			t.n += int64(len(part))
 			return
 		}
 		blk := part[:min(len(part), addBlock)]
@@ -81,17 +225,17 @@ func (t *Tally[T]) Add(part []T) {
 			j := t.probe(k, slot[i])
 			if t.slots[j].count == 0 {
 				t.slots[j].key = k
+				t.used++
 				t.distinct++
 			}
 			t.slots[j].count++
 		}
-		t.n += int64(len(blk))
 	}
 }
 
-// addBlock is how many values Add hashes and reads ahead of probing: more
-// than a processor has reads in flight, few enough that their slots stay
-// in the first-level cache.
+// addBlock is how many values addHashed hashes and reads ahead of
+// probing: more than a processor has reads in flight, few enough that
+// their slots stay in the first-level cache.
 const addBlock = 64
 
 // reserve grows the table until c more distinct values keep it at most
@@ -101,24 +245,41 @@ func (t *Tally[T]) reserve(c int) bool {
 	if t.distinct+c > TallyLimit {
 		return false
 	}
-	for 2*(t.distinct+c) > len(t.slots) {
+	for 2*(t.used+c) > len(t.slots) {
 		t.grow()
 	}
 	return true
 }
 
-// addEach adds the values of part one at a time, spilling at the value
-// that would exceed TallyLimit distinct values.
+// addEach adds the values of part to the table one at a time, spilling at
+// the value that would exceed TallyLimit distinct values.
 func (t *Tally[T]) addEach(part []T) {
 	for i, x := range part {
 		if !t.count(bitsOf(x), 1) {
 			t.spill()
 			t.raw.Add(slices.Clone(part[i:]))
-			t.n += int64(len(part) - i)
 			return
 		}
-		t.n++
 	}
+}
+
+// countValue adds c occurrences of x, in the grid or the table; false
+// when that would exceed TallyLimit distinct values (nothing is added
+// then).
+func (t *Tally[T]) countValue(x T, c int64) bool {
+	if t.grid.counts != nil {
+		if j, ok := t.grid.index(float64(x)); ok {
+			if t.grid.counts[j] == 0 {
+				if t.distinct >= TallyLimit {
+					return false
+				}
+				t.distinct++
+			}
+			t.grid.counts[j] += c
+			return true
+		}
+	}
+	return t.count(bitsOf(x), c)
 }
 
 // count adds c occurrences of the value with bits k to the table, growing
@@ -135,6 +296,7 @@ func (t *Tally[T]) count(k uint64, c int64) bool {
 	i, ok := t.find(k)
 	if !ok {
 		t.slots[i].key = k
+		t.used++
 		t.distinct++
 	}
 	t.slots[i].count += c
@@ -183,44 +345,47 @@ func mix(k uint64) uint64 {
 	return k ^ (k >> 31)
 }
 
-// spill turns the table into values in Chunks and frees it.
+// spill turns the counts into values in Chunks and frees them.
 func (t *Tally[T]) spill() {
 	if t.spilled {
 		return
 	}
-	t.spilled = true
 	if t.distinct > 0 {
 		all := make([]T, 0, t.n)
-		for _, s := range t.slots {
-			x := valueOf[T](s.key)
-			for range s.count {
+		for x, c := range t.counted() {
+			for range c {
 				all = append(all, x)
 			}
 		}
 		t.raw.Add(all)
 	}
-	t.slots, t.distinct = nil, 0
+	t.spilled = true
+	t.slots, t.used, t.distinct = nil, 0, 0
+	t.grid.counts, t.miss = nil, nil
 }
 
 // Merge adds o's values to t and leaves o empty. When o's counts do not
-// all fit in t's table, t spills, and the values of o's counts not yet
-// added follow as values.
+// all fit in t, t spills, and the values of o's counts not yet added
+// follow as values.
 func (t *Tally[T]) Merge(o *Tally[T]) {
 	switch {
+	case t.n == 0 && !t.spilled:
+		*t = *o
 	case o.spilled:
 		t.spill()
 		t.raw.Splice(&o.raw)
+		t.n += o.n
 	case t.spilled:
 		o.spill()
 		t.raw.Splice(&o.raw)
+		t.n += o.n
 	default:
-		var rest []T // o's values that t's table had no room for
-		for _, s := range o.slots {
-			if s.count == 0 || rest == nil && t.count(s.key, s.count) {
+		var rest []T // o's values t had no room for
+		for x, c := range o.counted() {
+			if rest == nil && t.countValue(x, c) {
 				continue
 			}
-			x := valueOf[T](s.key)
-			for range s.count {
+			for range c {
 				rest = append(rest, x)
 			}
 		}
@@ -228,8 +393,8 @@ func (t *Tally[T]) Merge(o *Tally[T]) {
 			t.spill()
 			t.raw.Add(rest)
 		}
+		t.n += o.n
 	}
-	t.n += o.n
 	*o = Tally[T]{}
 }
 
@@ -239,16 +404,28 @@ func (t *Tally[T]) Len() int64 { return t.n }
 // All yields each distinct value with its count, in no particular order;
 // spilled, each value with the count 1.
 func (t *Tally[T]) All() iter.Seq2[T, int64] {
+	if !t.spilled {
+		return t.counted()
+	}
 	return func(yield func(T, int64) bool) {
-		if t.spilled {
-			for _, part := range t.raw.Parts() {
-				for _, x := range part {
-					if !yield(x, 1) {
-						return
-					}
+		for _, part := range t.raw.Parts() {
+			for _, x := range part {
+				if !yield(x, 1) {
+					return
 				}
 			}
-			return
+		}
+	}
+}
+
+// counted yields each distinct value counted in the grid and the table,
+// with its count.
+func (t *Tally[T]) counted() iter.Seq2[T, int64] {
+	return func(yield func(T, int64) bool) {
+		for j, c := range t.grid.counts {
+			if c != 0 && !yield(T(t.grid.value(j)), c) {
+				return
+			}
 		}
 		for _, s := range t.slots {
 			if s.count != 0 && !yield(valueOf[T](s.key), s.count) {
@@ -269,10 +446,8 @@ func DeviationQuantiles7Tally(t *Tally[float64], center float64, ps ...float64) 
 		return DeviationQuantiles7(&t.raw, center, ps...)
 	}
 	var d Tally[float64]
-	for _, s := range t.slots {
-		if s.count != 0 {
-			d.count(bitsOf(math.Abs(math.Float64frombits(s.key)-center)), s.count)
-		}
+	for x, c := range t.counted() {
+		d.count(bitsOf(math.Abs(x-center)), c)
 	}
 	d.n = t.n
 	return d.Quantiles7(ps...)
@@ -296,10 +471,8 @@ func (t *Tally[T]) Quantiles7(ps ...float64) []float64 {
 		c int64
 	}
 	entries := make([]entry, 0, t.distinct)
-	for _, s := range t.slots {
-		if s.count != 0 {
-			entries = append(entries, entry{valueOf[T](s.key), s.count})
-		}
+	for x, c := range t.counted() {
+		entries = append(entries, entry{x, c})
 	}
 	// -0 and 0, counted apart, sort -0 first, so that which of them a rank
 	// holds does not depend on where the table put them.

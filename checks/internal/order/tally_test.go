@@ -1,6 +1,7 @@
 package order
 
 import (
+	"maps"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -261,5 +262,98 @@ func TestTallyMergeOverLimit(t *testing.T) {
 				t.Errorf("%+v: p=%v: %v, want %v", tc, p, got[k], want)
 			}
 		}
+	}
+}
+
+// TestTallyGrid: values counted in the grid, in the table beside it, or
+// both, merged across tallies whose grids differ, give each distinct
+// value (by its bits) once, with its count, and the quantiles of the
+// values.
+func TestTallyGrid(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 8))
+	decimals := func(n, d int, mean, sd float64) []float64 {
+		xs := make([]float64, n)
+		p := math.Pow10(d)
+		for i := range xs {
+			xs[i] = math.Round((mean+sd*r.NormFloat64())*p) / p
+		}
+		return xs
+	}
+	ascending := make([]float64, 60_000)
+	for i := range ascending {
+		ascending[i] = float64(i) / 100
+	}
+	mixed := decimals(30_000, 3, 18, 6)
+	for i := range mixed {
+		switch i % 40 {
+		case 1:
+			mixed[i] = r.NormFloat64() // no decimal resolution: in the table
+		case 2:
+			mixed[i] = math.Copysign(0, -1)
+		case 3:
+			mixed[i] = 0
+		case 4:
+			mixed[i] = 1e6 + float64(i) // far outside the grid
+		}
+	}
+	cases := []struct {
+		name  string
+		parts [][]float64 // added in turn, each to its own tally, then merged
+		grid  float64     // the scale of the merged tally's grid; 0 for none
+	}{
+		{"3 decimals", [][]float64{decimals(50_000, 3, 18, 6)}, 1000},
+		{"integers first, then 3 decimals", [][]float64{decimals(2000, 0, 50, 10), decimals(50_000, 3, 50, 10)}, 1},
+		{"drifting beyond the grid", [][]float64{ascending}, 100},
+		{"grid, table, zeros and far values", [][]float64{mixed}, 1000},
+		{"merged grids of other scales", [][]float64{decimals(20_000, 2, 5, 1), decimals(20_000, 4, 500, 100), mixed}, 100},
+		{"no resolution", [][]float64{decimals(20_000, 17, 0, 1)}, 0},
+		{"over the limit in the grid", [][]float64{decimals(200_000, 3, 0, 100)}, 0},
+	}
+	ps := []float64{0, 0.001, 0.25, 0.5, 0.75, 0.99, 1}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			var all []float64
+			ts := make([]Tally[float64], len(tc.parts))
+			for k, xs := range tc.parts {
+				for i := 0; i < len(xs); i += 1000 {
+					ts[k].Add(xs[i:min(i+1000, len(xs))])
+				}
+				all = append(all, xs...)
+			}
+			for k := 1; k < len(ts); k++ {
+				ts[0].Merge(&ts[k])
+			}
+			ta := &ts[0]
+			counts := map[uint64]int64{}
+			for _, x := range all {
+				counts[math.Float64bits(x)]++
+			}
+			if scale := ta.grid.scale * float64(min(1, len(ta.grid.counts))); scale != tc.grid {
+				t.Errorf("grid of scale %v, want %v", scale, tc.grid)
+			}
+			if ta.Spilled() != (len(counts) > TallyLimit) || ta.Len() != int64(len(all)) {
+				t.Fatalf("spilled %v with %d values; want spilled %v, %d values", ta.Spilled(), ta.Len(), len(counts) > TallyLimit, len(all))
+			}
+			if !ta.Spilled() {
+				seen := map[uint64]int64{}
+				for x, c := range ta.All() {
+					if _, twice := seen[math.Float64bits(x)]; twice {
+						t.Errorf("%v is counted twice", x)
+					}
+					seen[math.Float64bits(x)] = c
+				}
+				if !maps.Equal(seen, counts) {
+					t.Errorf("All gives %d distinct values, want %d", len(seen), len(counts))
+				}
+			}
+			sorted := slices.Clone(all)
+			slices.Sort(sorted)
+			got := ta.Quantiles7(ps...)
+			for k, p := range ps {
+				if want := Quantile7(sorted, p); got[k] != want {
+					t.Errorf("p=%v: %v, want %v", p, got[k], want)
+				}
+			}
+		})
 	}
 }
