@@ -31,6 +31,15 @@ func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 	case classString:
 		set := newTextSet(s.Values)
 		vc.scan = func(a arrow.Array, _ *scratch, hit func(int, float64)) {
+			if str, ok := a.(*array.String); ok { // the common case, without a call per value
+				v := validOf(str)
+				for i := range str.Len() {
+					if v.at(i) && !set.has(str.Value(i)) {
+						hit(i, 1)
+					}
+				}
+				return
+			}
 			eachString(a, func(i int, v string) {
 				if !set.has(v) {
 					hit(i, 1)
@@ -91,20 +100,30 @@ func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 	return vc, nil
 }
 
-// textSet is a set of strings. A few members are kept in a list and
-// compared in turn, which costs less than hashing every value looked up;
-// more go in a map.
+// textSet is a set of strings. A few members are kept by their first
+// byte, and a value is compared with the members that share its first
+// byte, which costs less than hashing every value looked up; more go in a
+// map.
 type textSet struct {
-	few  []string
-	many map[string]bool
+	byFirst *[256][]string
+	empty   bool // "" is a member (of a few)
+	many    map[string]bool
 }
 
-// fewMembers is the most members a textSet compares in turn.
+// fewMembers is the most members a textSet keeps by their first byte.
 const fewMembers = 8
 
 func newTextSet(members []string) textSet {
 	if len(members) <= fewMembers {
-		return textSet{few: members}
+		t := textSet{byFirst: new([256][]string)}
+		for _, m := range members {
+			if m == "" {
+				t.empty = true
+				continue
+			}
+			t.byFirst[m[0]] = append(t.byFirst[m[0]], m)
+		}
+		return t
 	}
 	m := make(map[string]bool, len(members))
 	for _, v := range members {
@@ -118,7 +137,10 @@ func (t textSet) has(s string) bool {
 	if t.many != nil {
 		return t.many[s]
 	}
-	for _, m := range t.few {
+	if s == "" {
+		return t.empty
+	}
+	for _, m := range t.byFirst[s[0]] {
 		if m == s {
 			return true
 		}

@@ -71,3 +71,27 @@ func TestEnumMerge(t *testing.T) {
 		t.Errorf("measure %v %v, want 0.5 pass", s, want.Verdict)
 	}
 }
+
+// TestTextSet: a set of few members (kept by first byte) and one of many
+// (a map) answer as a map of the members would.
+func TestTextSet(t *testing.T) {
+	probes := []string{"", "north", "nort", "northh", "North", "south", "s", "lab", "la", "é", "éa", "\x00", "depot", "x9"}
+	for _, members := range [][]string{
+		nil,
+		{""},
+		{"north", "south", "east", "west", "lab", "depot"},
+		{"n", "north", "nor", "", "é", "north"},
+		{"a", "b", "c", "d", "e", "f", "g", "h", "i", "lab", "north"},
+	} {
+		set := newTextSet(members)
+		want := map[string]bool{}
+		for _, m := range members {
+			want[m] = true
+		}
+		for _, p := range append(probes, members...) {
+			if got := set.has(p); got != want[p] {
+				t.Errorf("members %q: has(%q) = %v, want %v", members, p, got, want[p])
+			}
+		}
+	}
+}
