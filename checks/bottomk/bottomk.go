@@ -187,14 +187,22 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 		limit, shift := s.limit, s.shift
 		row := first + int64(i)
 		if s.p == 1 {
-			for ; i < n && len(keys) < cap(keys); i, row = i+1, row+1 {
-				if k := s.key(row); k <= limit {
-					keys, vs = append(keys, k), append(vs, vals[i])
-					if hist != nil {
-						hist[k>>shift]++
-					}
+			// Without branches, as in drop: each row is written at place m,
+			// which advances past the kept ones only.
+			kk, vv, m := keys[:cap(keys)], vs[:cap(keys)], len(keys)
+			for ; i < n && m < len(kk); i, row = i+1, row+1 {
+				k := s.key(row)
+				keep := 0
+				if k <= limit {
+					keep = 1
 				}
+				kk[m], vv[m] = k, vals[i]
+				if hist != nil {
+					hist[min(k>>shift, 1<<histBits-1)] += int32(keep)
+				}
+				m += keep
 			}
+			keys, vs = kk[:m], vv[:m]
 		} else {
 			for ; i < n && len(keys) < cap(keys); i, row = i+1, row+1 {
 				if k := s.key(row); k <= limit {
@@ -324,20 +332,32 @@ func (s *Sample) drop(k uint64) {
 	}
 	clear(s.hist)
 	p, n := s.p, 0
-	for i, key := range s.keys {
-		if key > k {
-			continue
+	keys, vals, hist, shift := s.keys, s.vals, s.hist, s.shift
+	if p == 1 {
+		// Without branches: every row is written at place n, which
+		// advances only past the kept ones (a fifth of the rows, at random,
+		// are dropped: a branch would be mispredicted that often).
+		for i, key := range keys {
+			keep := 0
+			if key <= k {
+				keep = 1
+			}
+			keys[n], vals[n] = key, vals[i]
+			hist[min(key>>shift, 1<<histBits-1)] += int32(keep)
+			n += keep
 		}
-		s.hist[key>>s.shift]++
-		s.keys[n] = key
-		if p == 1 {
-			s.vals[n] = s.vals[i]
-		} else {
-			copy(s.vals[n*p:(n+1)*p], s.vals[i*p:(i+1)*p])
+	} else {
+		for i, key := range keys {
+			if key > k {
+				continue
+			}
+			hist[key>>shift]++
+			keys[n] = key
+			copy(vals[n*p:(n+1)*p], vals[i*p:(i+1)*p])
+			n++
 		}
-		n++
 	}
-	s.keys, s.vals = s.keys[:n], s.vals[:n*p]
+	s.keys, s.vals = keys[:n], vals[:n*p]
 }
 
 // order puts the buffered rows in row order, when they are not.
