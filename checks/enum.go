@@ -29,23 +29,7 @@ func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 	vc := &valueCheck{rule: r, env: env, col: c, breaks: "are outside the list " + listValues(s.Values)}
 	switch c.class {
 	case classString:
-		set := newTextSet(s.Values)
-		vc.scan = func(a arrow.Array, _ *scratch, hit func(int, float64)) {
-			if str, ok := a.(*array.String); ok { // the common case, without a call per value
-				v := validOf(str)
-				for i := range str.Len() {
-					if v.at(i) && !set.has(str.Value(i)) {
-						hit(i, 1)
-					}
-				}
-				return
-			}
-			eachString(a, func(i int, v string) {
-				if !set.has(v) {
-					hit(i, 1)
-				}
-			})
-		}
+		vc.scan = scanPassing(newTextSet(s.Values).has)
 	case classNumber:
 		if err := allNumbers(c, s); err != nil {
 			return nil, err

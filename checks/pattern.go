@@ -5,9 +5,6 @@ import (
 	"regexp"
 	"regexp/syntax"
 
-	"github.com/apache/arrow-go/v18/arrow"
-	"github.com/apache/arrow-go/v18/arrow/array"
-
 	"github.com/assay-project/assay/rules"
 )
 
@@ -30,7 +27,7 @@ func newPatternCheck(r *rules.Rule, s rules.PatternSpec, env *Env) (Check, error
 	}
 	vc := &valueCheck{rule: r, env: env, col: c, breaks: "fail to match " + re.String()}
 	if fw, ok := fixedWidthOf(re); ok {
-		vc.scan = fw.scan
+		vc.scan = scanPassing(fw.match)
 		return vc, nil
 	}
 	vc.scan = scanText(func(v string) verdict { return verdict{breaks: !re.MatchString(v), score: 1} })
@@ -133,22 +130,4 @@ func (fw *fixedWidth) match(s string) bool {
 		}
 	}
 	return true
-}
-
-// scan is the valueCheck scan of the pattern.
-func (fw *fixedWidth) scan(a arrow.Array, _ *scratch, hit func(int, float64)) {
-	if str, ok := a.(*array.String); ok { // the common case, without a call per value
-		v := validOf(str)
-		for i := range str.Len() {
-			if v.at(i) && !fw.match(str.Value(i)) {
-				hit(i, 1)
-			}
-		}
-		return
-	}
-	eachString(a, func(i int, s string) {
-		if !fw.match(s) {
-			hit(i, 1)
-		}
-	})
 }

@@ -121,6 +121,27 @@ func scanText(judge func(string) verdict) func(arrow.Array, *scratch, func(int, 
 	}
 }
 
+// scanPassing makes the scan of a rule on single strings that the strings
+// passes accepts meet and every other breaks, with the score 1.
+func scanPassing(passes func(string) bool) func(arrow.Array, *scratch, func(int, float64)) {
+	return func(a arrow.Array, _ *scratch, hit func(int, float64)) {
+		if str, ok := a.(*array.String); ok { // the common case, without a closure per value
+			v := validOf(str)
+			for i := range str.Len() {
+				if v.at(i) && !passes(str.Value(i)) {
+					hit(i, 1)
+				}
+			}
+			return
+		}
+		eachString(a, func(i int, s string) {
+			if !passes(s) {
+				hit(i, 1)
+			}
+		})
+	}
+}
+
 func (c *valueCheck) Rule() *rules.Rule { return c.rule }
 
 func (c *valueCheck) NewAccumulator() Accumulator {
