@@ -136,7 +136,7 @@ func BenchmarkTallyAdd(b *testing.B) {
 	for i := range xs {
 		xs[i] = math.Round((18+6*r.NormFloat64())*1000) / 1000
 	}
-	b.SetBytes(int64(8 * len(xs)))
+	b.SetBytes(int64(16 * 8 * len(xs)))
 	for b.Loop() {
 		var t Tally[float64]
 		for range 16 {
