@@ -30,7 +30,8 @@ import (
 // How it is kept. The rows whose key is at most a threshold (at first
 // every row) are appended to a buffer, as their key and values (the row
 // number is read back from the key), and counted in a histogram of their
-// keys' leading bits. When the buffer holds 1.25 Size rows (at least
+// keys' leading bits; until the first selection the buffer holds every
+// row offered, by row number, and no key is computed. When the buffer holds 1.25 Size rows (at least
 // Size + 1024), the rows up to the end of the histogram's bucket that
 // holds the key of rank Size are kept, in place, in the order they came,
 // and the threshold drops to that bucket's end: one pass over the buffer.
@@ -57,7 +58,11 @@ type Sample struct {
 	// buckets that cover [0, limit]; nil before the first selection.
 	hist  []int32
 	shift uint
-	keys  []uint64  // of the buffered rows
+	// keys holds the buffered rows' keys, or while keyed is false (no
+	// selection has run: the buffer holds every row offered) their row
+	// numbers, whose keys are computed only if a selection comes.
+	keys  []uint64
+	keyed bool
 	vals  []float64 // P values per buffered row
 	// parts are the rows of merged samples, each in row order, not yet
 	// merged with the buffer (see consolidate).
@@ -151,19 +156,38 @@ func (s *Sample) Seen() int64 { return s.seen }
 // Complete reports whether the sample holds every row offered.
 func (s *Sample) Complete() bool { return s.seen <= int64(s.size) }
 
-// part is a run of rows in row order: their keys and values.
+// part is a run of rows in row order: their keys (or row numbers when not
+// keyed) and values.
 type part struct {
-	keys []uint64
-	vals []float64
+	keys  []uint64
+	vals  []float64
+	keyed bool
+}
+
+// rowAt is the row of a buffered entry e: e itself when the entries are
+// row numbers, the row whose key is e when keyed.
+func (s *Sample) rowAt(e uint64, keyed bool) int64 {
+	if keyed {
+		return s.rowOf(e)
+	}
+	return int64(e)
 }
 
 // Offer offers data row row with its P values (copied). Rows must not be
 // offered twice.
 func (s *Sample) Offer(row int64, vals []float64) {
 	s.seen++
-	if k := s.key(row); k <= s.limit {
-		s.keep(row, k, vals[:s.p])
+	s.offer(row, vals[:s.p])
+}
+
+// offer buffers row unless its key is above the threshold, which is
+// the lowest of the samples merged, when it is known before their rows
+// are consolidated.
+func (s *Sample) offer(row int64, vals []float64) {
+	if (s.keyed || len(s.parts) > 0) && s.key(row) > s.limit {
+		return
 	}
+	s.keep(row, vals)
 }
 
 // OfferRun offers the rows first, first+1, ..., P values each from vals
@@ -186,7 +210,15 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 		keys, vs, hist := s.keys, s.vals, s.hist
 		limit, shift := s.limit, s.shift
 		row := first + int64(i)
-		if s.p == 1 {
+		switch {
+		case !s.keyed: // every row is kept, by its number
+			m := min(n-i, cap(keys)-len(keys))
+			for t := range m {
+				keys = append(keys, uint64(row+int64(t)))
+			}
+			vs = append(vs, vals[i*s.p:(i+m)*s.p]...)
+			i += m
+		case s.p == 1:
 			// Without branches, as in drop: each row is written at place m,
 			// which advances past the kept ones only.
 			kk, vv, m := keys[:cap(keys)], vs[:cap(keys)], len(keys)
@@ -203,7 +235,7 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 				m += keep
 			}
 			keys, vs = kk[:m], vv[:m]
-		} else {
+		default:
 			for ; i < n && len(keys) < cap(keys); i, row = i+1, row+1 {
 				if k := s.key(row); k <= limit {
 					keys, vs = append(keys, k), append(vs, vals[i*s.p:(i+1)*s.p]...)
@@ -225,20 +257,23 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 func (s *Sample) OfferAt(first int64, at []int, vals []float64) {
 	s.seen += int64(len(at))
 	for i, a := range at {
-		row := first + int64(a)
-		if k := s.key(row); k <= s.limit {
-			s.keep(row, k, vals[i*s.p:(i+1)*s.p])
-		}
+		s.offer(first+int64(a), vals[i*s.p:(i+1)*s.p])
 	}
 }
 
-// keep buffers a row of key k. A row whose key is above the threshold,
-// which merges only lower, is dropped without merging the parts first
-// (see consolidate).
-func (s *Sample) keep(row int64, k uint64, vals []float64) {
+// keep buffers a row, after consolidating the merged parts, unless its
+// key is above the threshold.
+func (s *Sample) keep(row int64, vals []float64) {
 	s.consolidate()
+	e, k := uint64(row), uint64(0)
+	if s.keyed {
+		if k = s.key(row); k > s.limit {
+			return
+		}
+		e = k
+	}
 	s.note(row)
-	s.keys = append(s.keys, k)
+	s.keys = append(s.keys, e)
 	s.vals = append(s.vals, vals...)
 	s.counted(k)
 }
@@ -317,9 +352,25 @@ func (s *Sample) reduce() {
 // buffered), in place and in row order, and lowers the threshold to the
 // largest kept key.
 func (s *Sample) exact() {
+	s.toKeys()
 	keys := s.keys
 	k := order.KeysOfRanks(len(keys), []int{s.size - 1}, func(fn func([]uint64)) { fn(keys) })[0]
 	s.drop(k)
+}
+
+// toKeys turns the buffer's row numbers into their keys, in place.
+func (s *Sample) toKeys() {
+	if !s.keyed {
+		keysOfRows(s, s.keys)
+		s.keyed = true
+	}
+}
+
+// keysOfRows replaces the row numbers in es by their keys.
+func keysOfRows(s *Sample, es []uint64) {
+	for i, e := range es {
+		es[i] = s.key(int64(e))
+	}
 }
 
 // drop keeps the buffered rows of key at most k, in place and in order,
@@ -367,8 +418,8 @@ func (s *Sample) order() {
 	}
 	rows := make([]int64, len(s.keys))
 	idx := make([]int, len(s.keys))
-	for i, k := range s.keys {
-		rows[i], idx[i] = s.rowOf(k), i
+	for i, e := range s.keys {
+		rows[i], idx[i] = s.rowAt(e, s.keyed), i
 	}
 	slices.SortFunc(idx, func(a, b int) int { return cmp.Compare(rows[a], rows[b]) })
 	keys := make([]uint64, len(s.keys), cap(s.keys))
@@ -398,7 +449,7 @@ func (s *Sample) Merge(o *Sample) error {
 	o.order()
 	s.parts = append(s.parts, o.parts...)
 	if len(o.keys) > 0 {
-		s.parts = append(s.parts, part{o.keys, o.vals})
+		s.parts = append(s.parts, part{o.keys, o.vals, o.keyed})
 	}
 	s.seen += o.seen
 	s.setLimit(min(s.limit, o.limit))
@@ -424,10 +475,19 @@ func (s *Sample) consolidate() {
 		return
 	}
 	s.order()
-	parts := append(s.parts, part{s.keys, s.vals})
-	n := 0
+	parts := append(s.parts, part{s.keys, s.vals, s.keyed})
+	n, keyed := 0, false
 	for _, pt := range parts {
 		n += len(pt.keys)
+		keyed = keyed || pt.keyed
+	}
+	if keyed = keyed || n > s.size; keyed {
+		for i := range parts {
+			if !parts[i].keyed {
+				keysOfRows(s, parts[i].keys)
+				parts[i].keyed = true
+			}
+		}
 	}
 	k := uint64(math.MaxUint64)
 	if n > s.size {
@@ -450,7 +510,7 @@ func (s *Sample) consolidate() {
 			if at[i] == len(pt.keys) {
 				continue
 			}
-			switch r := s.rowOf(pt.keys[at[i]]); {
+			switch r := s.rowAt(pt.keys[at[i]], keyed); {
 			case first < 0 || r < firstRow:
 				if first >= 0 {
 					next = min(next, firstRow)
@@ -465,13 +525,13 @@ func (s *Sample) consolidate() {
 		}
 		pt := parts[first]
 		e := at[first] + 1
-		for e < len(pt.keys) && s.rowOf(pt.keys[e]) < next {
+		for e < len(pt.keys) && s.rowAt(pt.keys[e], keyed) < next {
 			e++
 		}
 		w = s.take(pt.keys, pt.vals, at[first], e, k, keys, vals, w)
 		at[first] = e
 	}
-	s.keys, s.vals, s.parts = keys, vals, nil
+	s.keys, s.vals, s.parts, s.keyed = keys, vals, nil, keyed
 	if s.hist != nil {
 		clear(s.hist)
 		for _, key := range keys {
@@ -479,7 +539,7 @@ func (s *Sample) consolidate() {
 		}
 	}
 	if len(keys) > 0 {
-		s.last = s.rowOf(keys[len(keys)-1])
+		s.last = s.rowAt(keys[len(keys)-1], keyed)
 	}
 }
 
@@ -527,8 +587,8 @@ func (s *Sample) Len() int {
 func (s *Sample) Rows() []int64 {
 	s.trim()
 	rows := make([]int64, len(s.keys))
-	for i, k := range s.keys {
-		rows[i] = s.rowOf(k)
+	for i, e := range s.keys {
+		rows[i] = s.rowAt(e, s.keyed)
 	}
 	return rows
 }
@@ -537,7 +597,12 @@ func (s *Sample) Rows() []int64 {
 // must not change them.
 func (s *Sample) Keys() []uint64 {
 	s.trim()
-	return s.keys
+	if s.keyed {
+		return s.keys
+	}
+	keys := slices.Clone(s.keys)
+	keysOfRows(s, keys)
+	return keys
 }
 
 // Values returns value j (0 <= j < P) of every sampled row, in row order,

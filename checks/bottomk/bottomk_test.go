@@ -38,6 +38,9 @@ func checkSample(t *testing.T, s *Sample, want []int64) {
 		if v := s.Row(i); v[0] != valueOf(r, 0) {
 			t.Fatalf("Row(%d) = %v, want row %d", i, v, r)
 		}
+		if k := s.Keys()[i]; k != Key(s.seed, r) {
+			t.Fatalf("Keys()[%d] = %#x, want the key of row %d", i, k, r)
+		}
 	}
 }
 
@@ -65,6 +68,7 @@ func TestExactWhateverTheSplit(t *testing.T) {
 		{"large, one value", 100_000, 1, 1_000_000, 1 << 16, 4, 0, false},
 		{"large, three values", 20_000, 3, 300_000, 5000, 3, 11, false},
 		{"nine lanes", 50, 2, 50_000, 100, 9, 0, false},
+		{"two whole lanes sampled together", 100, 1, 150, 10, 2, 0, true},
 		{"twenty lanes, merged in several goes", 10, 1, 20_000, 50, 20, 0, false},
 	}
 	for _, tc := range tests {
@@ -123,8 +127,15 @@ func TestExactWhateverTheSplit(t *testing.T) {
 					extra[i*tc.p+j] = valueOf(row, j)
 				}
 			}
-			lanes[0].OfferRun(int64(tc.n+1), extra)
+			if tc.offerOneByOne {
+				for i := range 3 {
+					lanes[0].Offer(int64(tc.n+1+i), extra[i*tc.p:(i+1)*tc.p])
+				}
+			} else {
+				lanes[0].OfferRun(int64(tc.n+1), extra)
+			}
 			whole.OfferRun(int64(tc.n+1), extra)
+			whole.OfferRun(int64(tc.n+4), nil)
 			want := bruteForce(whole, offered)
 			for name, s := range map[string]*Sample{"one sample": whole, "merged lanes": lanes[0]} {
 				t.Run(name, func(t *testing.T) {
@@ -156,7 +167,7 @@ func TestOutOfOrder(t *testing.T) {
 			c, _ := New(size, 1, 7)
 			for i, r := range rows {
 				v := []float64{valueOf(r, 0)}
-				a.Offer(r, v)
+				a.OfferRun(r, v)
 				if i%2 == 0 {
 					b.Offer(r, v)
 				} else {
