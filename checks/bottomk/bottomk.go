@@ -25,14 +25,14 @@ import (
 // to hold the smallest keys, so the sample is a uniform sample without
 // replacement; samples of disjoint sets of rows merge into the sample of
 // their union (Cohen & Kaplan 2007, "Summarizing data using bottom-k
-// sketches", PODC, sections 2 and 3).
+// sketches", PODC, section 2).
 //
 // How it is kept. The rows whose key is at most a threshold (at first
 // every row) are appended to a buffer, as their key and values (the row
 // number is read back from the key), and counted in a histogram of their
 // keys' leading bits; until the first selection the buffer holds every
-// row offered, by row number, and no key is computed. When the buffer holds 1.25 Size rows (at least
-// Size + 1024), the rows up to the end of the histogram's bucket that
+// row offered, by row number, and no key is computed. When the buffer
+// holds 1.25 Size rows (at least Size + 1024), the rows up to the end of the histogram's bucket that
 // holds the key of rank Size are kept, in place, in the order they came,
 // and the threshold drops to that bucket's end: one pass over the buffer.
 // The first time, and whenever a bucket would keep too many, the key of
@@ -67,8 +67,8 @@ type Sample struct {
 	// parts are the rows of merged samples, each in row order, not yet
 	// merged with the buffer (see consolidate).
 	parts []part
-	// last is the last row buffered; sorted says that the buffered rows
-	// are in row order.
+	// last is the largest row buffered or offered in a run; sorted says
+	// that the buffered rows are in row order.
 	last   int64
 	sorted bool
 }
@@ -104,8 +104,8 @@ func New(size, p int, seed uint64) (*Sample, error) {
 }
 
 // The constants of SplitMix64 (Steele, Lea & Flood 2014, "Fast splittable
-// pseudorandom number generators", OOPSLA, section 3; its output function
-// is Stafford's 2011 "Mix13"), and the inverses modulo 2⁶⁴ of the odd
+// pseudorandom number generators", OOPSLA, the SplitMix algorithm and its
+// 64-bit mixing function, Stafford's 2011 "Mix13"), and the inverses modulo 2⁶⁴ of the odd
 // multipliers, which undo the mixing.
 const (
 	gamma    = 0x9e3779b97f4a7c15 // the golden-ratio increment
@@ -136,9 +136,9 @@ func unmix(z uint64) uint64 {
 // Key is the sampling key of data row row under seed: output number row
 // of SplitMix64 seeded with mix(seed), mix(mix(seed) + row·γ). For a
 // given seed it is one-to-one in row, and SplitMix64's outputs pass the
-// BigCrush battery of statistical tests (Steele, Lea & Flood 2014,
-// section 5), so the keys of distinct rows behave as independent uniform
-// draws.
+// BigCrush battery of statistical tests (Steele, Lea & Flood 2014, their
+// tests with TestU01), so the keys of distinct rows behave as independent
+// uniform draws.
 func Key(seed uint64, row int64) uint64 { return mix(mix(seed) + uint64(row)*gamma) }
 
 // key is row's key in this sample.
