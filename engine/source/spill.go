@@ -11,6 +11,7 @@ import (
 	"os"
 	"slices"
 	"strconv"
+	"sync/atomic"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -27,7 +28,9 @@ import (
 // scan: the same boundaries, row and line numbers, sources, progress
 // offsets and invalid cells (each record batch carries these in its custom
 // metadata, see spillMeta). Written batch by batch, the copy costs disk (or
-// page cache), not memory.
+// page cache), not memory. A goroutine of its own writes it, so that the
+// scan does not wait on the file system; at most spillQueue batches wait
+// for it.
 //
 // The file lives in Options.TempDir and is removed when the spill is
 // closed, or at once where the system lets an open file lose its name
@@ -36,20 +39,26 @@ type Spill struct {
 	mem     memory.Allocator
 	file    *os.File
 	path    string        // to remove at Close; "" once removed
-	buf     *bufio.Writer // over file
-	w       *ipc.Writer   // nil once finished
+	buf     *bufio.Writer // over file, used by the writing goroutine
 	columns []string      // of the scan written
 	schema  *arrow.Schema // of its batches
 	kept    []int         // by column of the batches, its position in the file, -1 when not kept
 	stored  *arrow.Schema // of the file: the kept columns
 	cols    []arrow.Array // scratch of Write
-	size    int64         // bytes written, once finished
-	err     error         // the first failure; the copy is then unusable
+
+	queue  chan arrow.RecordBatch // to the writing goroutine; nil once finished
+	done   chan error             // the writing goroutine's first failure, or nil, when it ends
+	failed atomic.Bool            // the writing goroutine has failed: Write stops sending
+	size   int64                  // bytes written, once finished
+	err    error                  // the first failure; the copy is then unusable
 }
 
-// spillBufferSize is the write buffer of a spill: the IPC writer writes a
-// message as many small pieces.
-const spillBufferSize = 1 << 20
+// Sizes of a spill's write buffer (the IPC writer writes a message as many
+// small pieces) and of its queue of batches.
+const (
+	spillBufferSize = 1 << 20
+	spillQueue      = 2
+)
 
 // NewSpill starts a copy of the batches of a scan of columns (nil: all, as
 // for Scan), keeping the columns marked in keep (nil: all). The caller
@@ -83,15 +92,39 @@ func (s *Set) NewSpill(columns []string, keep []bool) (*Spill, error) {
 		sp.path = ""
 	}
 	sp.buf = bufio.NewWriterSize(f, spillBufferSize)
-	sp.w = ipc.NewWriter(sp.buf, ipc.WithSchema(sp.stored), ipc.WithAllocator(sp.mem))
+	sp.queue, sp.done = make(chan arrow.RecordBatch, spillQueue), make(chan error, 1)
+	go sp.drain(sp.queue, ipc.NewWriter(sp.buf, ipc.WithSchema(sp.stored), ipc.WithAllocator(sp.mem)))
 	return sp, nil
 }
 
-// Write appends batch b of the scan to the copy. A failure (a full disk)
-// is kept, makes the copy unusable and the later calls do nothing; Finish
-// returns it.
+// drain writes the record batches of queue with w, in order, until the
+// queue is closed, then ends the stream; after a failure it releases the
+// rest unwritten. It sends the first failure, or nil, on sp.done.
+func (sp *Spill) drain(queue <-chan arrow.RecordBatch, w *ipc.Writer) {
+	var err error
+	for rec := range queue {
+		if err == nil {
+			if err = w.Write(rec); err != nil {
+				sp.failed.Store(true)
+			}
+		}
+		rec.Release()
+	}
+	if cerr := w.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = sp.buf.Flush()
+	}
+	sp.done <- err
+}
+
+// Write appends batch b of the scan to the copy: it hands the kept columns
+// to the writing goroutine, waiting while spillQueue batches wait. A
+// failure (a full disk) makes the copy unusable and the later calls do
+// nothing; Finish returns it.
 func (sp *Spill) Write(b *Batch) {
-	if sp.err != nil || sp.w == nil {
+	if sp.err != nil || sp.queue == nil || sp.failed.Load() {
 		return
 	}
 	if !b.Record.Schema().Equal(sp.schema) {
@@ -103,32 +136,26 @@ func (sp *Spill) Write(b *Batch) {
 			sp.cols[j] = b.Record.Column(k)
 		}
 	}
-	rec := array.NewRecordBatchWithMetadata(sp.stored, sp.cols, b.Record.NumRows(), spillMeta(b, sp.kept))
+	sp.queue <- array.NewRecordBatchWithMetadata(sp.stored, sp.cols, b.Record.NumRows(), spillMeta(b, sp.kept))
 	clear(sp.cols)
-	err := sp.w.Write(rec)
-	rec.Release()
-	if err != nil {
-		sp.err = fmt.Errorf("cannot write the temporary copy for the second pass: %w", err)
-	}
 }
 
-// Finish ends the copy and returns the first failure of its writing, if
-// any; the spill can then be scanned.
+// Finish ends the copy, once the writing goroutine has written every batch,
+// and returns the first failure of the writing, if any; the spill can then
+// be scanned.
 func (sp *Spill) Finish() error {
-	if sp.w != nil {
-		err := sp.w.Close()
-		sp.w = nil
-		if err == nil {
-			err = sp.buf.Flush()
-		}
-		if err != nil && sp.err == nil {
-			sp.err = fmt.Errorf("cannot write the temporary copy for the second pass: %w", err)
-		}
-		if fi, err := sp.file.Stat(); err == nil {
-			sp.size = fi.Size()
-		} else if sp.err == nil {
-			sp.err = fmt.Errorf("cannot read the temporary copy for the second pass: %w", err)
-		}
+	if sp.queue == nil {
+		return sp.err
+	}
+	close(sp.queue)
+	sp.queue = nil
+	if err := <-sp.done; err != nil && sp.err == nil {
+		sp.err = fmt.Errorf("cannot write the temporary copy for the second pass: %w", err)
+	}
+	if fi, err := sp.file.Stat(); err == nil {
+		sp.size = fi.Size()
+	} else if sp.err == nil {
+		sp.err = fmt.Errorf("cannot read the temporary copy for the second pass: %w", err)
 	}
 	return sp.err
 }
@@ -139,10 +166,7 @@ func (sp *Spill) Close() error {
 	if sp == nil || sp.file == nil {
 		return nil
 	}
-	if sp.w != nil {
-		_ = sp.w.Close()
-		sp.w = nil
-	}
+	_ = sp.Finish() // stops the writing goroutine
 	err := sp.file.Close()
 	sp.file = nil
 	if sp.path != "" {
@@ -165,7 +189,7 @@ func (sp *Spill) ScanSome(ctx context.Context, columns []string, skip []bool, fn
 	switch {
 	case sp.err != nil:
 		return sp.err
-	case sp.w != nil:
+	case sp.queue != nil:
 		return errors.New("the temporary copy for the second pass is still being written")
 	case !slices.Equal(columns, sp.columns):
 		return fmt.Errorf("the temporary copy holds columns %s, not %s", quoteList(sp.columns), quoteList(columns))
