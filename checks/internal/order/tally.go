@@ -59,7 +59,9 @@ type slot struct {
 // bits (so -0, which would be k = 0, is not one of them). Its scale is
 // the least power of ten that makes 7/8 of a tally's first values (up to
 // gridSample of them) whole numbers of 1/scale; its span is four times
-// theirs around their middle, from gridMin to gridMax counts. Counting
+// theirs around their middle, from gridMin to gridMax counts, and centred
+// on their median when gridMax counts do not reach that far (values in
+// far apart clusters). Counting
 // there takes a multiplication, a division and one count in 512 KiB at
 // most, and values close together, as most of a column's are, share
 // cache lines; the table would spend a cache miss on most values.
@@ -86,25 +88,27 @@ func newGrid(xs []float64) grid {
 	xs = xs[:min(len(xs), gridSample)]
 	for d := range gridDigits + 1 {
 		scale := math.Pow10(d)
-		var (
-			lo, hi int64 = math.MaxInt64, math.MinInt64
-			fit    int
-		)
+		ks := make([]int64, 0, len(xs))
 		for _, x := range xs {
 			m := math.RoundToEven(x * scale)
 			if !(math.Abs(m) < 1<<53) {
 				continue
 			}
 			if k := int64(m); math.Float64bits(float64(k)/scale) == math.Float64bits(x) {
-				fit++
-				lo, hi = min(lo, k), max(hi, k)
+				ks = append(ks, k)
 			}
 		}
-		if fit == 0 || 8*fit < 7*len(xs) {
+		if len(ks) == 0 || 8*len(ks) < 7*len(xs) {
 			continue
 		}
+		slices.Sort(ks)
+		lo, hi := ks[0], ks[len(ks)-1]
 		size := min(gridMax, max(gridMin, 4*(hi-lo+1)))
-		g := grid{tried: true, scale: scale, lo: lo + (hi-lo)/2 - size/2, counts: make([]int64, size)}
+		mid := lo + (hi-lo)/2
+		if size == gridMax && 4*(hi-lo+1) > gridMax {
+			mid = ks[len(ks)/2]
+		}
+		g := grid{tried: true, scale: scale, lo: mid - size/2, counts: make([]int64, size)}
 		g.lof, g.size = float64(g.lo), float64(size)
 		return g
 	}

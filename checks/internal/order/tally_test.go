@@ -306,6 +306,7 @@ func TestTallyGrid(t *testing.T) {
 		{"drifting beyond the grid", [][]float64{ascending}, 100},
 		{"grid, table, zeros and far values", [][]float64{mixed}, 1000},
 		{"merged grids of other scales", [][]float64{decimals(20_000, 2, 5, 1), decimals(20_000, 4, 500, 100), mixed}, 100},
+		{"far apart clusters", [][]float64{slices.Concat(decimals(700, 3, 5, 1), decimals(30_000, 3, 1e5, 1))}, 1000},
 		{"no resolution", [][]float64{decimals(20_000, 17, 0, 1)}, 0},
 		{"over the limit in the grid", [][]float64{decimals(200_000, 3, 0, 100)}, 0},
 	}
@@ -330,6 +331,13 @@ func TestTallyGrid(t *testing.T) {
 			}
 			if scale := ta.grid.scale * float64(min(1, len(ta.grid.counts))); scale != tc.grid {
 				t.Errorf("grid of scale %v, want %v", scale, tc.grid)
+			}
+			var gridded int64
+			for _, c := range ta.grid.counts {
+				gridded += c
+			}
+			if tc.grid != 0 && gridded < int64(len(all)/100) {
+				t.Errorf("the grid counts %d of %d values", gridded, len(all))
 			}
 			if ta.Spilled() != (len(counts) > TallyLimit) || ta.Len() != int64(len(all)) {
 				t.Fatalf("spilled %v with %d values; want spilled %v, %d values", ta.Spilled(), ta.Len(), len(counts) > TallyLimit, len(all))
