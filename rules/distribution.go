@@ -35,7 +35,7 @@ const (
 	// samples: 8 MB of float64, and at most a few seconds to sort, fit and
 	// test (own choice).
 	DefaultSample = 1_000_000
-	// DefaultSeed seeds the reservoir sample and the bootstrap.
+	// DefaultSeed seeds the sample and the bootstrap.
 	DefaultSeed = 1
 	// minSample is the smallest sample a policy may ask for: below about a
 	// hundred values a fit says little about a family (own choice).

@@ -341,9 +341,9 @@ type DistributionSpec struct {
 	AutoResolution bool
 	Resolution     float64
 	// Sample is how many values are kept: beyond it the fit and the test
-	// run on a seeded reservoir sample of that size.
+	// run on a seeded random sample of that size.
 	Sample int
-	// Seed seeds the reservoir sample and any bootstrap.
+	// Seed seeds the sample and any bootstrap.
 	Seed uint64
 }
 

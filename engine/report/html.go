@@ -354,7 +354,7 @@ func (v *ruleView) fit(res Result) {
 	}
 	values := groupDigits(f.N) + " values"
 	if f.Sampled {
-		values = fmt.Sprintf("a seeded reservoir sample of %s of %s values (seed %d)", groupDigits(f.SampleSize), groupDigits(f.N), f.Seed)
+		values = fmt.Sprintf("a seeded random sample of %s of %s values (seed %d)", groupDigits(f.SampleSize), groupDigits(f.N), f.Seed)
 	}
 	v.Facts = append(v.Facts, fact{"fitted on", values})
 	if f.Resolution != nil {

@@ -192,7 +192,7 @@ type Fit struct {
 	Estimated int `json:"estimated"`
 	// N is the number of values in the column (non-null), counted exactly.
 	N int64 `json:"n"`
-	// Sampled says the fit and the test ran on a seeded reservoir sample of
+	// Sampled says the fit and the test ran on a seeded random sample of
 	// SampleSize of the N values; otherwise SampleSize is N.
 	Sampled    bool   `json:"sampled"`
 	SampleSize int64  `json:"sample_size"`

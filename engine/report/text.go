@@ -382,7 +382,7 @@ func (p *printer) fit(res Result) {
 		p.printf(": %s)\n", f.Method.Source)
 	}
 	if f.Sampled {
-		p.printf("  sample of %s of %s values (seeded reservoir, seed %d)\n", groupDigits(f.SampleSize), groupDigits(f.N), f.Seed)
+		p.printf("  sample of %s of %s values (seeded random sample, seed %d)\n", groupDigits(f.SampleSize), groupDigits(f.N), f.Seed)
 	}
 	if len(f.Candidates) > 1 {
 		p.printf("  candidates, best first by AIC then BIC:\n")
