@@ -299,6 +299,10 @@ type csvBatch struct {
 	skipped       []skippedText
 	texts         []*column // the string columns, read or raw
 	lines         []int64   // of the batch under way
+
+	// The fields of records gathered by gather and not converted yet,
+	// record after record.
+	pending []span
 }
 
 func (s *Set) newCSVBatch(in *input, sc *scan, capRows int) *csvBatch {
@@ -344,6 +348,7 @@ func (b *csvBatch) start() {
 		b.skipped[k].dlen = 0
 	}
 	b.lines = make([]int64, 0, b.capRows)
+	b.pending = b.pending[:0]
 }
 
 // full reports whether the batch has all the rows, or all the text, it
@@ -354,12 +359,17 @@ func (b *csvBatch) full() bool {
 
 // add appends the record sp holds.
 func (b *csvBatch) add(sp *splitter) {
+	buf, slots := sp.buf, b.slots[:len(sp.fields)]
 	for j, f := range sp.fields {
-		if col := b.slots[j]; col != nil {
-			col.append(sp.field(f))
+		if col := slots[j]; col != nil {
+			col.append(buf[f.start:f.end])
 		}
-		if b.raw != nil && b.rawSlots[j] != nil {
-			b.rawSlots[j].append(sp.field(f))
+	}
+	if b.raw != nil {
+		for j, f := range sp.fields {
+			if col := b.rawSlots[j]; col != nil {
+				col.append(buf[f.start:f.end])
+			}
 		}
 	}
 	for k := range b.skipped {
@@ -369,6 +379,65 @@ func (b *csvBatch) add(sp *splitter) {
 		}
 	}
 	b.lines = append(b.lines, sp.recLine)
+}
+
+// gatherRows is how many records gather keeps before flush converts them.
+const gatherRows = 64
+
+// gather keeps the fields of the record sp holds, to be converted by flush
+// with those of the records gathered before it, column by column: the
+// loop over a column's cells takes the same branches cell after cell,
+// where add changes column, and so cell grammar, at every cell. The fields
+// are slices of sp's text, so gather serves only where that text stays in
+// place until flush: a piece of parallel parsing. A batch's cells are
+// counted in the text limit of full only once flushed; a piece, at most
+// maxPieceBytes, cannot reach it.
+func (b *csvBatch) gather(sp *splitter) {
+	b.pending = append(b.pending, sp.fields...)
+	b.lines = append(b.lines, sp.recLine)
+	if len(b.pending) >= gatherRows*len(sp.fields) {
+		b.flush(sp.buf, len(sp.fields))
+	}
+}
+
+// flush converts the records gathered, each of width fields of buf.
+func (b *csvBatch) flush(buf []byte, width int) {
+	cells := b.pending
+	if len(cells) == 0 {
+		return
+	}
+	for j := range width {
+		col := b.slots[j]
+		var raw *column
+		if b.raw != nil {
+			raw = b.rawSlots[j]
+		}
+		switch {
+		case raw == nil && col == nil:
+			continue
+		case raw == nil:
+			col.appendCells(buf, cells[j:], width)
+			continue
+		}
+		for k := j; k < len(cells); k += width {
+			cell := buf[cells[k].start:cells[k].end]
+			if col != nil {
+				col.append(cell)
+			}
+			if raw != nil {
+				raw.append(cell)
+			}
+		}
+	}
+	for k := range b.skipped {
+		sk := &b.skipped[k]
+		for r := sk.pos; r < len(cells); r += width {
+			if cell := buf[cells[r].start:cells[r].end]; !b.s.nulls.has(cell) {
+				sk.dlen += len(cell)
+			}
+		}
+	}
+	b.pending = cells[:0]
 }
 
 // finish makes the batch of the rows added, the first of them data row

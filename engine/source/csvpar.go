@@ -329,8 +329,9 @@ func (s *Set) parsePiece(in *input, i int, sc *scan, first int64, b *csvBatch, s
 			b.release()
 			return
 		}
-		b.add(sp)
+		b.gather(sp)
 	}
+	b.flush(sp.buf, width)
 	// The piece must end with its last record: no text may follow, or at
 	// the end of the input only blank lines.
 	if p.last {

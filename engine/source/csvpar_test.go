@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"strings"
 	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow"
 )
 
 // manyRows returns a header and n rows whose cells take turns being plain,
@@ -27,6 +29,18 @@ func manyRows(n int) string {
 // give what one gives: the same batches, rows, lines, cells and errors.
 func TestCSVParallel(t *testing.T) {
 	long := manyRows(3000)
+	var typed strings.Builder // cells of every kind, some null, some invalid
+	typed.WriteString("i,f,t,d,b,s\n")
+	for k := range 1000 {
+		fmt.Fprintf(&typed, "%s,%s,%s,%s,%s,%s\n",
+			[...]string{fmt.Sprint(k), "-1", "", "x", "12345678901"}[k%5],
+			[...]string{fmt.Sprintf("%d.%d", k, k%7), "-1", "", "1e5", "1_5", "-.25"}[k%6],
+			[...]string{"2024-01-02T03:04:05Z", "2024-01-02T03:04:06Z", "", "2024-02-30T00:00:00Z"}[k%4],
+			[...]string{"2024-01-02", "2024-01-02", "NA", "2024-01-32", "2024-01-03"}[k%5],
+			[...]string{"true", "false", "", "yes"}[k%4],
+			[...]string{"a", "-1", "", "NULL"}[k%4])
+	}
+	types := map[string]arrow.DataType{"i": tInt64, "f": tFloat64, "t": tTimestamp, "d": tDate, "b": tBoolean, "s": tString}
 	cases := []struct {
 		name  string
 		text  string
@@ -37,6 +51,9 @@ func TestCSVParallel(t *testing.T) {
 		{name: "many rows", text: long, opts: Options{BatchRows: 64}},
 		{name: "many rows, one batch", text: long},
 		{name: "many rows gzip", text: long, gzip: true, opts: Options{BatchRows: 100}},
+		{name: "typed cells, nulls and invalid cells", text: typed.String(), opts: Options{BatchRows: 150, Types: types}},
+		{name: "typed cells, null tokens that are numbers", text: typed.String(),
+			opts: Options{BatchRows: 150, Types: types, Nulls: []string{"", "-1", "NA"}}},
 		{name: "stray quotes in unquoted fields", opts: Options{BatchRows: 2},
 			text: "a,b\n1,x\"y\n2,z\n3,\"q\"\n4,5\"\n6,7\n8,\"9\n10\"\n11,12\n"},
 		{name: "stray quote then a long quoted field", opts: Options{BatchRows: 3},
