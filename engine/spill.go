@@ -20,11 +20,12 @@ const (
 // wantSpill tells whether the first pass over set should keep a copy for
 // the second. It pays for CSV inputs (standard input included), whose
 // second reading would split and parse every line again: on 1M rows of
-// the reference policy, 0.43 s of CPU against 0.11 s to write the copy and
-// 0.03 s to read it (BenchmarkSecondPass). Parquet decodes the columns
-// again in about what the copy costs (0.07 s against 0.03 + 0.03 s, within
-// the noise, and writing waits on the disk), and an Arrow input is read
-// much as the copy would be.
+// the reference policy, 0.31-0.43 s of CPU against 0.09-0.11 s to write
+// the copy and 0.03 s to read it (BenchmarkSecondPass, two rounds). A
+// Parquet input decodes the columns again in 0.06-0.07 s, against
+// 0.03-0.04 s to write the copy and 0.03 s to read it, and an Arrow input
+// reads them in 0.05 s against 0.01 + 0.03 s: no clear gain, and writing
+// may wait on a slow disk.
 func wantSpill(set *source.Set, mode spillMode) bool {
 	switch mode {
 	case spillAlways:

@@ -15,7 +15,8 @@ import (
 )
 
 // BenchmarkSecondPass measures what the second pass of bench/policy.yaml
-// costs to read on 1M rows of the reference data, as CSV and as Parquet:
+// costs to read on 1M rows of the reference data, as CSV, Parquet and an
+// Arrow IPC file:
 // "reread" reads the columns of the checks that may ask for a second pass
 // from the file again, "spill" reads them from the first pass's copy, and
 // "write" is what making that copy adds to the first pass (the batches of
@@ -29,7 +30,7 @@ func BenchmarkSecondPass(b *testing.B) {
 		b.Fatal(err)
 	}
 	dir := b.TempDir()
-	for _, format := range []string{"csv", "parquet"} {
+	for _, format := range []string{"csv", "parquet", "arrow"} {
 		path, size := WriteReference(b, dir, format, rows)
 		set, err := source.Open([]string{path}, sourceOptions(pol, source.Options{TempDir: dir}))
 		if err != nil {

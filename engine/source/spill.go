@@ -98,19 +98,20 @@ func (s *Set) NewSpill(columns []string, keep []bool) (*Spill, error) {
 }
 
 // drain writes the record batches of queue with w, in order, until the
-// queue is closed, then ends the stream; after a failure it releases the
-// rest unwritten. It sends the first failure, or nil, on sp.done.
+// queue is closed, then ends the stream; after a failure (a panic of the
+// writer included) it releases the rest unwritten. It sends the first
+// failure, or nil, on sp.done.
 func (sp *Spill) drain(queue <-chan arrow.RecordBatch, w *ipc.Writer) {
 	var err error
 	for rec := range queue {
 		if err == nil {
-			if err = w.Write(rec); err != nil {
+			if _, err = guard(func() (bool, error) { return true, w.Write(rec) }); err != nil {
 				sp.failed.Store(true)
 			}
 		}
 		rec.Release()
 	}
-	if cerr := w.Close(); err == nil {
+	if _, cerr := guard(func() (bool, error) { return true, w.Close() }); err == nil {
 		err = cerr
 	}
 	if err == nil {
