@@ -71,21 +71,14 @@ func BenchmarkPairObserve(b *testing.B) {
 			b.Fatal(err)
 		}
 		b.Run(tc.name, func(b *testing.B) {
-			perRow(b, len(batches)<<16, func() {
-				a := c.NewAccumulator()
-				for _, bt := range batches {
-					if err := a.Observe(bt); err != nil {
-						b.Fatal(err)
-					}
-				}
-			})
+			perRow(b, len(batches)<<16, func() { firstPass(b, c, batches) })
 		})
 	}
 }
 
 // BenchmarkJointSecondPass is the joint rule's second pass over 1M rows,
-// one accumulator: every judged row's distance, the listing and the
-// sample of distances for the plot.
+// one accumulator, classical and robust: every judged row's distance, the
+// listing and the sample of distances for the plot.
 func BenchmarkJointSecondPass(b *testing.B) {
 	batches := climateBatches(b)
 	defer func() {
@@ -93,16 +86,63 @@ func BenchmarkJointSecondPass(b *testing.B) {
 			bt.Release()
 		}
 	}()
-	c, err := Compile(newRule(jointSpec(false), atMost(0.01), "t", "h", "p"), envOf(batches[0], 20))
-	if err != nil {
-		b.Fatal(err)
+	for _, robust := range []bool{false, true} {
+		c, err := Compile(newRule(jointSpec(robust), atMost(0.01), "t", "h", "p"), envOf(batches[0], 20))
+		if err != nil {
+			b.Fatal(err)
+		}
+		first := firstPass(b, c, batches)
+		first.(Rescanner).SecondPass() // the estimate, made once
+		name := "classical"
+		if robust {
+			name = "robust"
+		}
+		b.Run(name, func(b *testing.B) {
+			benchSecondPass(b, first, batches)
+		})
 	}
-	first := c.NewAccumulator()
+}
+
+// BenchmarkLinearSecondPass is the second pass of a linear residuals rule
+// over 1M rows, one accumulator: every row scored against the least-squares
+// line by its studentized residual or Cook's distance, and the listing.
+func BenchmarkLinearSecondPass(b *testing.B) {
+	batches := climateBatches(b)
+	defer func() {
+		for _, bt := range batches {
+			bt.Release()
+		}
+	}()
+	for _, res := range []rules.ResidualRule{rules.ResidualStudentized, rules.ResidualCooks} {
+		s := rules.PairSpec{Relation: rules.RelationLinear, Measure: rules.PairResiduals, Fit: rules.FitOLS,
+			Residual: res, Sample: rules.DefaultPairSample, Seed: 1}
+		c, err := Compile(newRule(s, atMost(0.01), "t", "h"), envOf(batches[0], 20))
+		if err != nil {
+			b.Fatal(err)
+		}
+		first := firstPass(b, c, batches)
+		b.Run(string(res), func(b *testing.B) {
+			benchSecondPass(b, first, batches)
+		})
+	}
+}
+
+// firstPass runs check c's first pass over batches, one accumulator.
+func firstPass(b *testing.B, c Check, batches []*source.Batch) Accumulator {
+	b.Helper()
+	a := c.NewAccumulator()
 	for _, bt := range batches {
-		if err := first.Observe(bt); err != nil {
+		if err := a.Observe(bt); err != nil {
 			b.Fatal(err)
 		}
 	}
+	return a
+}
+
+// benchSecondPass measures the second pass of first over batches, per
+// row of batches of 2¹⁶ rows.
+func benchSecondPass(b *testing.B, first Accumulator, batches []*source.Batch) {
+	b.Helper()
 	perRow(b, len(batches)<<16, func() {
 		a := first.(Rescanner).SecondPass()
 		for _, bt := range batches {
