@@ -48,13 +48,6 @@ var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 
 // parseInt parses b by the integer grammar.
 func parseInt(b []byte) (int64, bool) {
-	if mant, frac, neg, ok := shortDecimal(b); ok && frac < 0 {
-		v := int64(mant)
-		if neg {
-			v = -v
-		}
-		return v, true
-	}
 	i := 0
 	neg := false
 	if len(b) > 0 && (b[0] == '+' || b[0] == '-') {
@@ -85,7 +78,7 @@ func parseInt(b []byte) (int64, bool) {
 	return int64(u), true
 }
 
-// Short cells: a cell of at most eight bytes is read as one 64-bit word
+// Short numbers: a cell of at most eight bytes is read as one 64-bit word
 // and its digits converted together, with no branch per byte. The method
 // is that of Lemire (2021, "Number parsing at a gigabyte per second",
 // Software: Practice and Experience 51(8)): a test that all
@@ -114,9 +107,9 @@ func eightDigits(w uint64) uint64 {
 }
 
 // shortDecimal reads a cell of one to eight bytes of the form [sign]
-// digits ["." digits], with at least one digit, as mant / 10^frac; frac is
-// -1 when the cell has no point. ok is false when the cell is not of that
-// form, or is not followed in its buffer by enough bytes to load eight.
+// digits ["." digits], with at least one digit, as mant / 10^frac. ok is
+// false when the cell is not of that form, or is not followed in its
+// buffer by enough bytes to load eight.
 //
 // The cell is loaded into a word right-aligned (its last byte in the
 // word's high byte, where a little-endian load puts the last digit), the
@@ -138,7 +131,6 @@ func shortDecimal(b []byte) (mant uint64, frac int, neg, ok bool) {
 		w += uint64('0'-c) << shift // the sign byte becomes '0'
 		digits--
 	}
-	frac = -1
 	if dots := ^nonzeroBytes(w^0x2e2e2e2e2e2e2e2e) & highBits; dots != 0 {
 		k := uint(bits.TrailingZeros64(dots)) &^ 7 // bit offset of the point
 		before := uint64(1)<<k - 1
@@ -166,7 +158,7 @@ func shortDecimal(b []byte) (mant uint64, frac int, neg, ok bool) {
 // parseNumber.
 func parseFloat(b []byte) (float64, bool) {
 	if mant, frac, neg, ok := shortDecimal(b); ok {
-		f := float64(mant) / pow10[max(frac, 0)] // mant < 10^8, frac <= 7: exact operands
+		f := float64(mant) / pow10[frac] // mant < 10^8, frac <= 7: exact operands
 		if neg {
 			f = -f
 		}
