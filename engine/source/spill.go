@@ -85,7 +85,7 @@ func (s *Set) NewSpill(columns []string, keep []bool) (*Spill, error) {
 	sp.cols = make([]arrow.Array, len(fields))
 	f, err := os.CreateTemp(s.opts.TempDir, "assay-spill-*.arrows")
 	if err != nil {
-		return nil, fmt.Errorf("cannot make the temporary copy for the second pass: %w", err)
+		return nil, fmt.Errorf("cannot make the temporary copy of the data: %w", err)
 	}
 	sp.file, sp.path = f, f.Name()
 	if os.Remove(sp.path) == nil {
@@ -151,12 +151,12 @@ func (sp *Spill) Finish() error {
 	close(sp.queue)
 	sp.queue = nil
 	if err := <-sp.done; err != nil && sp.err == nil {
-		sp.err = fmt.Errorf("cannot write the temporary copy for the second pass: %w", err)
+		sp.err = fmt.Errorf("cannot write the temporary copy of the data: %w", err)
 	}
 	if fi, err := sp.file.Stat(); err == nil {
 		sp.size = fi.Size()
 	} else if sp.err == nil {
-		sp.err = fmt.Errorf("cannot read the temporary copy for the second pass: %w", err)
+		sp.err = fmt.Errorf("cannot read the temporary copy of the data: %w", err)
 	}
 	return sp.err
 }
@@ -177,7 +177,7 @@ func (sp *Spill) Close() error {
 		sp.path = ""
 	}
 	if sp.err == nil {
-		sp.err = errors.New("the temporary copy for the second pass is closed")
+		sp.err = errors.New("the temporary copy of the data is closed")
 	}
 	return err
 }
@@ -191,7 +191,7 @@ func (sp *Spill) ScanSome(ctx context.Context, columns []string, skip []bool, fn
 	case sp.err != nil:
 		return sp.err
 	case sp.queue != nil:
-		return errors.New("the temporary copy for the second pass is still being written")
+		return errors.New("the temporary copy of the data is still being written")
 	case !slices.Equal(columns, sp.columns):
 		return fmt.Errorf("the temporary copy holds columns %s, not %s", quoteList(sp.columns), quoteList(columns))
 	case skip != nil && len(skip) != len(sp.kept):
@@ -206,7 +206,7 @@ func (sp *Spill) ScanSome(ctx context.Context, columns []string, skip []bool, fn
 	in := bufio.NewReaderSize(io.NewSectionReader(sp.file, 0, sp.size), spillBufferSize)
 	r, err := ipc.NewReaderFromMessageReader(ipc.NewMessageReader(in, opts...), opts...)
 	if err != nil {
-		return fmt.Errorf("cannot read the temporary copy for the second pass: %w", err)
+		return fmt.Errorf("cannot read the temporary copy of the data: %w", err)
 	}
 	defer r.Release()
 	nulls := newNullArrays(sp.mem)
@@ -218,7 +218,7 @@ func (sp *Spill) ScanSome(ctx context.Context, columns []string, skip []bool, fn
 		}
 		ok, err := guard(func() (bool, error) { return r.Next(), r.Err() })
 		if err != nil {
-			return fmt.Errorf("cannot read the temporary copy for the second pass: %w", err)
+			return fmt.Errorf("cannot read the temporary copy of the data: %w", err)
 		}
 		if !ok {
 			return nil
@@ -226,7 +226,7 @@ func (sp *Spill) ScanSome(ctx context.Context, columns []string, skip []bool, fn
 		rec := r.RecordBatch()
 		b, err := readSpillMeta(rec, len(sp.kept), skip)
 		if err != nil {
-			return fmt.Errorf("cannot read the temporary copy for the second pass: %w", err)
+			return fmt.Errorf("cannot read the temporary copy of the data: %w", err)
 		}
 		n := rec.NumRows()
 		for k, j := range sp.kept {
