@@ -2,7 +2,7 @@ package checks
 
 import (
 	"fmt"
-	"math"
+	"slices"
 	"strconv"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -87,34 +87,75 @@ func newPairCheck(r *rules.Rule, s rules.PairSpec, env *Env) (Check, error) {
 // pairRows reads the rows of a batch where both columns hold a finite
 // value, as float64 (times in seconds since the epoch).
 type pairRows struct {
+	// X and Y are the pairs; Rows the row index in the batch of each, or
+	// nil when every row of the batch is a pair (the pair k is row k).
 	X, Y []float64
-	Rows []int // row index in the batch of each pair
+	Rows []int
 	// NonFinite counts the rows left out for a NaN or an infinite value.
 	NonFinite int64
 	sx, sy    scratch
+	// x, y and rows hold X, Y and Rows when some rows are left out; when
+	// none is, X and Y are the columns' values, read in place when they
+	// are float64.
+	x, y []float64
+	rows []int
 }
 
-// read fills X, Y and Rows from batch b.
+// read fills X, Y and Rows from batch b. A batch without nulls whose
+// values are all finite, the common case, is read without a copy.
 func (p *pairRows) read(x, y column, b *source.Batch) error {
 	ax, ay, err := bothIn(x, y, b)
 	if err != nil {
 		return err
 	}
 	fx, fy := asFloats(x, ax, &p.sx), asFloats(y, ay, &p.sy)
+	if ax.NullN() == 0 && ay.NullN() == 0 && allFinite(fx, fy) {
+		p.X, p.Y, p.Rows = fx, fy, nil
+		return nil
+	}
 	vx, vy := validOf(ax), validOf(ay)
-	p.X, p.Y, p.Rows = p.X[:0], p.Y[:0], p.Rows[:0]
-	for i := range fx {
+	n := len(fx)
+	xs, ys, rows := slices.Grow(p.x[:0], n)[:n], slices.Grow(p.y[:0], n)[:n], slices.Grow(p.rows[:0], n)[:n]
+	fy = fy[:n]
+	m := 0
+	for i, u := range fx {
 		if !vx.at(i) || !vy.at(i) {
 			continue
 		}
-		u, v := fx[i], fy[i]
-		if math.IsNaN(u) || math.IsInf(u, 0) || math.IsNaN(v) || math.IsInf(v, 0) {
+		v := fy[i]
+		if !isFinite(u) || !isFinite(v) {
 			p.NonFinite++
 			continue
 		}
-		p.X, p.Y, p.Rows = append(p.X, u), append(p.Y, v), append(p.Rows, i)
+		xs[m], ys[m], rows[m] = u, v, i
+		m++
 	}
+	p.x, p.y, p.rows = xs, ys, rows
+	p.X, p.Y, p.Rows = xs[:m], ys[:m], rows[:m]
 	return nil
+}
+
+// row is the index in the batch of pair k.
+func (p *pairRows) row(k int) int {
+	if p.Rows == nil {
+		return k
+	}
+	return p.Rows[k]
+}
+
+// isFinite reports whether v is neither NaN nor infinite: v - v is 0 for
+// every finite v and NaN otherwise.
+func isFinite(v float64) bool { return v-v == 0 }
+
+// allFinite reports whether every xs[i] and ys[i] is finite.
+func allFinite(xs, ys []float64) bool {
+	ys = ys[:len(xs)]
+	for i, u := range xs {
+		if !isFinite(u) || !isFinite(ys[i]) {
+			return false
+		}
+	}
+	return true
 }
 
 // bothIn returns the arrays of two columns in batch b.
@@ -152,7 +193,8 @@ func asFloats(c column, a arrow.Array, s *scratch) []float64 {
 // data-row number, so the pairs it keeps, in row order, depend on the
 // rows alone, not on how batches were cut or dealt to accumulators.
 type pairSample struct {
-	s *bottomk.Sample
+	s   *bottomk.Sample
+	buf []float64 // the pairs of a batch, interleaved
 }
 
 // newPairSample returns an empty sample of at most size pairs.
@@ -167,17 +209,29 @@ func newPairSample(size int, seed uint64) (*pairSample, error) {
 // add offers the pairs (xs[i], ys[i]) of data rows first+at[i] (first+i
 // when at is nil).
 func (s *pairSample) add(first int64, at []int, xs, ys []float64) {
-	for i := range xs {
-		row := first + int64(i)
-		if at != nil {
-			row = first + int64(at[i])
-		}
-		s.s.Offer(row, []float64{xs[i], ys[i]})
+	vals := s.interleave(xs, ys)
+	if at == nil {
+		s.s.OfferRun(first, vals)
+	} else {
+		s.s.OfferAt(first, at, vals)
 	}
 }
 
-// offer offers the pairs (xs[i], ys[i]) of rows at[i] of batch b to *s,
-// making it on first use: a sample of at most size pairs keyed by seed.
+// interleave writes the pairs (xs[i], ys[i]) one after the other into the
+// sample's buffer, as a bottomk.Sample takes rows of two values.
+func (s *pairSample) interleave(xs, ys []float64) []float64 {
+	ys = ys[:len(xs)]
+	buf := slices.Grow(s.buf[:0], 2*len(xs))[:2*len(xs)]
+	for i, x := range xs {
+		buf[2*i], buf[2*i+1] = x, ys[i]
+	}
+	s.buf = buf
+	return buf
+}
+
+// offer offers the pairs (xs[i], ys[i]) of rows at[i] of batch b (row i
+// when at is nil) to *s, making it on first use: a sample of at most size
+// pairs keyed by seed.
 func offer(s **pairSample, size int, seed uint64, b *source.Batch, at []int, xs, ys []float64) error {
 	if *s == nil {
 		var err error
@@ -189,8 +243,13 @@ func offer(s **pairSample, size int, seed uint64, b *source.Batch, at []int, xs,
 		(*s).add(b.FirstRow, at, xs, ys)
 		return nil
 	}
-	for i, k := range at {
-		(*s).s.Offer(b.Rows[k], []float64{xs[i], ys[i]})
+	vals := (*s).interleave(xs, ys)
+	for i := range xs {
+		k := i
+		if at != nil {
+			k = at[i]
+		}
+		(*s).s.Offer(b.Rows[k], vals[2*i:2*i+2])
 	}
 	return nil
 }

@@ -345,7 +345,7 @@ func (l *linearLister) Observe(b *source.Batch) error {
 			continue
 		}
 		l.flagged++
-		i := l.rows.Rows[k]
+		i := l.rows.row(k)
 		l.listing.Add(score, b.Row(i), func() report.Row {
 			row := pairRow(c.env, b, i, c.x, c.y)
 			fit := report.Number(ic + sl*x)

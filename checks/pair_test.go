@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/memory"
 
 	"github.com/assay-project/assay/engine/report"
@@ -326,6 +327,128 @@ func TestPairCompileErrors(t *testing.T) {
 		_, err := Compile(newRule(c.spec, within(0, 1), c.cols...), env)
 		if err == nil || !strings.HasSuffix(err.Error(), c.want) {
 			t.Errorf("%s %v: %v, want %q", c.spec.Relation, c.cols, err, c.want)
+		}
+	}
+}
+
+// TestPairRowsRead: the pairs of a batch are the rows where both columns
+// hold a finite value, with their places in the batch, whether the batch
+// is read in place (no nulls, all finite) or copied; a batch read after
+// another holds only its own pairs.
+func TestPairRowsRead(t *testing.T) {
+	inf := math.Inf(1)
+	for _, tc := range []struct {
+		name      string
+		xt        arrow.DataType
+		xs, ys    []any
+		wantRows  []int
+		nonFinite int64
+	}{
+		{"all finite", tFloat, []any{1.5, -2.0, 0.0}, []any{3.0, 4.0, -0.0}, []int{0, 1, 2}, 0},
+		{"nulls", tFloat, []any{1.5, nil, 0.0, 7.0}, []any{3.0, 4.0, nil, 8.0}, []int{0, 3}, 0},
+		{"non-finite", tFloat, []any{math.NaN(), 2.0, inf, 5.0}, []any{1.0, -inf, 3.0, 6.0}, []int{3}, 3},
+		{"nulls and non-finite", tFloat, []any{nil, 2.0, math.NaN(), 5.0}, []any{1.0, nil, 3.0, 6.0}, []int{3}, 1},
+		{"integers", tInt, []any{1, 2, nil, 4}, []any{0.5, 0.25, 1.0, 2.0}, []int{0, 1, 3}, 0},
+		{"float32", arrow.PrimitiveTypes.Float32, []any{1.5, 2.5}, []any{1.0, 2.0}, []int{0, 1}, 0},
+		{"none", tFloat, []any{nil, math.NaN()}, []any{1.0, 2.0}, nil, 1},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			mem := checkedMem(t)
+			b := newBatch(t, mem, 1, col{"x", tc.xt, tc.xs}, col{"y", tFloat, tc.ys})
+			other := newBatch(t, mem, 1, col{"x", tc.xt, tc.xs[:1]}, col{"y", tFloat, []any{nil}})
+			release(t, b, other)
+			env := envOf(b, 20)
+			x, err := bindColumn(env, "x")
+			if err != nil {
+				t.Fatal(err)
+			}
+			y, err := bindColumn(env, "y")
+			if err != nil {
+				t.Fatal(err)
+			}
+			var p pairRows
+			// A batch with no pair first, so that buffers from it must not
+			// show through.
+			for _, bt := range []*source.Batch{other, b} {
+				if err := p.read(x, y, bt); err != nil {
+					t.Fatal(err)
+				}
+			}
+			var rows []int
+			for k := range p.X {
+				rows = append(rows, p.row(k))
+			}
+			if !slices.Equal(rows, tc.wantRows) || p.NonFinite != tc.nonFinite || len(p.Y) != len(p.X) {
+				t.Fatalf("rows %v, %d non-finite, %d x and %d y; want rows %v, %d non-finite",
+					rows, p.NonFinite, len(p.X), len(p.Y), tc.wantRows, tc.nonFinite)
+			}
+			num := func(v any) float64 {
+				if i, ok := v.(int); ok {
+					return float64(i)
+				}
+				return v.(float64)
+			}
+			for k, i := range rows {
+				if wx, wy := num(tc.xs[i]), num(tc.ys[i]); math.Float64bits(p.X[k]) != math.Float64bits(wx) ||
+					math.Float64bits(p.Y[k]) != math.Float64bits(wy) {
+					t.Errorf("pair %d is (%v, %v), want (%v, %v)", k, p.X[k], p.Y[k], wx, wy)
+				}
+			}
+		})
+	}
+}
+
+// TestPairSampleOffers: a pair sample holds the same pairs whether a
+// batch's rows are offered as a run, at their places, or one by one by
+// data-row number (a batch that lists its rows).
+func TestPairSampleOffers(t *testing.T) {
+	const n = 5000
+	xs, ys, at, rows := make([]float64, n), make([]float64, n), make([]int, 0, n), make([]int64, n)
+	for i := range n {
+		xs[i], ys[i], rows[i] = float64(i), float64(3*i), int64(i)+11
+	}
+	for i := 0; i < n; i += 1 + i%3 {
+		at = append(at, i)
+	}
+	pick := func(v []float64) []float64 {
+		var out []float64
+		for _, i := range at {
+			out = append(out, v[i])
+		}
+		return out
+	}
+	for _, size := range []int{100, n} {
+		var run, some, byRow, one *pairSample
+		b := &source.Batch{FirstRow: 11}
+		listed := &source.Batch{Rows: rows}
+		for _, err := range []error{
+			offer(&run, size, 5, b, nil, xs, ys),
+			offer(&some, size, 5, b, at, pick(xs), pick(ys)),
+			offer(&byRow, size, 5, listed, at, pick(xs), pick(ys)),
+		} {
+			if err != nil {
+				t.Fatal(err)
+			}
+		}
+		var err error
+		if one, err = newPairSample(size, 5); err != nil {
+			t.Fatal(err)
+		}
+		for i := range n {
+			one.s.Offer(int64(i)+11, []float64{xs[i], ys[i]})
+		}
+		wx, wy := one.values()
+		if gx, gy := run.values(); !slices.Equal(gx, wx) || !slices.Equal(gy, wy) {
+			t.Errorf("size %d: a run of rows sampled other pairs than rows offered one by one", size)
+		}
+		sx, sy := some.values()
+		if bx, by := byRow.values(); !slices.Equal(sx, bx) || !slices.Equal(sy, by) || len(sx) == 0 {
+			t.Errorf("size %d: rows offered at their places and by their numbers sampled other pairs (%d, %d)", size, len(sx), len(bx))
+		}
+		for k, x := range sx {
+			if sy[k] != 3*x || !slices.Contains(at, int(x)) {
+				t.Fatalf("size %d: pair (%v, %v) was not offered", size, x, sy[k])
+			}
 		}
 	}
 }
