@@ -404,26 +404,50 @@ func (s *splitter) endPlain(fields []span, start, end int, line int64, nonASCII 
 
 // classify returns bitmaps of the 64 bytes of block, bit k for byte k: the
 // delimiters; the bytes that stop plainLine (line feed, quote when quoting
-// is on, NUL); the non-ASCII bytes ("wide"). It reads the block as eight 64-bit
-// words (SWAR, "SIMD within a register"), tests every byte of a word at
-// once with nonzeroBytes and gathers the high bits of the result into a
-// byte with byteBits.
+// is on, NUL); the non-ASCII bytes ("wide"). It reads the block as eight
+// 64-bit words (SWAR, "SIMD within a register"), tests every byte of a word
+// at once with nonzeroBytes and gathers the high bits of the result into a
+// byte with byteBits. Quotes, NUL and non-ASCII bytes are rare, so the
+// first reading only notes whether the block has any; only then does
+// rareBits map them.
 func (s *splitter) classify(block *[64]byte) (delims, stops, wide uint64) {
 	const ones = 0x0101010101010101
-	dl, nl := ones*uint64(s.delim), ones*uint64('\n')
-	qt := nl // with quoting off no byte is a quote; the line feed stands in
-	if s.quotes {
-		qt = ones * uint64(s.quote)
-	}
+	dl, nl, qt := ones*uint64(s.delim), ones*uint64('\n'), s.quoteWord()
+	var rare, high uint64 // some quote or NUL; some non-ASCII byte
 	for k := 0; k < 64; k += 8 {
 		w := binary.LittleEndian.Uint64(block[k : k+8])
-		d := ^nonzeroBytes(w^dl) & highBits
-		st := ^(nonzeroBytes(w^nl) & nonzeroBytes(w^qt) & nonzeroBytes(w)) & highBits
-		delims |= byteBits(d) << k
-		stops |= byteBits(st) << k
+		delims |= byteBits(^nonzeroBytes(w^dl)&highBits) << k
+		stops |= byteBits(^nonzeroBytes(w^nl)&highBits) << k
+		rare |= ^(nonzeroBytes(w^qt) & nonzeroBytes(w))
+		high |= w
+	}
+	if (rare|high)&highBits != 0 {
+		quoted, wide := s.rareBits(block)
+		return delims, stops | quoted, wide
+	}
+	return delims, stops, 0
+}
+
+// quoteWord returns the quote character in each byte of a word, or, with
+// quoting off, the line feed, which no test of a quote then tells apart
+// from what it tests already.
+func (s *splitter) quoteWord() uint64 {
+	if s.quotes {
+		return 0x0101010101010101 * uint64(s.quote)
+	}
+	return 0x0101010101010101 * uint64('\n')
+}
+
+// rareBits maps the quotes and NUL bytes, and the non-ASCII bytes, of a
+// block, as classify does.
+func (s *splitter) rareBits(block *[64]byte) (stops, wide uint64) {
+	qt := s.quoteWord()
+	for k := 0; k < 64; k += 8 {
+		w := binary.LittleEndian.Uint64(block[k : k+8])
+		stops |= byteBits(^(nonzeroBytes(w^qt)&nonzeroBytes(w))&highBits) << k
 		wide |= byteBits(w&highBits) << k
 	}
-	return delims, stops, wide
+	return stops, wide
 }
 
 // byteBits gathers the high bits of the eight bytes of x, whose other bits

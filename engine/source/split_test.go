@@ -89,9 +89,10 @@ func TestSplitBlocks(t *testing.T) {
 	}
 }
 
-// TestSplitLongLines checks records of plain cells that span several
-// blocks, with the delimiter, CRLF and non-ASCII bytes at each position
-// of a block.
+// TestSplitLongLines checks records that span several blocks, with the
+// delimiter, CRLF, non-ASCII bytes and quoted cells (holding a delimiter
+// and a doubled quote, in otherwise ASCII text) at each position of a
+// block.
 func TestSplitLongLines(t *testing.T) {
 	for width := 1; width <= 70; width += 3 {
 		var text bytes.Buffer
@@ -106,6 +107,10 @@ func TestSplitLongLines(t *testing.T) {
 					c = append(c[:len(c)/2+1], append([]byte{0xa9}, c[len(c)/2+1:]...)...)
 				}
 				cells[k] = string(c)
+				if row%4 == 2 && k == len(cells)-1 { // quoted, with a delimiter and a quote
+					c = append(c, ',', '"')
+					cells[k] = `"` + strings.ReplaceAll(string(c), `"`, `""`) + `"`
+				}
 				rec += fmt.Sprintf(" %q", c)
 			}
 			text.WriteString(strings.Join(cells, ","))
