@@ -48,7 +48,9 @@ import (
 //     Detection, ch. 1).
 //
 // The measure is the share of judged rows flagged; flagged rows are listed
-// by score, worst first, with both values and the fitted value.
+// by score, worst first, with both values and the fitted value. Rows that
+// |t| or D provably cannot flag (near x̄, with a small residual; see
+// calmRegion) are counted as judged without computing their score.
 type linearCheck struct {
 	rule  *rules.Rule
 	env   *Env
@@ -310,7 +312,26 @@ func (a *LinearAccumulator) SecondPass() Accumulator {
 		f.err = fmt.Errorf("%s pairs are too few for the default cutoff of %s residuals", thousands(n), c.spec.Residual)
 		return nil
 	}
-	return &linearLister{first: a, fit: f, cutoff: cut, listing: Offenders{Limit: c.env.MaxRowsListed}}
+	l := &linearLister{first: a, fit: f, cutoff: cut, listing: Offenders{Limit: c.env.MaxRowsListed}, calmE: -1}
+	if c.spec.Residual != rules.ResidualStandardized {
+		l.calmDX, l.calmE = calmRegion(&f.ols, c.spec.Residual == rules.ResidualCooks, cut)
+	}
+	return l
+}
+
+// calmRegion returns the rows of a least-squares line that a cutoff on
+// Cook's distance (cooks) or on |t| cannot flag: those with |x - x̄| <=
+// dxMax and a residual |e| <= e0 (relate's CalmCooks and CalmStudentized,
+// exact), e0 = -1 when there are none. dxMax is 8 standard deviations of x
+// (population), or a leverage of 1/n + 1/4 below 256 rows: almost every row
+// of a data set lies within it, and its leverage, at most 1/n + 64/n, makes
+// e0 hardly smaller than at x̄. Rows outside are scored.
+func calmRegion(line *relate.Line, cooks bool, cutoff float64) (dxMax, e0 float64) {
+	dxMax = math.Sqrt(line.Sxx * min(64/float64(line.N), 0.25))
+	if cooks {
+		return dxMax, line.CalmCooks(dxMax, cutoff)
+	}
+	return dxMax, line.CalmStudentized(dxMax, cutoff)
 }
 
 // defaultAlpha is the level of the Bonferroni outlier test behind the
@@ -320,14 +341,19 @@ const defaultAlpha = 0.05
 
 // linearLister is the second pass of a residuals rule: it scores each row
 // against the fitted line and lists those above the cutoff.
+//
+// A least-squares rule does not score the rows that cannot be flagged:
+// those with |x - x̄| <= calmDX and a residual |e| <= calmE (see
+// calmRegion); calmE is -1 when there are none.
 type linearLister struct {
-	first   *LinearAccumulator
-	fit     *linearFit
-	cutoff  float64
-	rows    pairRows
-	judged  int64
-	flagged int64
-	listing Offenders
+	first         *LinearAccumulator
+	fit           *linearFit
+	cutoff        float64
+	calmDX, calmE float64
+	rows          pairRows
+	judged        int64
+	flagged       int64
+	listing       Offenders
 }
 
 // Observe scores the batch's rows.
@@ -336,36 +362,50 @@ func (l *linearLister) Observe(b *source.Batch) error {
 	if err := l.rows.read(c.x, c.y, b); err != nil {
 		return err
 	}
-	ic, sl, _ := l.fit.line()
-	for k, x := range l.rows.X {
-		y := l.rows.Y[k]
-		l.judged++
-		score := l.score(x, y)
-		if !(score > l.cutoff) {
+	l.judged += int64(len(l.rows.X))
+	xs, ys := l.rows.X, l.rows.Y[:len(l.rows.X)]
+	if c.spec.Residual == rules.ResidualStandardized {
+		for k, x := range xs {
+			l.judge(b, k, x, math.Abs(l.fit.robust.Standardized(x, ys[k])))
+		}
+		return nil
+	}
+	line := &l.fit.ols
+	cooks := c.spec.Residual == rules.ResidualCooks
+	calmDX, calmE := l.calmDX, l.calmE
+	for k, x := range xs {
+		dx, e := line.Residual(x, ys[k])
+		if math.Abs(dx) <= calmDX && math.Abs(e) <= calmE {
 			continue
 		}
-		l.flagged++
-		i := l.rows.row(k)
-		l.listing.Add(score, b.Row(i), func() report.Row {
-			row := pairRow(c.env, b, i, c.x, c.y)
-			fit := report.Number(ic + sl*x)
-			row.Fitted = &fit
-			return row
-		})
+		var score float64
+		if cooks {
+			score = line.CooksDistance(dx, e)
+		} else {
+			score = line.AbsStudentized(dx, e)
+		}
+		l.judge(b, k, x, score)
 	}
 	return nil
 }
 
-// score is how far the row (x, y) is from the line by the rule's measure:
-// |t|, D or |e|/s; NaN where it is undefined (a row of leverage 1).
-func (l *linearLister) score(x, y float64) float64 {
-	switch l.first.check.spec.Residual {
-	case rules.ResidualCooks:
-		return l.fit.ols.Diagnose(x, y).Cooks
-	case rules.ResidualStandardized:
-		return math.Abs(l.fit.robust.Standardized(x, y))
+// judge counts and lists pair k of the batch, whose x is x, when its
+// score is above the cutoff. A score is |t|, D or |e|/s, NaN where it is undefined
+// (a row of leverage 1), which is never above.
+func (l *linearLister) judge(b *source.Batch, k int, x, score float64) {
+	if !(score > l.cutoff) {
+		return
 	}
-	return math.Abs(l.fit.ols.Diagnose(x, y).Studentized)
+	c := l.first.check
+	l.flagged++
+	i := l.rows.row(k)
+	l.listing.Add(score, b.Row(i), func() report.Row {
+		ic, sl, _ := l.fit.line()
+		row := pairRow(c.env, b, i, c.x, c.y)
+		fit := report.Number(ic + sl*x)
+		row.Fitted = &fit
+		return row
+	})
 }
 
 // Merge adds other's counts and listing to l.

@@ -3,6 +3,7 @@ package checks
 import (
 	"bufio"
 	"math"
+	"math/rand/v2"
 	"os"
 	"reflect"
 	"slices"
@@ -450,5 +451,108 @@ func TestPairSampleOffers(t *testing.T) {
 				t.Fatalf("size %d: pair (%v, %v) was not offered", size, x, sy[k])
 			}
 		}
+	}
+}
+
+// TestLinearCalmRows: a least-squares residuals rule that does not score
+// the rows of its calm region (calmRegion) flags and lists exactly the
+// rows that scoring every one by relate's Diagnose flags, over data with
+// planted outliers and rows placed a few ulps either side of the region's
+// edges, where some are flagged and some are not.
+func TestLinearCalmRows(t *testing.T) {
+	mem := checkedMem(t)
+	rng := rand.New(rand.NewPCG(5, 6))
+	var xs, ys []float64
+	for i := range 3000 {
+		x := 40 + 8*rng.NormFloat64()
+		y := 3 + 2*x + 5*rng.NormFloat64()
+		if i%500 == 7 {
+			y += 30
+		}
+		xs, ys = append(xs, x), append(ys, y)
+	}
+	bs := pairBatches(t, mem, xs, ys, 700)
+	env := envOf(bs[0], 1000)
+	for _, res := range []rules.ResidualRule{rules.ResidualStudentized, rules.ResidualCooks} {
+		t.Run(string(res), func(t *testing.T) {
+			r := linearRule(rules.PairResiduals, rules.FitOLS, atMost(1))
+			s := r.Spec.(rules.PairSpec)
+			s.Residual = res
+			if res == rules.ResidualCooks {
+				s.Cutoff = 0.004 // CooksCutoff flags no row of 3,000
+			}
+			r.Spec = s
+			first := compile(t, r, env).NewAccumulator()
+			observe(t, first, bs...)
+			l := first.(Rescanner).SecondPass().(*linearLister)
+			line := l.fit.ols
+			if !(l.calmE > 0 && l.calmDX > 0) {
+				t.Fatalf("calm region |dx| <= %v, |e| <= %v: empty", l.calmDX, l.calmE)
+			}
+			// Probes: x at the region's edge along x and within, y a few
+			// ulps around the edge along e, either side of the line.
+			var px, py []float64
+			for _, dx := range []float64{l.calmDX, -l.calmDX, math.Nextafter(l.calmDX, 0), 1.001 * l.calmDX, l.calmDX / 2, 0} {
+				x := line.MeanX + dx
+				dx, _ := line.Residual(x, 0)
+				for _, sign := range []float64{1, -1} {
+					y := line.MeanY + line.Slope*dx + sign*l.calmE
+					for range 4 {
+						y = math.Nextafter(y, math.Inf(-1))
+					}
+					for range 9 {
+						px, py = append(px, x), append(py, y)
+						y = math.Nextafter(y, math.Inf(1))
+					}
+				}
+			}
+			probes := pairBatches(t, mem, px, py, len(px))[0]
+			probes.FirstRow = int64(len(xs)) + 1
+			all := append(slices.Clone(bs), probes)
+			observe(t, l, all...)
+			got := l.Finish()
+
+			var wantRows []int64
+			var wantScores []float64
+			inside, flaggedProbes := 0, 0
+			for k, x := range append(slices.Clone(xs), px...) {
+				y := append(slices.Clone(ys), py...)[k]
+				p := line.Diagnose(x, y)
+				score := math.Abs(p.Studentized)
+				if res == rules.ResidualCooks {
+					score = p.Cooks
+				}
+				dx, e := line.Residual(x, y)
+				calm := math.Abs(dx) <= l.calmDX && math.Abs(e) <= l.calmE
+				if k >= len(xs) && calm {
+					inside++
+				}
+				if score > l.cutoff {
+					if calm {
+						t.Errorf("row %d (dx %v, e %v) is in the calm region but scores %v", k+1, dx, e, score)
+					}
+					if k >= len(xs) {
+						flaggedProbes++
+					}
+					wantRows, wantScores = append(wantRows, int64(k)+1), append(wantScores, score)
+				}
+			}
+			if inside == 0 || flaggedProbes == 0 {
+				t.Fatalf("%d probes inside the calm region, %d flagged: the probes do not straddle its edge", inside, flaggedProbes)
+			}
+			count, rows, scores := listed(got)
+			byRow := map[int64]float64{}
+			for i, row := range rows {
+				byRow[row] = scores[i]
+			}
+			if count != int64(len(wantRows)) || len(rows) != len(wantRows) {
+				t.Fatalf("%d rows flagged, %d listed; scoring every row flags %d", count, len(rows), len(wantRows))
+			}
+			for i, row := range wantRows {
+				if s, ok := byRow[row]; !ok || s != wantScores[i] {
+					t.Errorf("row %d: listed %v (%v), scoring every row gives %v", row, s, ok, wantScores[i])
+				}
+			}
+		})
 	}
 }

@@ -39,26 +39,127 @@ type Point struct {
 // taken from the centred values, which avoids the rounding of the
 // intercept.
 func (l Line) Diagnose(x, y float64) Point {
-	const p = 2
-	n := float64(l.N)
-	dx := x - l.MeanX
-	e := (y - l.MeanY) - l.Slope*dx
-	h := 1/n + dx*dx/l.Sxx
+	dx, e := l.Residual(x, y)
+	h := l.leverage(dx)
 	pt := Point{Residual: e, Leverage: h, Studentized: math.NaN(), Cooks: math.NaN()}
-	if h >= 1-10*epsilon {
+	if atOne(h) {
 		// The row's x is the only one off x̄ (R's lm.influence rounds h
 		// this close to 1 up to 1): the fit goes through it.
 		pt.Leverage = 1
 		return pt
 	}
-	if l.ResidualVar > 0 {
-		pt.Cooks = e * e * h / (p * l.ResidualVar * (1 - h) * (1 - h))
-	}
-	if n-p-1 >= 1 {
-		s2i := math.Max(0, ((n-p)*l.ResidualVar-e*e/(1-h))/(n-p-1))
-		pt.Studentized = e / (math.Sqrt(s2i) * math.Sqrt(1-h))
-	}
+	pt.Cooks, pt.Studentized = l.cooks(e, h), l.studentized(e, h)
 	return pt
+}
+
+// Residual returns the row's distance from x̄ along x, dx = x - x̄, and its
+// residual e = (y - ȳ) - Slope·dx, from which Diagnose, AbsStudentized and
+// CooksDistance work.
+func (l *Line) Residual(x, y float64) (dx, e float64) {
+	dx = x - l.MeanX
+	return dx, (y - l.MeanY) - l.Slope*dx
+}
+
+// AbsStudentized is |t| of the row whose Residual is (dx, e), as Diagnose
+// computes it (NaN where t is), without Cook's distance.
+func (l *Line) AbsStudentized(dx, e float64) float64 {
+	h := l.leverage(dx)
+	if atOne(h) {
+		return math.NaN()
+	}
+	return math.Abs(l.studentized(e, h))
+}
+
+// CooksDistance is D of the row whose Residual is (dx, e), as Diagnose
+// computes it (NaN where D is), without the studentized residual.
+func (l *Line) CooksDistance(dx, e float64) float64 {
+	h := l.leverage(dx)
+	if atOne(h) {
+		return math.NaN()
+	}
+	return l.cooks(e, h)
+}
+
+// leverage is h = 1/n + dx²/Sxx.
+func (l *Line) leverage(dx float64) float64 { return 1/float64(l.N) + dx*dx/l.Sxx }
+
+// atOne reports whether a leverage h counts as 1: within 10 ulp of it.
+func atOne(h float64) bool { return h >= 1-10*epsilon }
+
+// diagnosedCoefs is p, the coefficients of a simple linear fit.
+const diagnosedCoefs = 2
+
+// cooks is D = e² h / (p s² (1-h)²), NaN when s² is 0.
+func (l *Line) cooks(e, h float64) float64 {
+	const p = diagnosedCoefs
+	if !(l.ResidualVar > 0) {
+		return math.NaN()
+	}
+	return e * e * h / (p * l.ResidualVar * (1 - h) * (1 - h))
+}
+
+// studentized is t = e / (s_(i) sqrt(1-h)), NaN when n < 4.
+func (l *Line) studentized(e, h float64) float64 {
+	const p = diagnosedCoefs
+	n := float64(l.N)
+	if !(n-p-1 >= 1) {
+		return math.NaN()
+	}
+	s2i := math.Max(0, ((n-p)*l.ResidualVar-e*e/(1-h))/(n-p-1))
+	return e / (math.Sqrt(s2i) * math.Sqrt(1-h))
+}
+
+// CalmStudentized returns e0, the largest |e| such that every row whose
+// Residual (dx, e) has |dx| <= dxMax and |e| <= e0 has AbsStudentized at
+// most cutoff, so that a second pass need not compute it for those rows;
+// -1 when no row qualifies (a row at |dx| = dxMax with e = 0 scores NaN
+// or above cutoff). See calm for why the bound holds.
+func (l *Line) CalmStudentized(dxMax, cutoff float64) float64 {
+	return calm(l.AbsStudentized, dxMax, cutoff)
+}
+
+// CalmCooks is CalmStudentized for CooksDistance.
+func (l *Line) CalmCooks(dxMax, cutoff float64) float64 {
+	return calm(l.CooksDistance, dxMax, cutoff)
+}
+
+// calm returns the largest float64 e0 >= 0 with score(dxMax, e0) <=
+// cutoff (+Inf when it holds there), by bisection on the bits of e0, or
+// -1 when score(dxMax, 0) is not at most cutoff (or is NaN).
+//
+// Why every row with |dx| <= dxMax and |e| <= e0 then scores at most
+// cutoff as computed, not only in exact arithmetic. score is
+// AbsStudentized or CooksDistance: a chain of IEEE operations on |e| (the
+// sign of e drops out: e·e = |e|·|e|, and rounding a quotient is
+// symmetric) and on dx·dx, each correctly rounded and so weakly monotone
+// in its operands. h = 1/n + dx²/Sxx grows with |dx|; e²/(1-h),
+// (n-p)s² - e²/(1-h), the square roots, products and quotients follow in
+// turn; so the computed |t| and D are weakly increasing in |e| and in h,
+// hence in |dx|. The NaN cases: a score is NaN at leverage 1 (h within
+// 10 ulp of 1), t below 4 rows and at e = 0 with no variance left, D when
+// s² = 0. As score(dxMax, e0) is not NaN, h at dxMax, and so at every
+// smaller |dx|, is below the leverage-1 threshold, and n >= 4 (t) or
+// s² > 0 (D); a row of the region that still scores NaN is never above
+// the cutoff. Rows outside the region are scored as before, so skipping
+// those inside changes no result.
+func calm(score func(dx, e float64) float64, dxMax, cutoff float64) float64 {
+	ok := func(e float64) bool { return score(dxMax, e) <= cutoff }
+	if !ok(0) {
+		return -1
+	}
+	lo, hi := uint64(0), math.Float64bits(math.Inf(1))
+	if ok(math.Inf(1)) {
+		return math.Inf(1)
+	}
+	for hi-lo > 1 {
+		mid := lo + (hi-lo)/2
+		if ok(math.Float64frombits(mid)) {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return math.Float64frombits(lo)
 }
 
 // epsilon is the spacing of float64 at 1, R's .Machine$double.eps.

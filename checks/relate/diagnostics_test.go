@@ -1,6 +1,7 @@
 package relate
 
 import (
+	"fmt"
 	"math"
 	"strconv"
 	"testing"
@@ -130,5 +131,116 @@ func TestBonferroniSize(t *testing.T) {
 		t.Errorf("%d of %d clean samples had a row flagged at 5%%", hits, reps)
 	} else {
 		t.Logf("%d of %d clean samples had a row flagged at 5%%", hits, reps)
+	}
+}
+
+// TestResidualScores: AbsStudentized and CooksDistance of a row's
+// Residual are, bit for bit, |t| and D of Diagnose, NaN where those are.
+func TestResidualScores(t *testing.T) {
+	rng := newRand(41)
+	for _, n := range []int{3, 4, 7, 500} {
+		x, y := linearSample(rng, n, 20, 4, 1, -0.5, 2)
+		var m Moments
+		m.AddAll(x, y)
+		l, err := m.Line()
+		if err != nil {
+			t.Fatal(err)
+		}
+		x, y = append(x, l.MeanX, 1e6, 20), append(y, l.MeanY, 3, 1e6)
+		for i := range x {
+			want := l.Diagnose(x[i], y[i])
+			dx, e := l.Residual(x[i], y[i])
+			if e != want.Residual {
+				t.Errorf("n %d row %d: residual %v, Diagnose %v", n, i, e, want.Residual)
+			}
+			st, ck := l.AbsStudentized(dx, e), l.CooksDistance(dx, e)
+			if math.Float64bits(st) != math.Float64bits(math.Abs(want.Studentized)) && !(math.IsNaN(st) && math.IsNaN(want.Studentized)) ||
+				math.Float64bits(ck) != math.Float64bits(want.Cooks) && !(math.IsNaN(ck) && math.IsNaN(want.Cooks)) {
+				t.Errorf("n %d row %d: |t| %v, D %v; Diagnose %+v", n, i, st, ck, want)
+			}
+		}
+	}
+}
+
+// TestCalmResidual: the bound e0 of CalmStudentized and CalmCooks is
+// tight, so that the test fails if it is one ulp too wide: a row at
+// |dx| = dxMax with |e| = e0 scores at most the cutoff and one with the
+// next float64 above e0 scores above it. Rows inside the region, at its
+// edges and corners and within, are never above the cutoff, and where no
+// row qualifies e0 is -1.
+func TestCalmResidual(t *testing.T) {
+	rng := newRand(43)
+	line := func(x, y []float64) Line {
+		t.Helper()
+		var m Moments
+		m.AddAll(x, y)
+		l, err := m.Line()
+		if err != nil {
+			t.Fatal(err)
+		}
+		return l
+	}
+	nx, ny := linearSample(rng, 1000, 50, 10, 3, 2, 5)
+	sx, sy := linearSample(rng, 5, 0, 1, 0, 1, 0.1)
+	fx, fy := linearSample(rng, 4, 0, 1, 0, 1, 1)
+	lines := map[string]Line{
+		"normal 1000": line(nx, ny),
+		"5 rows":      line(sx, sy),
+		"4 rows":      line(fx, fy),
+		"3 rows":      line([]float64{0, 1, 2}, []float64{0, 2, 1}),
+		"perfect fit": line([]float64{1, 2, 3, 4}, []float64{3, 5, 7, 9}),
+		"one x apart": line([]float64{0, 0, 0, 0, 0, 0, 1}, []float64{1, 2, 1, 2, 1, 2, 5}),
+	}
+	type scorer struct {
+		name  string
+		score func(l *Line, dx, e float64) float64
+		calm  func(l *Line, dxMax, cutoff float64) float64
+	}
+	scorers := []scorer{
+		{"studentized", (*Line).AbsStudentized, (*Line).CalmStudentized},
+		{"cooks", (*Line).CooksDistance, (*Line).CalmCooks},
+	}
+	for name, l := range lines {
+		sd := math.Sqrt(l.Sxx / float64(l.N))
+		for _, s := range scorers {
+			for _, dxMax := range []float64{0, sd, 8 * sd, math.Sqrt(l.Sxx)} {
+				for _, cutoff := range []float64{BonferroniCutoff(0.05, max(l.N, 4)), CooksCutoff(l.N), 3, 0.01, 0, math.Inf(1), math.NaN()} {
+					what := fmt.Sprintf("%s, %s, dxMax %v, cutoff %v", name, s.name, dxMax, cutoff)
+					e0 := s.calm(&l, dxMax, cutoff)
+					if e0 < 0 {
+						if e0 != -1 || s.score(&l, dxMax, 0) <= cutoff {
+							t.Errorf("%s: e0 %v, but a row at e = 0 scores %v", what, e0, s.score(&l, dxMax, 0))
+						}
+						continue
+					}
+					if v := s.score(&l, dxMax, e0); !(v <= cutoff) {
+						t.Errorf("%s: a row at e0 = %v scores %v", what, e0, v)
+					}
+					if wider := math.Nextafter(e0, math.Inf(1)); !math.IsInf(e0, 1) && !(s.score(&l, dxMax, wider) > cutoff) {
+						t.Errorf("%s: e0 = %v is not the largest: %v scores %v", what, e0, wider, s.score(&l, dxMax, wider))
+					}
+					dxs := []float64{0, dxMax, math.Nextafter(dxMax, 0), dxMax / 3, 1e-300}
+					es := []float64{0, e0, math.Nextafter(e0, 0), e0 / 2, 5e-324}
+					for range 20 {
+						dxs, es = append(dxs, dxMax*rng.Float64()), append(es, e0*rng.Float64())
+					}
+					for _, dx := range dxs {
+						for _, e := range es {
+							if math.IsInf(e, 0) || math.IsNaN(e) {
+								e = math.MaxFloat64
+							}
+							if dx > dxMax || e > e0 {
+								continue // a probe beyond the region
+							}
+							for _, v := range []float64{s.score(&l, dx, e), s.score(&l, -dx, e), s.score(&l, dx, -e), s.score(&l, -dx, -e)} {
+								if v > cutoff {
+									t.Errorf("%s: the row at dx %v, e %v in the calm region scores %v", what, dx, e, v)
+								}
+							}
+						}
+					}
+				}
+			}
+		}
 	}
 }
