@@ -123,88 +123,213 @@ type JointAccumulator struct {
 	found *jointFinding
 }
 
-// jointRows reads a batch's columns as float64, a row at a time.
+// jointRows reads a batch's columns as float64 and finds its judged rows,
+// those with a finite value in every column.
 type jointRows struct {
 	scratch []scratch
-	cols    [][]float64 // per column, NaN for a missing value
-	row     []float64
-	judged  [][]float64 // per column, the judged rows of a batch
+	// cols holds each column's values (float64 ones in place), null
+	// slots with arbitrary values; valid their validity.
+	cols  [][]float64
+	valid []valid
+	// Rows are the judged rows' places in the batch, or nil when every
+	// row is judged (All).
+	Rows []int
+	All  bool
+	// N is the number of rows in the batch, Judged the number judged.
+	N, Judged int
+	rows      []int     // Rows' buffer
+	bad       []uint8   // 1 for the rows not judged
+	flat      []float64 // the judged rows, one after the other (gather)
+	judged    [][]float64
 }
 
-// read converts the batch's columns; it returns the number of rows.
-func (j *jointRows) read(c *jointCheck, b *source.Batch) (int, error) {
+// read reads the batch's columns and finds the judged rows.
+func (j *jointRows) read(c *jointCheck, b *source.Batch) error {
 	p := len(c.cols)
 	if j.cols == nil {
-		j.scratch, j.cols, j.row, j.judged = make([]scratch, p), make([][]float64, p), make([]float64, p), make([][]float64, p)
+		j.scratch, j.cols, j.judged = make([]scratch, p), make([][]float64, p), make([][]float64, p)
 	}
 	n := int(b.Record.NumRows())
+	nulls := false
+	j.valid = j.valid[:0]
 	for k, col := range c.cols {
 		arr, err := col.in(b)
 		if err != nil {
-			return 0, err
+			return err
 		}
-		dst := slices.Grow(j.cols[k][:0], n)[:n]
-		v := validOf(arr)
-		if col.class == classNumber {
-			for i, x := range float64s(arr, &j.scratch[k].floats) {
-				if !v.at(i) {
-					x = math.NaN()
-				}
-				dst[i] = x
-			}
-		} else {
-			for i, x := range int64s(arr, &j.scratch[k].ints) {
-				dst[i] = float64(x)
-				if !v.at(i) {
-					dst[i] = math.NaN()
-				}
-			}
-		}
-		j.cols[k] = dst
+		j.cols[k] = asFloats(col, arr, &j.scratch[k])[:n]
+		j.valid = append(j.valid, validOf(arr))
+		nulls = nulls || arr.NullN() > 0
 	}
-	return n, nil
+	j.N = n
+	if !nulls && columnsFinite(j.cols...) {
+		j.All, j.Rows, j.Judged = true, nil, n
+		return nil
+	}
+	// Column by column, mark the rows with a null or a non-finite value
+	// (bad[i] = 1), then list the others, without a branch per row.
+	bad := slices.Grow(j.bad[:0], n)[:n]
+	clear(bad)
+	for k, v := range j.cols {
+		if vk := j.valid[k]; vk.bits != nil {
+			markNulls(bad, vk)
+		}
+		if !columnsFinite(v) {
+			for i, x := range v {
+				if !isFinite(x) {
+					bad[i] = 1
+				}
+			}
+		}
+	}
+	j.bad = bad
+	rows := slices.Grow(j.rows[:0], n)[:n]
+	m := 0
+	for i, out := range bad {
+		rows[m] = i
+		m += int(1 - out)
+	}
+	rows = rows[:m]
+	j.rows = rows
+	j.All, j.Rows, j.Judged = false, rows, len(rows)
+	return nil
 }
 
-// at loads row i into j.row and reports whether every value is finite.
-func (j *jointRows) at(i int) bool {
-	for k, col := range j.cols {
-		x := col[i]
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return false
+// columnsFinite reports whether every value of cols is finite: whether
+// the sums of x - x, +0 for a finite x and NaN otherwise, are 0 (four of
+// them, so that the additions do not wait on one another).
+func columnsFinite(cols ...[]float64) bool {
+	var s0, s1, s2, s3 float64
+	for _, v := range cols {
+		for ; len(v) >= 4; v = v[4:] {
+			s0 += v[0] - v[0]
+			s1 += v[1] - v[1]
+			s2 += v[2] - v[2]
+			s3 += v[3] - v[3]
 		}
-		j.row[k] = x
+		for _, x := range v {
+			s0 += x - x
+		}
 	}
-	return true
+	return s0+s1+s2+s3 == 0
+}
+
+// markNulls sets bad[i] to 1 where v says row i is null, skipping the
+// bitmap's bytes of eight values.
+func markNulls(bad []uint8, v valid) {
+	n := len(bad)
+	for i := 0; i < n; {
+		pos := v.offset + i
+		if pos&7 == 0 && i+8 <= n && v.bits[pos>>3] == 0xff {
+			i += 8
+			continue
+		}
+		bad[i] |= ^v.bits[pos>>3] >> (pos & 7) & 1
+		i++
+	}
+}
+
+// row returns the place in the batch of judged row k.
+func (j *jointRows) row(k int) int {
+	if j.All {
+		return k
+	}
+	return j.Rows[k]
+}
+
+// values writes the values of the row at place i of the batch into dst.
+func (j *jointRows) values(i int, dst []float64) []float64 {
+	dst = dst[:0]
+	for _, v := range j.cols {
+		dst = append(dst, v[i])
+	}
+	return dst
+}
+
+// gather returns the judged rows' values one row after the other (p per
+// row), as a bottomk.Sample takes them.
+func (j *jointRows) gather() []float64 {
+	p := len(j.cols)
+	flat := slices.Grow(j.flat[:0], p*j.Judged)[:p*j.Judged]
+	j.flat = flat
+	if j.Judged == 0 {
+		return flat
+	}
+	for c, v := range j.cols {
+		dst := flat[c:]
+		if j.All {
+			for t, x := range v {
+				dst[t*p] = x
+			}
+			continue
+		}
+		for t, i := range j.Rows {
+			dst[t*p] = v[i]
+		}
+	}
+	j.flat = flat
+	return flat
+}
+
+// columns returns the judged rows' values by column: the columns
+// themselves when every row is judged.
+func (j *jointRows) columns() [][]float64 {
+	if j.All {
+		return j.cols
+	}
+	for k, v := range j.cols {
+		out := slices.Grow(j.judged[k][:0], len(j.Rows))
+		for _, i := range j.Rows {
+			out = append(out, v[i])
+		}
+		j.judged[k] = out
+	}
+	return j.judged
+}
+
+// offerRows offers the judged rows of batch b to sample s, p values each
+// from vals (judged row k holds vals[k*p : (k+1)*p]). When b's rows are
+// consecutive data rows, each run of consecutive judged rows is offered
+// at once (bottomk's OfferRun, the sample's fast path): a sample is a
+// function of the rows offered, not of how they were offered.
+func offerRows(s *bottomk.Sample, b *source.Batch, j *jointRows, vals []float64) {
+	p := s.P()
+	if b.Rows != nil {
+		for k := range j.Judged {
+			s.Offer(b.Rows[j.row(k)], vals[k*p:(k+1)*p])
+		}
+		return
+	}
+	if j.All {
+		s.OfferRun(b.FirstRow, vals)
+		return
+	}
+	rows := j.Rows
+	for lo := 0; lo < len(rows); {
+		hi := lo + 1
+		for hi < len(rows) && rows[hi] == rows[hi-1]+1 {
+			hi++
+		}
+		s.OfferRun(b.FirstRow+int64(rows[lo]), vals[lo*p:hi*p])
+		lo = hi
+	}
 }
 
 // Observe adds the batch's judged rows to the moments or the sample.
 func (a *JointAccumulator) Observe(b *source.Batch) error {
-	n, err := a.rows.read(a.check, b)
-	if err != nil {
+	if err := a.rows.read(a.check, b); err != nil {
 		return err
 	}
-	judged := a.rows.judged
-	for k := range judged {
-		judged[k] = judged[k][:0]
+	a.N += int64(a.rows.Judged)
+	a.Skipped += int64(a.rows.N - a.rows.Judged)
+	if a.rows.Judged == 0 {
+		return nil
 	}
-	for i := range n {
-		if !a.rows.at(i) {
-			a.Skipped++
-			continue
-		}
-		a.N++
-		if a.Sample != nil {
-			a.Sample.Offer(b.Row(i), a.rows.row)
-			continue
-		}
-		for k, x := range a.rows.row {
-			judged[k] = append(judged[k], x)
-		}
+	if a.Sample != nil {
+		offerRows(a.Sample, b, &a.rows, a.rows.gather())
+		return nil
 	}
-	if a.Moments != nil {
-		return a.Moments.AddColumns(judged)
-	}
-	return nil
+	return a.Moments.AddColumns(a.rows.columns())
 }
 
 // Merge folds other's counts and moments or sample into a.
@@ -387,37 +512,43 @@ type jointJudge struct {
 	listing Offenders
 	rows    jointRows
 	plot    *bottomk.Sample
+	d2      []float64 // the batch's judged rows' squared distances
 }
 
 // Observe judges the batch's rows.
 func (l *jointJudge) Observe(b *source.Batch) error {
 	c := l.check
-	n, err := l.rows.read(c, b)
-	if err != nil {
+	if err := l.rows.read(c, b); err != nil {
 		return err
 	}
 	if l.plot == nil {
+		var err error
 		if l.plot, err = bottomk.New(maxQQSample, 1, c.spec.Seed^plotSeed); err != nil {
 			return err
 		}
 	}
-	s := l.found.scatter
-	idx := make([]int, len(c.cols))
-	for k, col := range c.cols {
-		idx[k] = col.index
+	if l.rows.Judged == 0 {
+		return nil
 	}
-	for i := range n {
-		if !l.rows.at(i) {
-			continue
-		}
-		d2 := s.Dist2(l.rows.row)
-		l.plot.Offer(b.Row(i), []float64{d2})
+	s := l.found.scatter
+	var rows []int
+	if !l.rows.All {
+		rows = l.rows.Rows
+	}
+	l.d2 = s.DistancesAt(l.rows.cols, rows, l.d2)
+	offerRows(l.plot, b, &l.rows, l.d2)
+	for k, d2 := range l.d2 {
 		if !(d2 > c.cutoff) {
 			continue
 		}
+		i := l.rows.row(k)
 		l.listing.Add(d2, b.Row(i), func() report.Row {
+			idx := make([]int, len(c.cols))
+			for k, col := range c.cols {
+				idx[k] = col.index
+			}
 			row := RowAt(c.env, b, i, idx)
-			row.Contributions = contributions(c, s.Contributions(l.rows.row))
+			row.Contributions = contributions(c, s.Contributions(l.rows.values(i, nil)))
 			return row
 		})
 	}

@@ -351,3 +351,114 @@ func TestKeyOrderColumns(t *testing.T) {
 		}
 	}
 }
+
+// TestJointRowsRead: the judged rows of a batch are those with a value,
+// finite, in every column, whether every row is (read in place), some
+// are, or none; at any offset of the columns' validity bitmaps (a slice
+// of a batch); and a sample offered the judged rows in runs holds what
+// one offered them row by row holds.
+func TestJointRowsRead(t *testing.T) {
+	nan, inf := math.NaN(), math.Inf(1)
+	const n = 40
+	clean := func(k int) []any {
+		out := make([]any, n)
+		for i := range out {
+			out[i] = float64(i*(k+1)) + 0.5
+		}
+		return out
+	}
+	with := func(vals []any, at map[int]any) []any {
+		out := slices.Clone(vals)
+		for i, v := range at {
+			out[i] = v
+		}
+		return out
+	}
+	ints, every := make([]any, n), make([]int, n)
+	for i := range ints {
+		ints[i], every[i] = i-7, i
+	}
+	for _, tc := range []struct {
+		name       string
+		x, y, z    []any
+		notJudged  []int
+		integerCol bool
+	}{
+		{"all judged", clean(0), clean(1), clean(2), nil, false},
+		{"nulls", with(clean(0), map[int]any{3: nil, 17: nil}), clean(1), with(clean(2), map[int]any{17: nil, 30: nil}), []int{3, 17, 30}, false},
+		{"non-finite", with(clean(0), map[int]any{0: nan}), with(clean(1), map[int]any{9: inf, 39: -inf}), clean(2), []int{0, 9, 39}, false},
+		{"integers", with(clean(0), map[int]any{8: nil}), clean(1), with(ints, map[int]any{5: nil}), []int{5, 8}, true},
+		{"none judged", clean(0), slices.Repeat([]any{nil}, n), clean(2), every, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			mem := checkedMem(t)
+			zt := tFloat
+			if tc.integerCol {
+				zt = tInt
+			}
+			whole := newBatch(t, mem, 1, col{"x", tFloat, tc.x}, col{"y", tFloat, tc.y}, col{"z", zt, tc.z})
+			release(t, whole)
+			env := envOf(whole, 20)
+			c := compile(t, newRule(jointSpec(true), atMost(1), "x", "y", "z"), env).(*jointCheck)
+			head, tail := split(t, whole, 13) // the tail's bitmaps start at bit 13
+			release(t, head, tail)
+			for _, part := range []struct {
+				b      *source.Batch
+				lo, hi int
+			}{{whole, 0, n}, {head, 0, 13}, {tail, 13, n}} {
+				var want []int
+				for i := part.lo; i < part.hi; i++ {
+					if !slices.Contains(tc.notJudged, i) {
+						want = append(want, i-part.lo)
+					}
+				}
+				var j jointRows
+				if err := j.read(c, part.b); err != nil {
+					t.Fatal(err)
+				}
+				var got []int
+				for k := range j.Judged {
+					got = append(got, j.row(k))
+				}
+				if !slices.Equal(got, want) || j.N != part.hi-part.lo || j.All != (len(want) == j.N) {
+					t.Fatalf("rows %d-%d: judged %v (all %v of %d), want %v", part.lo, part.hi, got, j.All, j.N, want)
+				}
+				num := func(v any) float64 {
+					if i, ok := v.(int); ok {
+						return float64(i)
+					}
+					return v.(float64)
+				}
+				flat, cols := j.gather(), j.columns()
+				for k, i := range want {
+					for m, vals := range [][]any{tc.x, tc.y, tc.z} {
+						w := num(vals[part.lo+i])
+						if flat[3*k+m] != w || cols[m][k] != w {
+							t.Errorf("judged row %d, column %d: %v and %v, want %v", k, m, flat[3*k+m], cols[m][k], w)
+						}
+					}
+				}
+				runs, byRow := bottomkSample(t, 7), bottomkSample(t, 7)
+				offerRows(runs, part.b, &j, flat)
+				for k := range j.Judged {
+					byRow.Offer(part.b.Row(j.row(k)), flat[3*k:3*k+3])
+				}
+				for m := range 3 {
+					if !slices.Equal(runs.Values(m), byRow.Values(m)) {
+						t.Errorf("rows %d-%d: a sample offered runs holds other values of column %d", part.lo, part.hi, m)
+					}
+				}
+			}
+		})
+	}
+}
+
+// bottomkSample is a sample of at most size rows of three values.
+func bottomkSample(t *testing.T, size int) *bottomk.Sample {
+	t.Helper()
+	s, err := bottomk.New(size, 3, 11)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}

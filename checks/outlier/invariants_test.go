@@ -644,3 +644,44 @@ func FuzzUnivariate(f *testing.F) {
 		}
 	})
 }
+
+// TestDistancesAtMatchDist2: the squared distances of a batch of rows
+// (DistancesAt, Distances, with the unrolled loop for three columns) are
+// those of Dist2 row by row, to the bit, for every row and
+// for a list of rows, zeros of either sign included.
+func TestDistancesAtMatchDist2(t *testing.T) {
+	rng := newRand(17)
+	for p := 1; p <= 5; p++ {
+		cols := gaussianColumns(rng, 400, p)
+		s, err := Classical(cols)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for j := range p {
+			cols[j] = append(cols[j], s.Center[j], math.Copysign(0, -1), 1e300)
+		}
+		n := len(cols[0])
+		rows := []int{n - 1, 3, 3, 0, n - 3, n - 2}
+		for _, at := range [][]int{nil, rows} {
+			got := s.DistancesAt(cols, at, nil)
+			all, err := s.Distances(cols, nil)
+			if err != nil && at == nil {
+				t.Fatal(err)
+			}
+			for k, d := range got {
+				i := k
+				if at != nil {
+					i = at[k]
+				}
+				row := make([]float64, p)
+				for j := range p {
+					row[j] = cols[j][i]
+				}
+				want := s.Dist2(row)
+				if math.Float64bits(d) != math.Float64bits(want) || (all != nil && math.Float64bits(all[i]) != math.Float64bits(want)) {
+					t.Errorf("p %d row %d: DistancesAt %v, Dist2 %v", p, i, d, want)
+				}
+			}
+		}
+	}
+}
