@@ -685,3 +685,25 @@ func TestDistancesAtMatchDist2(t *testing.T) {
 		}
 	}
 }
+
+// TestCoMoments3: the unrolled co-moments of three columns that FAST-MCD
+// fits its subsets with are those of the general loop, to the bit, over
+// rows listed in any order and over rows of widely different scales.
+func TestCoMoments3(t *testing.T) {
+	rng := newRand(23)
+	cols := gaussianColumns(rng, 2000, 3)
+	for i := range 50 {
+		cols[i%3][rng.IntN(2000)] *= 1e9
+	}
+	for _, rows := range [][]int{rng.Perm(2000), rng.Perm(2000)[:700], {5, 5, 9, 1}} {
+		mean, cov := make([]float64, 3), make([]float64, 9)
+		wantMean, wantCov := make([]float64, 3), make([]float64, 9)
+		coMoments3(cols, rows, mean, cov)
+		coMoments(cols, rows, wantMean, wantCov)
+		for j, v := range append(mean, cov...) {
+			if w := append(wantMean, wantCov...)[j]; math.Float64bits(v) != math.Float64bits(w) {
+				t.Errorf("%d rows: value %d is %v, the general loop gives %v", len(rows), j, v, w)
+			}
+		}
+	}
+}

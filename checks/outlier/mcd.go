@@ -413,25 +413,10 @@ func newMCDRun(cols [][]float64, n int, rng *rand.Rand) *mcdRun {
 func (r *mcdRun) fit(rows []int) (estimate, bool) {
 	p, m := r.p, len(rows)
 	e := estimate{mean: make([]float64, p), cov: make([]float64, p*p), linv: make([]float64, p*p)}
-	for j, c := range r.cols {
-		var s float64
-		for _, i := range rows {
-			s += c[i]
-		}
-		e.mean[j] = s / float64(m)
-	}
-	u := rowBuf(p)
-	for _, i := range rows {
-		for j, c := range r.cols {
-			u[j] = c[i] - e.mean[j]
-		}
-		for j := range p {
-			uj := u[j]
-			c := e.cov[j*p : j*p+p]
-			for l := j; l < p; l++ {
-				c[l] += uj * u[l]
-			}
-		}
+	if p == 3 {
+		coMoments3(r.cols, rows, e.mean, e.cov)
+	} else {
+		coMoments(r.cols, rows, e.mean, e.cov)
 	}
 	d := float64(m - 1)
 	for j := range p {
@@ -446,6 +431,64 @@ func (r *mcdRun) fit(rows []int) (estimate, bool) {
 	}
 	e.logDet = r.f.chol.LogDet()
 	return e, true
+}
+
+// coMoments writes the mean of each column over the rows listed into mean
+// and the upper triangle of the co-moments Σ (x_j − x̄_j)(x_l − x̄_l),
+// row-major p × p, into cov (zeros on entry): each a sum in the order of
+// rows.
+func coMoments(cols [][]float64, rows []int, mean, cov []float64) {
+	p, m := len(cols), len(rows)
+	for j, c := range cols {
+		var s float64
+		for _, i := range rows {
+			s += c[i]
+		}
+		mean[j] = s / float64(m)
+	}
+	u := rowBuf(p)
+	for _, i := range rows {
+		for j, c := range cols {
+			u[j] = c[i] - mean[j]
+		}
+		for j := range p {
+			uj := u[j]
+			c := cov[j*p : j*p+p]
+			for l := j; l < p; l++ {
+				c[l] += uj * u[l]
+			}
+		}
+	}
+}
+
+// coMoments3 is coMoments for three columns, unrolled: the same sums,
+// each over the rows in the same order, kept in locals (so the three
+// means and the six co-moments do not wait on one another), and so the
+// same to the bit.
+func coMoments3(cols [][]float64, rows []int, mean, cov []float64) {
+	x0, x1, x2 := cols[0], cols[1], cols[2]
+	var s0, s1, s2 float64
+	for _, i := range rows {
+		s0 += x0[i]
+		s1 += x1[i]
+		s2 += x2[i]
+	}
+	m := float64(len(rows))
+	m0, m1, m2 := s0/m, s1/m, s2/m
+	mean[0], mean[1], mean[2] = m0, m1, m2
+	var c00, c01, c02, c11, c12, c22 float64
+	for _, i := range rows {
+		u0, u1, u2 := x0[i]-m0, x1[i]-m1, x2[i]-m2
+		c00 += u0 * u0
+		c01 += u0 * u1
+		c02 += u0 * u2
+		c11 += u1 * u1
+		c12 += u1 * u2
+		c22 += u2 * u2
+	}
+	cov[0], cov[1], cov[2] = c00, c01, c02
+	cov[4], cov[5] = c11, c12
+	cov[8] = c22
 }
 
 // smallest returns the h rows of the set (rows, or the first m rows when
