@@ -707,3 +707,41 @@ func TestCoMoments3(t *testing.T) {
 		}
 	}
 }
+
+// TestSplitAtAndCountBand: the branch-free loops of a C-step classify
+// every value as the plain comparisons do, in order, ties and NaN
+// included, whatever the slices they reuse held.
+func TestSplitAtAndCountBand(t *testing.T) {
+	rng := newRand(29)
+	d2 := make([]float64, 3000)
+	for i := range d2 {
+		d2[i] = float64(rng.IntN(50)) / 7
+	}
+	d2[10], d2[11] = math.NaN(), math.Inf(1)
+	sel, eq, buf := []int{99, 98}, []int{97}, make([]float64, len(d2))
+	for _, cut := range []float64{3, 0, 7, 1.5, math.Inf(1), math.NaN()} {
+		var wantSel, wantEq []int
+		wantBelow, wantBand := 0, []float64{}
+		lo, hi := 0.95*cut, 1.05*cut
+		for k, d := range d2 {
+			if d < cut {
+				wantSel = append(wantSel, k)
+			} else if d == cut {
+				wantEq = append(wantEq, k)
+			}
+			if d < lo {
+				wantBelow++
+			} else if d <= hi {
+				wantBand = append(wantBand, d)
+			}
+		}
+		sel, eq = splitAt(d2, cut, sel, eq)
+		if !slices.Equal(sel, wantSel) || !slices.Equal(eq, wantEq) {
+			t.Errorf("cut %v: %d below and %d equal, want %d and %d", cut, len(sel), len(eq), len(wantSel), len(wantEq))
+		}
+		below, band := countBand(d2, lo, hi, buf)
+		if below != wantBelow || !slices.Equal(band, wantBand) {
+			t.Errorf("band [%v, %v]: %d below and %d within, want %d and %d", lo, hi, below, len(band), wantBelow, len(wantBand))
+		}
+	}
+}

@@ -500,14 +500,7 @@ func (r *mcdRun) smallest(e estimate, rows []int, m, h int) []int {
 	d2 := r.d2[:m]
 	sqDistances(r.cols, e.mean, e.linv, rows, d2)
 	t := r.kth(d2, h-1)
-	sel, eq := r.sel[:0], r.eq[:0]
-	for k, d := range d2 {
-		if d < t {
-			sel = append(sel, k)
-		} else if d == t {
-			eq = append(eq, k)
-		}
-	}
+	sel, eq := splitAt(d2, t, r.sel, r.eq)
 	sel = append(sel, eq[:h-len(sel)]...)
 	if rows != nil {
 		for i, k := range sel {
@@ -527,15 +520,7 @@ func (r *mcdRun) kth(d2 []float64, k int) float64 {
 	m := len(d2)
 	if r.guessM == m && r.guess > 0 {
 		lo, hi := 0.95*r.guess, 1.05*r.guess
-		below := 0
-		band := r.tmp[:0]
-		for _, d := range d2 {
-			if d < lo {
-				below++
-			} else if d <= hi {
-				band = append(band, d)
-			}
-		}
+		below, band := countBand(d2, lo, hi, r.tmp)
 		if below <= k && k < below+len(band) {
 			r.guess = order.Select(band, k-below)
 			return r.guess
@@ -545,6 +530,45 @@ func (r *mcdRun) kth(d2 []float64, k int) float64 {
 	copy(tmp, d2)
 	r.guess, r.guessM = order.Select(tmp, k), m
 	return r.guess
+}
+
+// splitAt returns the places k of the values d2[k] below t (sel) and
+// equal to t (eq), each in order, reusing the slices given. It writes
+// every place at both slices' ends and advances each past it only when
+// the value belongs there, without a branch: in a C-step about half the
+// values lie below t in no pattern a branch predictor could learn.
+func splitAt(d2 []float64, t float64, sel, eq []int) ([]int, []int) {
+	m := len(d2)
+	sel, eq = slices.Grow(sel[:0], m)[:m], slices.Grow(eq[:0], m)[:m]
+	ns, ne := 0, 0
+	for k, d := range d2 {
+		sel[ns], eq[ne] = k, k
+		ns += one(d < t)
+		ne += one(d == t)
+	}
+	return sel[:ns], eq[:ne]
+}
+
+// countBand returns how many values of d2 lie below lo and, in order, the
+// values in [lo, hi] (NaN in neither), written into buf's array without a
+// branch, as in splitAt; buf needs room for len(d2) values.
+func countBand(d2 []float64, lo, hi float64, buf []float64) (int, []float64) {
+	band := buf[:len(d2)]
+	below, nb := 0, 0
+	for _, d := range d2 {
+		band[nb] = d
+		below += one(d < lo)
+		nb += one(d >= lo) & one(d <= hi)
+	}
+	return below, band[:nb]
+}
+
+// one is 1 for true and 0 for false.
+func one(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
 }
 
 // cstep is one C-step in the set: the h rows closest to e, and their fit.
