@@ -23,14 +23,17 @@ import (
 // temporary file so that a later scan of those columns reads the copy
 // instead of the inputs: no CSV line is split or parsed twice.
 //
-// The file is an uncompressed Arrow IPC stream with one record batch per
-// batch written, so a scan of the copy yields the batches of the original
-// scan: the same boundaries, row and line numbers, sources, progress
-// offsets and invalid cells (each record batch carries these in its custom
-// metadata, see spillMeta). Written batch by batch, the copy costs disk (or
-// page cache), not memory. A goroutine of its own writes it, so that the
-// scan does not wait on the file system; at most spillQueue batches wait
-// for it.
+// The file is uncompressed Arrow IPC with one record batch per batch
+// written, so a scan of the copy yields the batches of the original scan:
+// the same boundaries, row and line numbers, sources, progress offsets and
+// invalid cells (each record batch carries these in its custom metadata,
+// see spillMeta), and the same bits in every cell. Numeric columns are
+// packed to half their width, batch by batch, where that is exact (see
+// packing); the file is a run of IPC streams, a new one starting whenever
+// a batch is packed otherwise than the one before, with the schema of its
+// packing. Written batch by batch, the copy costs disk (or page cache),
+// not memory. A goroutine of its own writes it, so that the scan does not
+// wait on the file system; at most spillQueue batches wait for it.
 //
 // The file lives in Options.TempDir and is removed when the spill is
 // closed, or at once where the system lets an open file lose its name
@@ -93,26 +96,71 @@ func (s *Set) NewSpill(columns []string, keep []bool) (*Spill, error) {
 	}
 	sp.buf = bufio.NewWriterSize(f, spillBufferSize)
 	sp.queue, sp.done = make(chan arrow.RecordBatch, spillQueue), make(chan error, 1)
-	go sp.drain(sp.queue, ipc.NewWriter(sp.buf, ipc.WithSchema(sp.stored), ipc.WithAllocator(sp.mem)))
+	go sp.drain(sp.queue)
 	return sp, nil
 }
 
-// drain writes the record batches of queue with w, in order, until the
-// queue is closed, then ends the stream; after a failure (a panic of the
-// writer included) it releases the rest unwritten. It sends the first
-// failure, or nil, on sp.done.
-func (sp *Spill) drain(queue <-chan arrow.RecordBatch, w *ipc.Writer) {
-	var err error
+// drain writes the record batches of queue, in order, until the queue is
+// closed, packing their numeric columns (see packer.pack); after a
+// failure (a panic of the writer included) it releases the rest unwritten.
+// Batches packed alike go to one IPC stream; a batch packed otherwise ends
+// the stream and starts the next, with the schema of the new packing. It
+// sends the first failure, or nil, on sp.done.
+func (sp *Spill) drain(queue <-chan arrow.RecordBatch) {
+	var (
+		err    error
+		w      *ipc.Writer
+		pk     packer
+		schema *arrow.Schema // of the stream of w
+		last   []packing     // of its columns
+		packs  = make([]packing, sp.stored.NumFields())
+		params = make([]int64, len(packs))
+		cols   = make([]arrow.Array, len(packs))
+		fields = make([]arrow.Field, len(packs))
+	)
 	for rec := range queue {
 		if err == nil {
-			if _, err = guard(func() (bool, error) { return true, w.Write(rec) }); err != nil {
+			for j, a := range rec.Columns() {
+				cols[j], packs[j], params[j] = pk.pack(j, a)
+			}
+			if w == nil || !slices.Equal(packs, last) {
+				if w != nil {
+					_, err = guard(func() (bool, error) { return true, w.Close() })
+				}
+				for j, f := range sp.stored.Fields() {
+					f.Type = packedType(f.Type, packs[j])
+					fields[j] = f
+				}
+				schema = arrow.NewSchema(fields, nil)
+				w = ipc.NewWriter(sp.buf, ipc.WithSchema(schema), ipc.WithAllocator(sp.mem))
+				last = slices.Clone(packs)
+			}
+			if err == nil {
+				var meta arrow.Metadata
+				if rm, ok := rec.(arrow.RecordBatchWithMetadata); ok {
+					meta = rm.Metadata()
+				}
+				if pm := appendPackings(nil, packs, params); len(pm) > 0 {
+					meta = arrow.NewMetadata(append(meta.Keys(), metaPacking), append(meta.Values(), string(pm)))
+				}
+				packed := array.NewRecordBatchWithMetadata(schema, cols, rec.NumRows(), meta)
+				_, err = guard(func() (bool, error) { return true, w.Write(packed) })
+				packed.Release()
+			}
+			for j := range cols {
+				cols[j].Release()
+				cols[j] = nil
+			}
+			if err != nil {
 				sp.failed.Store(true)
 			}
 		}
 		rec.Release()
 	}
-	if _, cerr := guard(func() (bool, error) { return true, w.Close() }); err == nil {
-		err = cerr
+	if w != nil {
+		if _, cerr := guard(func() (bool, error) { return true, w.Close() }); err == nil {
+			err = cerr
+		}
 	}
 	if err == nil {
 		err = sp.buf.Flush()
@@ -204,11 +252,16 @@ func (sp *Spill) ScanSome(ctx context.Context, columns []string, skip []bool, fn
 	}
 	opts := []ipc.Option{ipc.WithAllocator(sp.mem), ipc.WithMetadataSizeLimit(sp.size), ipc.WithBodySizeLimit(sp.size)}
 	in := bufio.NewReaderSize(io.NewSectionReader(sp.file, 0, sp.size), spillBufferSize)
-	r, err := ipc.NewReaderFromMessageReader(ipc.NewMessageReader(in, opts...), opts...)
-	if err != nil {
-		return fmt.Errorf("cannot read the temporary copy of the data: %w", err)
-	}
-	defer r.Release()
+	var (
+		r      *ipc.Reader // of the current stream; nil between streams
+		packs  []packing   // of its columns
+		params = make([]int64, len(sp.stored.Fields()))
+	)
+	defer func() {
+		if r != nil {
+			r.Release()
+		}
+	}()
 	nulls := newNullArrays(sp.mem)
 	defer nulls.release()
 	cols := make([]arrow.Array, len(sp.kept))
@@ -216,23 +269,40 @@ func (sp *Spill) ScanSome(ctx context.Context, columns []string, skip []bool, fn
 		if err := ctx.Err(); err != nil {
 			return err
 		}
+		if r == nil {
+			if _, err := in.Peek(1); err == io.EOF {
+				return nil
+			}
+			var err error
+			if r, err = ipc.NewReaderFromMessageReader(ipc.NewMessageReader(in, opts...), opts...); err != nil {
+				return fmt.Errorf("cannot read the temporary copy of the data: %w", err)
+			}
+			if packs, err = streamPackings(r.Schema(), sp.stored); err != nil {
+				return fmt.Errorf("cannot read the temporary copy of the data: %w", err)
+			}
+		}
 		ok, err := guard(func() (bool, error) { return r.Next(), r.Err() })
 		if err != nil {
 			return fmt.Errorf("cannot read the temporary copy of the data: %w", err)
 		}
-		if !ok {
-			return nil
+		if !ok { // the end of a stream
+			r.Release()
+			r = nil
+			continue
 		}
 		rec := r.RecordBatch()
-		b, err := readSpillMeta(rec, len(sp.kept), skip)
+		b, err := readSpillMeta(rec, len(sp.kept), skip, packs, params)
 		if err != nil {
 			return fmt.Errorf("cannot read the temporary copy of the data: %w", err)
 		}
 		n := rec.NumRows()
 		for k, j := range sp.kept {
-			if skip != nil && skip[k] {
+			switch {
+			case skip != nil && skip[k]:
 				cols[k] = nulls.get(sp.schema.Field(k).Type, int(n))
-			} else {
+			case packs[j] != packedPlain:
+				cols[k] = unpackColumn(sp.mem, sp.schema.Field(k).Type, rec.Column(j), packs[j], params[j])
+			default:
 				cols[k] = rec.Column(j)
 				cols[k].Retain()
 			}
@@ -257,6 +327,7 @@ const (
 	metaOffset  = "offset"  // Batch.Offset, in decimal
 	metaLines   = "lines"   // Batch.Lines, see appendLines; absent when nil
 	metaInvalid = "invalid" // Batch.Invalid, see appendInvalid; absent when nil
+	metaPacking = "packing" // the parameters of the packed columns, see appendPackings; absent when none
 )
 
 // spillMeta is the custom metadata that keeps what a batch holds besides
@@ -390,8 +461,9 @@ func readInvalid(data []byte, rows, columns int, skip []bool) (map[int][]Invalid
 }
 
 // readSpillMeta makes the batch of a spilled record batch, without its
-// Record.
-func readSpillMeta(rec arrow.RecordBatch, columns int, skip []bool) (*Batch, error) {
+// Record, and reads into params the parameters of its columns packed as
+// packs says.
+func readSpillMeta(rec arrow.RecordBatch, columns int, skip []bool, packs []packing, params []int64) (*Batch, error) {
 	rm, ok := rec.(arrow.RecordBatchWithMetadata)
 	if !ok {
 		return nil, errors.New("a record batch without its metadata")
@@ -433,6 +505,10 @@ func readSpillMeta(rec arrow.RecordBatch, columns int, skip []bool) (*Batch, err
 		if b.Invalid, err = readInvalid([]byte(v), int(rec.NumRows()), columns, skip); err != nil {
 			return nil, err
 		}
+	}
+	v, _ := get(metaPacking)
+	if err := readPackings([]byte(v), packs, params); err != nil {
+		return nil, err
 	}
 	return b, nil
 }
