@@ -2,6 +2,8 @@ package engine_test
 
 import (
 	"bytes"
+	"os"
+	"os/exec"
 	"os/signal"
 	"strings"
 	"syscall"
@@ -11,11 +13,31 @@ import (
 	"github.com/assay-project/assay/engine/source"
 )
 
+// fsizeChild, set to 1, makes TestSpillWriteFails run in this process.
+const fsizeChild = "ASSAY_TEST_FSIZE_CHILD"
+
 // TestSpillWriteFails limits the size of the files the process may write
 // below that of the spill, as a full disk would: writing it fails, the
 // second pass reads the data again and the results are those of a run
-// without a spill.
+// without a spill. The limit holds for the whole process, so that go
+// test's own log is not cut short by it the test runs in a child process
+// (the test binary again, running only this test).
 func TestSpillWriteFails(t *testing.T) {
+	if os.Getenv(fsizeChild) != "1" {
+		cmd := exec.Command(os.Args[0], "-test.run=^TestSpillWriteFails$", "-test.count=1", "-test.v")
+		cmd.Env = append(os.Environ(), fsizeChild+"=1")
+		out, err := cmd.CombinedOutput()
+		if err != nil {
+			t.Fatalf("the limited run failed: %v\n%s", err, out)
+		}
+		if strings.Contains(string(out), "--- SKIP: TestSpillWriteFails") {
+			t.Skipf("the limited run was skipped:\n%s", out)
+		}
+		if !strings.Contains(string(out), "--- PASS: TestSpillWriteFails") {
+			t.Fatalf("the limited run did not pass:\n%s", out)
+		}
+		return
+	}
 	pol := writeSpillData(t, 2000, 0)
 	tmp := t.TempDir()
 	want := runResults(t, pol, engine.ForceSpill(engine.Options{}, false))
