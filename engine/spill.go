@@ -20,11 +20,11 @@ const (
 // wantSpill tells whether the first pass over set should keep a copy for
 // the second. It pays for CSV inputs (standard input included), whose
 // second reading would split and parse every line again: on 1M rows of
-// the reference policy, 0.31-0.43 s of CPU against 0.09-0.11 s to write
-// the copy and 0.03 s to read it (BenchmarkSecondPass, two rounds). A
-// Parquet input decodes the columns again in 0.06-0.07 s, against
-// 0.03-0.04 s to write the copy and 0.03 s to read it, and an Arrow input
-// reads them in 0.05 s against 0.01 + 0.03 s: no clear gain, and writing
+// the reference policy, 0.34 s of CPU against about 0.02 s to write the
+// packed copy and 0.05 s to read it (BenchmarkSecondPass, 3 runs, after
+// the packing of spillcode.go). A Parquet input decodes the columns again
+// in 0.07 s, against about 0.015 s to write the copy and 0.04 s to read
+// it, and an Arrow input reads them in 0.05 s: no clear gain, and writing
 // may wait on a slow disk.
 func wantSpill(set *source.Set, mode spillMode) bool {
 	switch mode {
