@@ -169,30 +169,6 @@ func (a *Accumulator) AddNumber(x float64) {
 	a.sketch.Add(x)
 }
 
-// Merge folds o, a summary of the same column over other rows, into a.
-// Moments merge by Chan, Golub & LeVeque (1979).
-func (a *Accumulator) Merge(o *Accumulator) error {
-	if o.Name != a.Name || o.Type != a.Type {
-		return fmt.Errorf("cannot merge the summary of %s (%s) into %s (%s)", o.Name, o.Type, a.Name, a.Type)
-	}
-	a.Rows += o.Rows
-	a.Nulls += o.Nulls
-	if a.cats != nil {
-		a.cats.Merge(o.cats)
-		return nil
-	}
-	a.nonFinite += o.nonFinite
-	if o.count > 0 {
-		n := a.count + o.count
-		d := o.mean - a.mean
-		a.m2 += o.m2 + d*d*float64(a.count)*float64(o.count)/float64(n)
-		a.mean += d * float64(o.count) / float64(n)
-		a.count = n
-		a.lo, a.hi = min(a.lo, o.lo), max(a.hi, o.hi)
-	}
-	return a.sketch.Merge(o.sketch)
-}
-
 // Column returns the summary as written to a file.
 func (a *Accumulator) Column() Column {
 	c := Column{Name: a.Name, Type: a.Type, Rows: a.Rows, Nulls: a.Nulls}
