@@ -47,6 +47,13 @@ type Check interface {
 	NewAccumulator() Accumulator
 }
 
+// LaneMaker is implemented by checks whose accumulators of one run share
+// state across the run's lanes: NewAccumulators returns n accumulators of
+// one run, which must all be merged into one.
+type LaneMaker interface {
+	NewAccumulators(n int) []Accumulator
+}
+
 // Accumulator is one run's state of one check. Observe is called with every
 // batch in order; accumulators of the same check that saw disjoint batches
 // can be merged; Finish turns the state into a result and judges it.

@@ -156,6 +156,19 @@ func (c *distributionCheck) Rule() *rules.Rule { return c.rule }
 
 func (c *distributionCheck) categorical() bool { return c.families[0].Kind() == dist.Categorical }
 
+// NewAccumulators returns n accumulators of one run whose samples share
+// a bound (bottomk.Bound).
+func (c *distributionCheck) NewAccumulators(n int) []Accumulator {
+	b := bottomk.NewBound(c.spec.Sample)
+	as := make([]Accumulator, n)
+	for i := range as {
+		a := c.NewAccumulator().(*DistributionAccumulator)
+		a.bound = b
+		as[i] = a
+	}
+	return as
+}
+
 func (c *distributionCheck) NewAccumulator() Accumulator {
 	a := &DistributionAccumulator{check: c}
 	a.Min, a.Max = math.Inf(1), math.Inf(-1)
@@ -246,8 +259,9 @@ type DistributionAccumulator struct {
 	check   *distributionCheck
 	scratch scratch
 	vals    []float64
-	at      []int        // the place in the batch of each of vals
-	found   *distFinding // the analysis, once made
+	at      []int          // the place in the batch of each of vals
+	found   *distFinding   // the analysis, once made
+	bound   *bottomk.Bound // shared with the run's other lanes, or nil
 }
 
 // Observe counts the batch's values, tests them against each candidate's
@@ -277,6 +291,9 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 	if a.Sample == nil {
 		if a.Sample, err = bottomk.New(a.check.spec.Sample, 1, a.check.spec.Seed); err != nil {
 			return err
+		}
+		if a.bound != nil {
+			a.Sample.Share(a.bound)
 		}
 	}
 	switch {

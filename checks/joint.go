@@ -93,6 +93,24 @@ func newJointCheck(r *rules.Rule, s rules.JointSpec, env *Env) (Check, error) {
 
 func (c *jointCheck) Rule() *rules.Rule { return c.rule }
 
+// NewAccumulators returns n accumulators of one run whose samples
+// (robust) share a bound (bottomk.Bound).
+func (c *jointCheck) NewAccumulators(n int) []Accumulator {
+	as := make([]Accumulator, n)
+	var b *bottomk.Bound
+	if c.spec.Robust {
+		b = bottomk.NewBound(c.spec.Sample)
+	}
+	for i := range as {
+		a := c.NewAccumulator().(*JointAccumulator)
+		if b != nil {
+			a.Sample.Share(b)
+		}
+		as[i] = a
+	}
+	return as
+}
+
 func (c *jointCheck) NewAccumulator() Accumulator {
 	a := &JointAccumulator{check: c}
 	p := len(c.cols)

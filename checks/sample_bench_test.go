@@ -42,8 +42,12 @@ func BenchmarkSampledObserve(b *testing.B) {
 				perRow(b, times*benchRows, func() {
 					for _, c := range tc.checks {
 						accs := make([]Accumulator, lanes)
-						for i := range accs {
-							accs[i] = c.NewAccumulator()
+						if m, ok := c.(LaneMaker); ok {
+							accs = m.NewAccumulators(lanes)
+						} else {
+							for i := range accs {
+								accs[i] = c.NewAccumulator()
+							}
 						}
 						k := 0
 						for rep := range times {

@@ -187,7 +187,15 @@ func (pl *plan) execute(ctx context.Context, set *source.Set, opts Options) ([]r
 	lanes := make([][]checks.Accumulator, Lanes)
 	for w := range lanes {
 		lanes[w] = make([]checks.Accumulator, len(pl.checks))
-		for i, c := range pl.checks {
+	}
+	for i, c := range pl.checks {
+		if m, ok := c.(checks.LaneMaker); ok {
+			for w, a := range m.NewAccumulators(Lanes) {
+				lanes[w][i] = a
+			}
+			continue
+		}
+		for w := range lanes {
 			lanes[w][i] = c.NewAccumulator()
 		}
 	}

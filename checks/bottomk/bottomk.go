@@ -46,7 +46,10 @@ import (
 // that holds every row offered holds them in row order.
 //
 // A Sample is not safe for concurrent use; give each goroutine its own
-// and merge them.
+// and merge them. Samples that are offered disjoint parts of one stream
+// and merged at the end (the engine's lanes) may share a Bound, through
+// which each drops the rows that no sample of the stream needs.
+// Without it each lane keeps a full Size of candidates of its own.
 type Sample struct {
 	size, p int
 	seed    uint64
@@ -71,6 +74,19 @@ type Sample struct {
 	// that the buffered rows are in row order.
 	last   int64
 	sorted bool
+	// shared is the bound shared with the samples of the other lanes of
+	// a run, nil when alone; pub counts the rows kept since the last
+	// publication by key >> sharedShift.
+	shared *Bound
+	pub    []int32
+	unpub  int // rows offered since the last publication
+	// fill is the buffer's length that triggers a selection and the most
+	// it grows to: the bound, or for a shared sample that holds m <= Size
+	// rows after dropping those above the shared bound, max(2m, m +
+	// minSlack) (at most the bound), so that a lane holds about twice its
+	// share of the candidates: four lanes over 10M rows held 2.1M rows
+	// of a sample of 10⁶ instead of 5M (bottomk's BenchmarkLanes).
+	fill int
 }
 
 // slack is the buffer beyond Size, as a share of it: the rows with a key
@@ -79,6 +95,7 @@ type Sample struct {
 // (checks' BenchmarkSampledObserve, three samples of 10⁶ in each of four
 // lanes over 10M rows; buffers 16 bytes a row): 1/2 took 65 ns of CPU a
 // row and 288 MB, 1/4 74-86 ns and 240 MB, 1/8 85-98 ns and 216 MB.
+// Lanes that share a Bound hold less (see fill).
 const slack = 4
 
 // minSlack is the least room beyond Size, so that small samples (a plot's
@@ -100,7 +117,7 @@ func New(size, p int, seed uint64) (*Sample, error) {
 		return nil, fmt.Errorf("a sampled row needs at least 1 value, got %d", p)
 	}
 	return &Sample{size: size, p: p, seed: seed, base: mix(seed), bound: size + max(size/slack, minSlack),
-		limit: math.MaxUint64, sorted: true}, nil
+		fill: size + max(size/slack, minSlack), limit: math.MaxUint64, sorted: true}, nil
 }
 
 // The constants of SplitMix64 (Steele, Lea & Flood 2014, "Fast splittable
@@ -205,10 +222,18 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 		s.sorted = false
 	}
 	s.last = first + int64(n) - 1
+	if s.shared != nil {
+		s.joinShared(n)
+		defer s.published(n)
+	}
 	for i := 0; i < n; {
 		s.reserve(min(n-i, reserveStep))
 		keys, vs, hist := s.keys, s.vals, s.hist
 		limit, shift := s.limit, s.shift
+		pub := s.pub
+		if s.shared != nil {
+			limit = min(limit, s.shared.t.Load())
+		}
 		row := first + int64(i)
 		switch {
 		case !s.keyed: // every row is kept, by its number
@@ -232,6 +257,9 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 				if hist != nil {
 					hist[min(k>>shift, 1<<histBits-1)] += int32(keep)
 				}
+				if pub != nil {
+					pub[k>>sharedShift] += int32(keep)
+				}
 				m += keep
 			}
 			keys, vs = kk[:m], vv[:m]
@@ -242,11 +270,14 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 					if hist != nil {
 						hist[k>>shift]++
 					}
+					if pub != nil {
+						pub[k>>sharedShift]++
+					}
 				}
 			}
 		}
 		s.keys, s.vals = keys, vs
-		if len(s.keys) >= s.bound {
+		if len(s.keys) >= s.fill {
 			s.reduce()
 		}
 	}
@@ -293,17 +324,17 @@ func (s *Sample) note(row int64) {
 const reserveStep = 4096
 
 // reserve makes room for up to n more rows, growing the buffer eightfold
-// (4,096, 32,768, 262,144 rows, then its bound), never beyond its bound,
+// (4,096, 32,768, 262,144 rows, then its fill), never beyond its fill,
 // so a full buffer holds no spare capacity. Doubling copied the rows
 // about once more in all: at 10M rows, three samples of 10⁶ in four lanes
 // spent 1.1 s of CPU in those copies (whole-run profile), 0.18 s growing
 // eightfold. The price: a lane that keeps more than 262,144 rows holds a
-// buffer of the bound, as at 10M rows.
+// buffer of its fill (the bound unless shared).
 func (s *Sample) reserve(n int) {
-	if cap(s.keys)-len(s.keys) >= n || cap(s.keys) >= s.bound {
+	if cap(s.keys)-len(s.keys) >= n || cap(s.keys) >= s.fill {
 		return
 	}
-	c := min(max(8*cap(s.keys), len(s.keys)+n, 64), s.bound)
+	c := min(max(8*cap(s.keys), len(s.keys)+n, 64), s.fill)
 	keys, vals := make([]uint64, len(s.keys), c), make([]float64, len(s.vals), c*s.p)
 	copy(keys, s.keys)
 	copy(vals, s.vals)
@@ -316,7 +347,7 @@ func (s *Sample) counted(k uint64) {
 	if s.hist != nil {
 		s.hist[k>>s.shift]++
 	}
-	if len(s.keys) >= s.bound {
+	if len(s.keys) >= s.fill {
 		s.reduce()
 	}
 }
@@ -336,6 +367,16 @@ func (s *Sample) setLimit(k uint64) {
 // selection runs instead.
 func (s *Sample) reduce() {
 	s.order()
+	if s.shared != nil && s.keyed {
+		if t := s.shared.t.Load(); t < s.limit {
+			s.drop(t)
+		}
+		if m := len(s.keys); m <= s.size {
+			s.fill = min(s.bound, max(2*m, m+minSlack))
+			return
+		}
+	}
+	s.fill = s.bound
 	if s.hist == nil {
 		s.exact()
 		return
@@ -456,7 +497,7 @@ func (s *Sample) Merge(o *Sample) error {
 	}
 	s.seen += o.seen
 	s.setLimit(min(s.limit, o.limit))
-	*o = Sample{size: o.size, p: o.p, seed: o.seed, base: o.base, bound: o.bound, limit: math.MaxUint64, sorted: true}
+	*o = Sample{size: o.size, p: o.p, seed: o.seed, base: o.base, bound: o.bound, fill: o.bound, limit: math.MaxUint64, sorted: true}
 	held := len(s.keys)
 	for _, pt := range s.parts {
 		held += len(pt.keys)
