@@ -69,12 +69,7 @@ func runBoth(b *testing.B, c Check, bs []*source.Batch) {
 // both passes: classical (streamed co-moments), and robust (FAST-MCD on
 // the default sample of 100,000 rows, and on every row).
 func BenchmarkJoint(b *testing.B) {
-	bs := benchColumns(b)
-	defer func() {
-		for _, batch := range bs {
-			batch.Release()
-		}
-	}()
+	bs := releaseAfter(b, benchColumns(b))
 	env := envOf(bs[0], 20)
 	robust := jointSpec(true)
 	all := jointSpec(true)
@@ -100,12 +95,7 @@ func BenchmarkJoint(b *testing.B) {
 // BenchmarkExtremes measures extremes rules on one column of 1e6 rows,
 // both passes.
 func BenchmarkExtremes(b *testing.B) {
-	bs := benchColumns(b)
-	defer func() {
-		for _, batch := range bs {
-			batch.Release()
-		}
-	}()
+	bs := releaseAfter(b, benchColumns(b))
 	env := envOf(bs[0], 20)
 	for _, m := range []rules.ExtremesMethod{rules.ExtremesTukey, rules.ExtremesZScore, rules.ExtremesRobustZ, rules.ExtremesESD,
 		rules.ExtremesTail} {

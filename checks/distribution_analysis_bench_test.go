@@ -94,11 +94,7 @@ func BenchmarkDistributionSecondPass(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
-	defer func() {
-		for _, bt := range batches {
-			bt.Release()
-		}
-	}()
+	releaseAfter(b, batches)
 	if first.SecondPass() == nil {
 		b.Fatal("the rule has no rows to list")
 	}

@@ -30,11 +30,7 @@ func BenchmarkDistributionObserve(b *testing.B) {
 		}
 		batches = append(batches, numBatch(b, mem, first, xs))
 	}
-	defer func() {
-		for _, bt := range batches {
-			bt.Release()
-		}
-	}()
+	releaseAfter(b, batches)
 	c, err := Compile(newRule(distSpec("lognormal", "gamma"), distanceTol, "x"), floatEnv())
 	if err != nil {
 		b.Fatal(err)

@@ -22,6 +22,17 @@ import (
 	"github.com/assay-project/assay/rules"
 )
 
+// releaseAfter releases the batches bs when the test or benchmark ends,
+// and returns them.
+func releaseAfter(tb testing.TB, bs []*source.Batch) []*source.Batch {
+	tb.Cleanup(func() {
+		for _, x := range bs {
+			x.Release()
+		}
+	})
+	return bs
+}
+
 // colsBatch is one batch of float64 columns x1..xp whose first row is data
 // row first; NaN stands for a missing value.
 func colsBatch(t testing.TB, mem memory.Allocator, first int64, cols [][]float64) *source.Batch {

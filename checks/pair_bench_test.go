@@ -57,12 +57,7 @@ func pairBenchData(b *testing.B) []*source.Batch {
 // robust fits (which keep every pair: the default sample is 10⁶), the rank
 // coefficients, and a rule per group of a 100-site segment.
 func BenchmarkPairs(b *testing.B) {
-	bs := pairBenchData(b)
-	defer func() {
-		for _, x := range bs {
-			x.Release()
-		}
-	}()
+	bs := releaseAfter(b, pairBenchData(b))
 	env := envOf(bs[0], 20)
 	linear := func(m rules.PairMeasure, fit rules.Fit) *rules.Rule {
 		r := linearRule(m, fit, atMost(0.01))

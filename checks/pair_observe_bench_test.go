@@ -47,12 +47,7 @@ func climateBatches(b *testing.B) []*source.Batch {
 // of the bench policy over 1M rows, one accumulator: reading the columns
 // as float64 and the rows where all hold a value, and what each keeps.
 func BenchmarkPairObserve(b *testing.B) {
-	batches := climateBatches(b)
-	defer func() {
-		for _, bt := range batches {
-			bt.Release()
-		}
-	}()
+	batches := releaseAfter(b, climateBatches(b))
 	env := envOf(batches[0], 20)
 	linear := rules.PairSpec{Relation: rules.RelationLinear, Measure: rules.PairSlope, Fit: rules.FitOLS, Sample: rules.DefaultPairSample, Seed: 1}
 	cases := []struct {
@@ -80,12 +75,7 @@ func BenchmarkPairObserve(b *testing.B) {
 // one accumulator, classical and robust: every judged row's distance, the
 // listing and the sample of distances for the plot.
 func BenchmarkJointSecondPass(b *testing.B) {
-	batches := climateBatches(b)
-	defer func() {
-		for _, bt := range batches {
-			bt.Release()
-		}
-	}()
+	batches := releaseAfter(b, climateBatches(b))
 	for _, robust := range []bool{false, true} {
 		c, err := Compile(newRule(jointSpec(robust), atMost(0.01), "t", "h", "p"), envOf(batches[0], 20))
 		if err != nil {
@@ -107,12 +97,7 @@ func BenchmarkJointSecondPass(b *testing.B) {
 // over 1M rows, one accumulator: every row scored against the least-squares
 // line by its studentized residual or Cook's distance, and the listing.
 func BenchmarkLinearSecondPass(b *testing.B) {
-	batches := climateBatches(b)
-	defer func() {
-		for _, bt := range batches {
-			bt.Release()
-		}
-	}()
+	batches := releaseAfter(b, climateBatches(b))
 	for _, res := range []rules.ResidualRule{rules.ResidualStudentized, rules.ResidualCooks} {
 		s := rules.PairSpec{Relation: rules.RelationLinear, Measure: rules.PairResiduals, Fit: rules.FitOLS,
 			Residual: res, Sample: rules.DefaultPairSample, Seed: 1}

@@ -13,12 +13,7 @@ import (
 // as bench/policy.yaml has) and a robust joint rule (default sample
 // 10⁵). cpu-ns/row is the process CPU per row (GC included).
 func BenchmarkSampledObserve(b *testing.B) {
-	bs := benchColumns(b)
-	defer func() {
-		for _, batch := range bs {
-			batch.Release()
-		}
-	}()
+	bs := releaseAfter(b, benchColumns(b))
 	env := envOf(bs[0], 20)
 	var checks []Check
 	for _, col := range []string{"x1", "x2", "x3"} {

@@ -40,12 +40,7 @@ func measuredBatches(b *testing.B) []*source.Batch {
 // extremes rules of bench/policy.yaml over measuredBatches with one
 // accumulator, as one lane does, and "both passes" of the extremes rules.
 func BenchmarkMeasured(b *testing.B) {
-	bs := measuredBatches(b)
-	defer func() {
-		for _, batch := range bs {
-			batch.Release()
-		}
-	}()
+	bs := releaseAfter(b, measuredBatches(b))
 	env := envOf(bs[0], 20)
 	cases := []struct {
 		name string

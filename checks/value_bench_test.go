@@ -51,12 +51,7 @@ func deviceBatches(b *testing.B) []*source.Batch {
 // BenchmarkStringValues runs the rules on single strings of the bench
 // policy over 1M rows with one accumulator, as a worker does.
 func BenchmarkStringValues(b *testing.B) {
-	batches := deviceBatches(b)
-	defer func() {
-		for _, bt := range batches {
-			bt.Release()
-		}
-	}()
+	batches := releaseAfter(b, deviceBatches(b))
 	env := envOf(batches[0], 20)
 	const pat = "^D-[0-9]{4}$"
 	cases := []struct {
