@@ -405,10 +405,7 @@ type fault struct {
 // a worker to release when done, since the reader releases b itself.
 func hold(b *source.Batch) *source.Batch {
 	c := *b
-	c.Record.Retain()
-	for _, t := range c.Text {
-		t.Retain()
-	}
+	c.Retain()
 	return &c
 }
 

@@ -36,6 +36,15 @@ type Batch struct {
 	// in the file (unquoted, before null tokens and parsing): Text[k] belongs
 	// to Record.Column(k). Nil otherwise.
 	Text []*array.String
+	// Codes holds, per column index of Record, the same values as a string
+	// column as dictionary codes, when the reader got them for free: its
+	// rows in this batch were all read from one dictionary of a
+	// dictionary-encoded Parquet column chunk. Codes[k].Indices() are int32
+	// places in Codes[k].Dictionary(), an *array.String, and the codes'
+	// nulls are Record.Column(k)'s, so a check may judge each distinct
+	// value once instead of once a row. Nil, or nil at k, when there are
+	// none; Record always holds the column itself.
+	Codes []*array.Dictionary
 	// Offset is how many bytes of the batch's file the reader had consumed
 	// when it made the batch, as stored (compressed bytes for gzip), for
 	// progress displays; 0 for Parquet and Arrow inputs.
@@ -48,7 +57,7 @@ type InvalidCell struct {
 	Text string // the text as read
 }
 
-// Release drops the batch's reference to its record and texts.
+// Release drops the batch's reference to its record, texts and codes.
 func (b *Batch) Release() {
 	if b.Record != nil {
 		b.Record.Release()
@@ -58,6 +67,26 @@ func (b *Batch) Release() {
 		t.Release()
 	}
 	b.Text = nil
+	for _, c := range b.Codes {
+		if c != nil {
+			c.Release()
+		}
+	}
+	b.Codes = nil
+}
+
+// Retain adds a reference to the batch's record, texts and codes, for one
+// more Release.
+func (b *Batch) Retain() {
+	b.Record.Retain()
+	for _, t := range b.Text {
+		t.Retain()
+	}
+	for _, c := range b.Codes {
+		if c != nil {
+			c.Retain()
+		}
+	}
 }
 
 // Row returns the 1-based data-row number of row i of the batch.
