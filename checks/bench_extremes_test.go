@@ -41,23 +41,24 @@ func benchColumns(b *testing.B) []*source.Batch {
 	return out
 }
 
-// runBoth runs both passes of c over the batches.
-func runBoth(b *testing.B, c Check, bs []*source.Batch) {
+// observeAll feeds the batches to a and returns it.
+func observeAll(b *testing.B, a Accumulator, bs []*source.Batch) Accumulator {
 	b.Helper()
-	a := c.NewAccumulator()
 	for _, batch := range bs {
 		if err := a.Observe(batch); err != nil {
 			b.Fatal(err)
 		}
 	}
+	return a
+}
+
+// runBoth runs both passes of c over the batches.
+func runBoth(b *testing.B, c Check, bs []*source.Batch) {
+	b.Helper()
+	a := observeAll(b, c.NewAccumulator(), bs)
 	if r, ok := a.(Rescanner); ok {
 		if next := r.SecondPass(); next != nil {
-			a = next
-			for _, batch := range bs {
-				if err := a.Observe(batch); err != nil {
-					b.Fatal(err)
-				}
-			}
+			a = observeAll(b, next, bs)
 		}
 	}
 	if res := a.Finish(); res.Error != "" {
