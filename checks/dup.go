@@ -396,20 +396,23 @@ type hashRuns struct {
 	suspects     suspectSet
 }
 
-// rangeBits sets the size of the ranges findRuns sorts one at a time:
-// about 2^rangeBits hashes, 128 KiB, which a core's cache holds.
+// rangeBits sets the size of the ranges findRuns looks at one at a time:
+// about 2^rangeBits hashes, whose table (twice as many slots, 8 bytes
+// each) a core's cache holds.
 const rangeBits = 14
 
-// findRuns sorts the hashes and reads off the runs of equal ones, without
-// a second copy of them all. It cuts the hash space into 2^b ranges by
-// their top b bits, b chosen so that a range holds about 2^rangeBits of n
-// uniform hashes; partitions each chunk in place by range with one stable
-// counting pass (Knuth 1998, TAOCP vol. 3, §5.2.5; scratch of one chunk);
-// then, range by range, gathers that range's hashes from every chunk,
-// sorts them with order.SortUint64 and counts their runs. Ranges come in
-// increasing order, so the suspects come out sorted. Time O(n), memory
-// beyond the hashes one chunk and two ranges (a range holds every hash
-// when a poor hash puts them all in one). The chunks are left partitioned.
+// findRuns finds the hashes that occur more than once, without a second
+// copy of them all. It cuts the hash space into 2^b ranges by their top b
+// bits, b chosen so that a range holds about 2^rangeBits of n uniform
+// hashes; partitions each chunk in place by range with one stable
+// counting pass (Knuth 1998, TAOCP vol. 3, §5.2.5; scratch of one chunk),
+// which also counts each range's hashes; then, range by range, enters
+// that range's hashes from every chunk into a hashTable of at least twice
+// as many slots and sorts the hashes the table held already (repeats,
+// few) to read off the runs. Ranges come in increasing order, so the
+// suspects come out sorted. Time O(n) expected, memory beyond the hashes
+// one chunk, one table and the repeats (a range holds every hash when a
+// poor hash puts them all in one). The chunks are left partitioned.
 func findRuns(chunks [][]uint64) *hashRuns {
 	n, longest := 0, 0
 	for _, ch := range chunks {
@@ -420,9 +423,11 @@ func findRuns(chunks [][]uint64) *hashRuns {
 	// top is the range of a hash: its top b bits (0 when b is 0, a shift
 	// by 64 giving 0).
 	top := func(h uint64) uint64 { return h >> (64 - b) }
+	sizes := []int{n}
 	if b > 0 {
 		scratch := make([]uint64, longest)
 		start := make([]int, 1<<b)
+		sizes = make([]int, 1<<b)
 		for _, ch := range chunks {
 			clear(start)
 			for _, h := range ch {
@@ -430,6 +435,7 @@ func findRuns(chunks [][]uint64) *hashRuns {
 			}
 			next := 0
 			for k, m := range start {
+				sizes[k] += m
 				start[k] = next
 				next += m
 			}
@@ -442,38 +448,101 @@ func findRuns(chunks [][]uint64) *hashRuns {
 		}
 	}
 	runs := &hashRuns{}
-	var suspects []uint64
+	var (
+		suspects, repeats, scratch []uint64
+		table                      hashTable
+	)
 	at := make([]int, len(chunks))
-	var part, scratch []uint64
-	for r := range uint64(1) << b {
-		part = part[:0]
+	for r, size := range sizes {
+		if size < 2 {
+			// A lone hash repeats nothing; skip it in its chunk.
+			for k, ch := range chunks {
+				if size == 0 {
+					break
+				}
+				if j := at[k]; j < len(ch) && top(ch[j]) == uint64(r) {
+					at[k]++
+					size--
+				}
+			}
+			continue
+		}
+		table.reset(size)
+		repeats = repeats[:0]
 		for k, ch := range chunks {
 			j := at[k]
-			for j < len(ch) && top(ch[j]) == r {
-				j++
+			for ; j < len(ch) && top(ch[j]) == uint64(r); j++ {
+				if !table.add(ch[j]) {
+					repeats = append(repeats, ch[j])
+				}
 			}
-			part = append(part, ch[at[k]:j]...)
 			at[k] = j
 		}
-		if len(scratch) < len(part) {
-			scratch = make([]uint64, len(part))
+		if len(repeats) == 0 {
+			continue
 		}
-		order.SortUint64(part, scratch)
-		for i := 0; i < len(part); {
+		if len(scratch) < len(repeats) {
+			scratch = make([]uint64, len(repeats))
+		}
+		order.SortUint64(repeats, scratch)
+		// A hash held m times in the repeats occurred m+1 times.
+		for i := 0; i < len(repeats); {
 			j := i + 1
-			for j < len(part) && part[j] == part[i] {
+			for j < len(repeats) && repeats[j] == repeats[i] {
 				j++
 			}
-			if j-i > 1 {
-				runs.rows += int64(j - i)
-				runs.groups++
-				suspects = append(suspects, part[i])
-			}
+			runs.rows += int64(j - i + 1)
+			runs.groups++
+			suspects = append(suspects, repeats[i])
 			i = j
 		}
 	}
 	runs.suspects = newSuspectSet(suspects)
 	return runs
+}
+
+// hashTable is a set of 64-bit hashes by open addressing with linear
+// probing (Knuth 1998, TAOCP vol. 3, §6.4, Algorithm L), the slot of h
+// being the top bits of h times 2^64/φ (Fibonacci hashing, §6.4), so that
+// hashes alike in their top bits (one range of findRuns) or in their low
+// bits spread over the slots. An empty slot holds 0; the hash 0 is kept
+// apart.
+type hashTable struct {
+	slots []uint64
+	shift uint
+	zero  bool
+}
+
+// reset empties the table and makes room for n hashes in at least 2n
+// slots, so that a probe meets on average fewer than three slots.
+func (t *hashTable) reset(n int) {
+	tb := bits.Len(uint(2*n - 1))
+	if cap(t.slots) < 1<<tb {
+		t.slots = make([]uint64, 1<<tb)
+	}
+	t.slots = t.slots[:1<<tb]
+	clear(t.slots)
+	t.shift = uint(64 - tb)
+	t.zero = false
+}
+
+// add enters h and reports whether it was new.
+func (t *hashTable) add(h uint64) bool {
+	if h == 0 {
+		was := t.zero
+		t.zero = true
+		return !was
+	}
+	mask := uint64(len(t.slots) - 1)
+	for s := (h * 0x9e3779b97f4a7c15) >> t.shift; ; s = (s + 1) & mask {
+		switch t.slots[s] {
+		case 0:
+			t.slots[s] = h
+			return true
+		case h:
+			return false
+		}
+	}
 }
 
 // suspectSet is a sorted set of hashes with two indexes by their top bits.
