@@ -87,11 +87,12 @@ type distributionCheck struct {
 	env      *Env
 	col      column
 	spec     rules.DistributionSpec
-	families []dist.Family          // candidates, with given parameters
-	inside   []func(x float64) bool // each candidate's support test
-	needs    []string               // what each candidate needs, in words
-	shares   dist.Shares            // the categorical family's shares
-	category map[string]int         // index of each listed category
+	families []dist.Family   // candidates, with given parameters
+	inside   []dist.Interval // each candidate's support
+	within   dist.Interval   // the values inside every candidate's support
+	needs    []string        // what each candidate needs, in words
+	shares   dist.Shares     // the categorical family's shares
+	category map[string]int  // index of each listed category
 	// replicates is the number of bootstrap replicates (gof.DefaultB);
 	// bootstrapMax is the largest sample a bootstrap p-value runs on.
 	replicates, bootstrapMax int
@@ -112,7 +113,8 @@ const (
 )
 
 func newDistributionCheck(r *rules.Rule, s rules.DistributionSpec, env *Env) (Check, error) {
-	c := &distributionCheck{rule: r, env: env, spec: s, replicates: gof.DefaultB, bootstrapMax: bootstrapMax}
+	c := &distributionCheck{rule: r, env: env, spec: s, replicates: gof.DefaultB, bootstrapMax: bootstrapMax,
+		within: dist.Finite}
 	if len(s.Families) == 0 {
 		return nil, fmt.Errorf("the distribution rule names no family")
 	}
@@ -125,8 +127,9 @@ func newDistributionCheck(r *rules.Rule, s rules.DistributionSpec, env *Env) (Ch
 			if f, err = f.Fix(s.Parameters); err != nil {
 				return nil, err
 			}
-			ok, need := f.InSupport()
-			c.inside, c.needs = append(c.inside, ok), append(c.needs, need)
+			in, need, _ := f.Within()
+			c.inside, c.needs = append(c.inside, in), append(c.needs, need)
+			c.within = c.within.Intersect(in)
 		}
 		c.families = append(c.families, f)
 	}
@@ -279,11 +282,19 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 	var (
 		finite []float64
 		all    bool
+		v      = validOf(arr)
 	)
 	if a.check.col.class == classNumber {
-		finite, all = observeValues(a, b, validOf(arr), float64s(arr, &a.scratch.floats))
+		// A batch without nulls whose values are all inside every
+		// candidate's support is offered to the sample in place.
+		xs := float64s(arr, &a.scratch.floats)
+		finite, all = xs, true
+		if n := observeInside(a, v, xs); n < len(xs) {
+			finite, all = observeValues(a, b, v, xs, n)
+		}
 	} else {
-		finite, all = observeValues(a, b, validOf(arr), int64s(arr, &a.scratch.ints))
+		xs := int64s(arr, &a.scratch.ints)
+		finite, all = observeValues(a, b, v, xs, observeInside(a, v, xs))
 	}
 	if len(finite) == 0 {
 		return nil
@@ -313,15 +324,53 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 	return nil
 }
 
-// observeValues counts the non-null values of xs (valid says which), as
-// float64, tests each against every candidate's support and returns the
-// finite ones, in a's buffer, and whether they are every value of xs;
-// when they are not, a.at holds the place of each in xs. One pass over
-// the array, read in place.
-func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batch, v valid, xs []T) ([]float64, bool) {
-	finite, at := a.vals[:0], a.at[:0]
-	all := true
+// observeInside counts the values of xs up to the first that is null or
+// outside some candidate's support (a.check.within, which holds finite
+// values only), tracks their least and greatest, and returns how many
+// it took: len(xs) when they are every value. It takes none when xs has
+// nulls. The support is tested inline, one interval for all the
+// candidates: a value inside it is inside each.
+func observeInside[T int64 | float64](a *DistributionAccumulator, v valid, xs []T) int {
+	if v.bits != nil || len(xs) == 0 {
+		return 0
+	}
+	in := a.check.within
+	lo, hi := in.Lo, in.Hi
+	least, most := a.Min, a.Max
+	n := len(xs)
 	for i, x := range xs {
+		f := float64(x)
+		if !(f >= lo && f <= hi) || in.Whole && f != math.Trunc(f) {
+			n = i
+			break
+		}
+		// min and max give −0 below +0; the branches are rarely taken.
+		if f <= least {
+			least = min(least, f)
+		}
+		if f >= most {
+			most = max(most, f)
+		}
+	}
+	a.N += int64(n)
+	a.Min, a.Max = least, most
+	return n
+}
+
+// observeValues observes the values of xs from place from on, those
+// before having been observed by observeInside: it counts the non-null
+// values (valid says which), as float64, tests each against every
+// candidate's support and returns the finite ones of all of xs, in a's
+// buffer, and whether they are every value of xs; when they are not,
+// a.at holds the place of each in xs. One pass over the array, read in
+// place.
+func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batch, v valid, xs []T, from int) ([]float64, bool) {
+	finite, at := a.vals[:0], a.at[:0]
+	for _, x := range xs[:from] {
+		finite = append(finite, float64(x))
+	}
+	all := true
+	for i := from; i < len(xs); i++ {
 		if !v.at(i) {
 			if all { // the first value left out: the places so far are 0..i-1
 				at, all = appendPlaces(at, i), false
@@ -329,9 +378,9 @@ func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batc
 			continue
 		}
 		a.N++
-		f := float64(x)
+		f := float64(xs[i])
 		for k, in := range a.check.inside {
-			if !in(f) {
+			if !in.Contains(f) {
 				a.Outside[k].add(f, b.Row(i))
 			}
 		}

@@ -86,7 +86,7 @@ func (c *distributionCheck) outsideSupport(st *DistributionState, skipped []repo
 		Distance: report.Number(math.NaN()), Candidates: skipped,
 	}
 	in := c.inside[0]
-	return &distFinding{result: res, match: func(x float64) (bool, float64) { return !in(x), 1 }}
+	return &distFinding{result: res, match: func(x float64) (bool, float64) { return !in.Contains(x), 1 }}
 }
 
 // fitting is one numeric analysis in progress.

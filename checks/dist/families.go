@@ -25,13 +25,13 @@ func probability(name, about string) Param {
 	return Param{Name: name, Min: 0, Max: 1, MinOpen: true, MaxOpen: true, About: about}
 }
 
-// Support tests shared by several families.
-func above0([]float64) (func(float64) bool, string) {
-	return func(x float64) bool { return x > 0 }, "values above 0"
+// Supports shared by several families.
+func above0([]float64) (Interval, string) {
+	return between(0, inf, true, true), "values above 0"
 }
 
-func counts([]float64) (func(float64) bool, string) {
-	return func(x float64) bool { return x >= 0 && isWhole(x) }, "whole numbers 0, 1, 2, ..."
+func counts([]float64) (Interval, string) {
+	return wholeBetween(0, inf), "whole numbers 0, 1, 2, ..."
 }
 
 // specs lists the families in documentation order. It is a fixed table,
@@ -72,8 +72,8 @@ var specs = []*spec{
 		support: "x ≥ 0",
 		params:  []Param{positive("rate", "events per unit, 1/mean")},
 		method:  "closed form: rate = 1/mean",
-		inSupport: func([]float64) (func(float64) bool, string) {
-			return func(x float64) bool { return x >= 0 }, "values of 0 or more"
+		inSupport: func([]float64) (Interval, string) {
+			return between(0, inf, false, true), "values of 0 or more"
 		},
 		build: func(t []float64) model {
 			return exponential{distuv.Exponential{Rate: t[0]}}
@@ -125,12 +125,12 @@ var specs = []*spec{
 			}
 			return nil
 		},
-		inSupport: func(fixed []float64) (func(float64) bool, string) {
+		inSupport: func(fixed []float64) (Interval, string) {
 			lo, hi := fixed[0], fixed[1]
 			if math.IsNaN(lo) || math.IsNaN(hi) {
-				return nil, ""
+				return Finite, ""
 			}
-			return func(x float64) bool { return x >= lo && x <= hi }, "values from " + num(lo) + " to " + num(hi)
+			return between(lo, hi, false, false), "values from " + num(lo) + " to " + num(hi)
 		},
 		build: func(t []float64) model {
 			return uniform{distuv.Uniform{Min: t[0], Max: t[1]}}
@@ -146,8 +146,8 @@ var specs = []*spec{
 			positive("beta", "second shape"),
 		},
 		method: "BFGS (gonum optimize) on ln alpha, ln beta from the method-of-moments estimate",
-		inSupport: func([]float64) (func(float64) bool, string) {
-			return func(x float64) bool { return x > 0 && x < 1 }, "values strictly between 0 and 1"
+		inSupport: func([]float64) (Interval, string) {
+			return between(0, 1, true, true), "values strictly between 0 and 1"
 		},
 		build: func(t []float64) model {
 			return beta{distuv.Beta{Alpha: t[0], Beta: t[1]}}
@@ -219,9 +219,9 @@ var specs = []*spec{
 			probability("p", "success probability"),
 		},
 		method: "closed form: p = mean / n, n given",
-		inSupport: func(fixed []float64) (func(float64) bool, string) {
+		inSupport: func(fixed []float64) (Interval, string) {
 			n := fixed[0]
-			return func(x float64) bool { return x >= 0 && x <= n && isWhole(x) }, "whole numbers from 0 to " + num(n)
+			return wholeBetween(0, n), "whole numbers from 0 to " + num(n)
 		},
 		build: func(t []float64) model {
 			return binomial{distuv.Binomial{N: t[0], P: t[1]}}

@@ -112,9 +112,11 @@ type spec struct {
 	// relate checks relations between complete parameters (uniform min <
 	// max); nil when there are none.
 	relate func(theta []float64) error
-	// inSupport reports whether a sample value is possible, given the
-	// parameters fixed so far (NaN where free), and says what is needed.
-	inSupport func(fixed []float64) (ok func(x float64) bool, need string)
+	// inSupport returns the values a sample may hold, given the
+	// parameters fixed so far (NaN where free), and says what is needed
+	// ("" when any finite value will do); nil for the families whose
+	// support is every real number.
+	inSupport func(fixed []float64) (in Interval, need string)
 	// estimate fills the free entries of theta (marked in free) from the
 	// sample, whose values have passed inSupport; it reports degenerate
 	// samples (all values equal, ...) as errors.

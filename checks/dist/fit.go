@@ -113,9 +113,19 @@ func (f Family) Check(sample []float64) error {
 // parameters fixed so far, and what it needs; nil when any finite value
 // will do.
 func (f Family) support() (func(float64) bool, string) {
+	in, need := f.interval()
+	if need == "" {
+		return nil, ""
+	}
+	return in.Contains, need
+}
+
+// interval returns the values f can produce with the parameters fixed so
+// far, and what it needs beyond finite numbers ("" when nothing).
+func (f Family) interval() (Interval, string) {
 	s := f.spec
 	if s.inSupport == nil {
-		return nil, ""
+		return Finite, ""
 	}
 	fixed := make([]float64, len(s.params))
 	for i := range fixed {
@@ -135,14 +145,24 @@ func (f Family) support() (func(float64) bool, string) {
 // sample to this. For the categorical family, whose values are labels, ok
 // is nil.
 func (f Family) InSupport() (ok func(x float64) bool, need string) {
-	if f.spec == nil || f.spec.kind == Categorical {
+	in, need, isNumeric := f.Within()
+	if !isNumeric {
 		return nil, ""
 	}
-	in, need := f.support()
-	if in == nil {
-		return finite, "finite numbers"
+	return in.Contains, need
+}
+
+// Within is InSupport as an Interval, for callers that test millions of
+// values inline: in.Contains(x) is ok(x). isNumeric is false, and in the
+// zero Interval, for the categorical family.
+func (f Family) Within() (in Interval, need string, isNumeric bool) {
+	if f.spec == nil || f.spec.kind == Categorical {
+		return Interval{}, "", false
 	}
-	return func(x float64) bool { return finite(x) && in(x) }, need
+	if in, need = f.interval(); need == "" {
+		need = "finite numbers"
+	}
+	return in, need, true
 }
 
 // Fit is a family fitted to a sample.
