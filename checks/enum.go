@@ -29,7 +29,8 @@ func newEnumCheck(r *rules.Rule, s rules.EnumSpec, env *Env) (Check, error) {
 	vc := &valueCheck{rule: r, env: env, col: c, breaks: "are outside the list " + listValues(s.Values)}
 	switch c.class {
 	case classString:
-		vc.scan = scanPassing(newTextSet(s.Values).has)
+		has := newTextSet(s.Values).has
+		vc.scan, vc.text = scanPassing(has), failing(has)
 	case classNumber:
 		if err := allNumbers(c, s); err != nil {
 			return nil, err

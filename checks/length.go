@@ -26,6 +26,12 @@ func newLengthCheck(r *rules.Rule, s rules.LengthSpec, env *Env) (Check, error) 
 	switch s.Bound {
 	case rules.KindMinLength:
 		vc.breaks = "are shorter than " + characters(s.Length)
+		vc.text = func(v string) verdict {
+			if n := utf8.RuneCountInString(v); n < s.Length {
+				return verdict{breaks: true, score: float64(s.Length - n)}
+			}
+			return verdict{}
+		}
 		vc.scan = func(a arrow.Array, _ *scratch, hit func(int, float64)) {
 			eachString(a, func(i int, v string) {
 				if n := utf8.RuneCountInString(v); n < s.Length {
@@ -35,6 +41,12 @@ func newLengthCheck(r *rules.Rule, s rules.LengthSpec, env *Env) (Check, error) 
 		}
 	case rules.KindMaxLength:
 		vc.breaks = "are longer than " + characters(s.Length)
+		vc.text = func(v string) verdict {
+			if n := utf8.RuneCountInString(v); n > s.Length {
+				return verdict{breaks: true, score: float64(n - s.Length)}
+			}
+			return verdict{}
+		}
 		vc.scan = func(a arrow.Array, _ *scratch, hit func(int, float64)) {
 			eachString(a, func(i int, v string) {
 				if len(v) <= s.Length {

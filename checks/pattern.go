@@ -27,10 +27,11 @@ func newPatternCheck(r *rules.Rule, s rules.PatternSpec, env *Env) (Check, error
 	}
 	vc := &valueCheck{rule: r, env: env, col: c, breaks: "fail to match " + re.String()}
 	if fw, ok := fixedWidthOf(re); ok {
-		vc.scan = scanPassing(fw.match)
+		vc.scan, vc.text = scanPassing(fw.match), failing(fw.match)
 		return vc, nil
 	}
-	vc.scan = scanText(func(v string) verdict { return verdict{breaks: !re.MatchString(v), score: 1} })
+	vc.text = failing(re.MatchString)
+	vc.scan = scanText(vc.text)
 	return vc, nil
 }
 

@@ -2,6 +2,7 @@ package checks
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -25,6 +26,11 @@ type valueCheck struct {
 	// with its row index in a and its score (how far off it is, higher is
 	// worse). s holds scratch buffers of the run.
 	scan func(a arrow.Array, s *scratch, hit func(i int, score float64))
+	// text gives a rule on strings' verdict on one value, as scan judges
+	// it; nil for other rules. On a batch with dictionary codes for the
+	// column, Observe asks it once per dictionary entry (codedVerdicts)
+	// instead of scanning.
+	text func(string) verdict
 	// breaks says what breaking values do, for the message: "are above 150".
 	breaks string
 }
@@ -35,6 +41,7 @@ type scratch struct {
 	ints   []int64
 	floats []float64
 	memo   verdicts
+	coded  codedVerdicts
 }
 
 // verdict is what a rule on single strings says of one value: whether it
@@ -96,6 +103,93 @@ func (m *verdicts) judge(s string, judge func(string) verdict) verdict {
 		m.hits, m.misses = 0, 0
 	}
 	return v
+}
+
+// codedVerdicts holds the verdicts of a rule on strings on the entries of
+// one dictionary of a column (source.Batch.Codes), each judged when a row
+// first points at it, so that the batches of a dictionary-encoded Parquet
+// column chunk, which share one dictionary, judge each distinct value once
+// and each row costs a lookup by its code. It holds a reference to the
+// dictionary's data, which is how it knows the dictionary again: memory the
+// reader released and reused for another dictionary cannot pass for it.
+// The verdicts are those of the rule's text function, so results do not
+// change.
+type codedVerdicts struct {
+	dict  *array.String
+	state []uint8 // per entry: unjudged, meets or breaks
+	score []float64
+}
+
+// The states of a dictionary entry in codedVerdicts.
+const (
+	entryUnjudged uint8 = iota
+	entryMeets
+	entryBreaks
+)
+
+// codesOf returns the dictionary codes of column k of b when the batch has
+// them in the form source.Batch.Codes states, for the column's array arr;
+// false otherwise.
+func codesOf(b *source.Batch, k int, arr arrow.Array) (*array.Int32, arrow.ArrayData, bool) {
+	if k >= len(b.Codes) || b.Codes[k] == nil || b.Codes[k].Len() != arr.Len() {
+		return nil, nil, false
+	}
+	codes, ok := b.Codes[k].Indices().(*array.Int32)
+	dict := b.Codes[k].Data().Dictionary()
+	if !ok || dict == nil || dict.DataType().ID() != arrow.STRING {
+		return nil, nil, false
+	}
+	return codes, dict, true
+}
+
+// scan calls hit for every non-null value of str, whose dictionary codes
+// into dict are codes, that breaks the rule judge gives verdicts of. A code
+// out of the dictionary's range (a reader's fault) is judged by the row's
+// own value.
+func (c *codedVerdicts) scan(str *array.String, codes *array.Int32, dict arrow.ArrayData, judge func(string) verdict, hit func(int, float64)) {
+	if c.dict == nil || c.dict.Data() != dict {
+		c.release()
+		c.dict = array.NewStringData(dict)
+		n := c.dict.Len()
+		c.state, c.score = slices.Grow(c.state[:0], n)[:n], slices.Grow(c.score[:0], n)[:n]
+		clear(c.state)
+	}
+	v := validOf(str)
+	state, score := c.state, c.score
+	for i, p := range codes.Int32Values() {
+		if !v.at(i) {
+			continue
+		}
+		if uint(p) >= uint(len(state)) {
+			if r := judge(str.Value(i)); r.breaks {
+				hit(i, r.score)
+			}
+			continue
+		}
+		if state[p] == entryUnjudged {
+			state[p] = entryMeets
+			if r := judge(c.dict.Value(int(p))); r.breaks {
+				state[p], score[p] = entryBreaks, r.score
+			}
+		}
+		if state[p] == entryBreaks {
+			hit(i, score[p])
+		}
+	}
+}
+
+// release drops the reference to the dictionary and its verdicts.
+func (c *codedVerdicts) release() {
+	if c.dict != nil {
+		c.dict.Release()
+		c.dict = nil
+	}
+}
+
+// failing is the verdict of a rule that the strings passes accepts meet
+// and every other breaks, with the score 1.
+func failing(passes func(string) bool) func(string) verdict {
+	return func(s string) verdict { return verdict{breaks: !passes(s), score: 1} }
 }
 
 // scanText makes the scan of a rule on single strings from its verdict on
@@ -169,14 +263,22 @@ type ValueAccumulator struct {
 func (a *ValueAccumulator) Observe(b *source.Batch) error {
 	arr, err := a.check.col.in(b)
 	if err != nil {
+		a.scratch.coded.release() // no more batches come
 		return err
 	}
 	a.Values += int64(arr.Len() - arr.NullN())
 	cols := []int{a.check.col.index}
-	a.check.scan(arr, &a.scratch, func(i int, score float64) {
+	hit := func(i int, score float64) {
 		a.Breaking++
 		a.listing.Add(score, b.Row(i), func() report.Row { return RowAt(a.check.env, b, i, cols) })
-	})
+	}
+	if str, ok := arr.(*array.String); ok && a.check.text != nil {
+		if codes, dict, ok := codesOf(b, a.check.col.index, arr); ok {
+			a.scratch.coded.scan(str, codes, dict, a.check.text, hit)
+			return nil
+		}
+	}
+	a.check.scan(arr, &a.scratch, hit)
 	return nil
 }
 
@@ -189,11 +291,14 @@ func (a *ValueAccumulator) Merge(other Accumulator) error {
 	a.Values += o.Values
 	a.Breaking += o.Breaking
 	a.listing.Merge(&o.listing)
+	o.scratch.coded.release()
 	return nil
 }
 
-// Finish judges the share of breaking values.
+// Finish judges the share of breaking values. It drops the dictionary the
+// accumulator last judged.
 func (a *ValueAccumulator) Finish() report.Result {
+	a.scratch.coded.release()
 	res := NewResult(a.check.rule, share(a.Breaking, a.Values))
 	res.Message = fmt.Sprintf("%s %s", countOf(a.Breaking, a.Values, "values"), a.check.breaks)
 	res.Offending = offending(a.Breaking, &a.listing)

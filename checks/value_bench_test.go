@@ -17,17 +17,17 @@ import (
 // deviceBatches is 1M rows in batches of 64k, shaped like bench/gen's
 // device and site columns: dev holds "D-" and four digits (10,000
 // distinct, one in 10,000 the planted "D-??", 1% missing), site one of six
-// names.
+// names, items an integer from 0 to 30.
 func deviceBatches(b *testing.B) []*source.Batch {
 	b.Helper()
 	const rows, per = 1 << 20, 1 << 16
 	mem := memory.NewGoAllocator()
 	rng := rand.New(rand.NewPCG(3, 4))
 	sites := []string{"north", "south", "east", "west", "lab", "depot"}
-	schema := arrow.NewSchema([]arrow.Field{{Name: "dev", Type: tString, Nullable: true}, {Name: "site", Type: tString}}, nil)
+	schema := arrow.NewSchema([]arrow.Field{{Name: "dev", Type: tString, Nullable: true}, {Name: "site", Type: tString}, {Name: "items", Type: tInt}}, nil)
 	var out []*source.Batch
 	for first := 0; first < rows; first += per {
-		db, sb := array.NewStringBuilder(mem), array.NewStringBuilder(mem)
+		db, sb, ib := array.NewStringBuilder(mem), array.NewStringBuilder(mem), array.NewInt64Builder(mem)
 		for range per {
 			switch r := rng.IntN(10000); {
 			case r < 100:
@@ -38,10 +38,11 @@ func deviceBatches(b *testing.B) []*source.Batch {
 				db.Append(fmt.Sprintf("D-%04d", rng.IntN(10000)))
 			}
 			sb.Append(sites[rng.IntN(len(sites))])
+			ib.Append(rng.Int64N(31))
 		}
-		d, s := db.NewArray(), sb.NewArray()
-		out = append(out, &source.Batch{Record: array.NewRecordBatch(schema, []arrow.Array{d, s}, per), FirstRow: int64(first)})
-		for _, x := range []interface{ Release() }{d, s, db, sb} {
+		d, s, it := db.NewArray(), sb.NewArray(), ib.NewArray()
+		out = append(out, &source.Batch{Record: array.NewRecordBatch(schema, []arrow.Array{d, s, it}, per), FirstRow: int64(first)})
+		for _, x := range []interface{ Release() }{d, s, it, db, sb, ib} {
 			x.Release()
 		}
 	}
