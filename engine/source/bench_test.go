@@ -401,6 +401,20 @@ func BenchmarkParquetRef(b *testing.B) {
 // its columns (a number and a string) and skipping the other ten, as the
 // engine's second pass does.
 func BenchmarkParquetRefSome(b *testing.B) {
+	benchRefColumns(b, "temp_c", "device")
+}
+
+// BenchmarkParquetRefTexts scans refParquet reading only its two string
+// columns, site and device (dictionary-encoded), and skipping the others.
+func BenchmarkParquetRefTexts(b *testing.B) {
+	benchRefColumns(b, "site", "device")
+}
+
+// benchRefColumns scans refParquet with ScanSome, b.N times, reading the
+// columns named and skipping the others; it skips when the file has not
+// been made.
+func benchRefColumns(b *testing.B, names ...string) {
+	b.Helper()
 	if _, err := os.Stat(refParquet); err != nil {
 		b.Skipf("no %s (make it with bench/run.sh 1000000): %v", refParquet, err)
 	}
@@ -413,9 +427,10 @@ func BenchmarkParquetRefSome(b *testing.B) {
 	defer s.Close()
 	skip := make([]bool, s.Schema().NumFields())
 	for i, f := range s.Schema().Fields() {
-		skip[i] = f.Name != "temp_c" && f.Name != "device"
+		skip[i] = !slices.Contains(names, f.Name)
 	}
 	var rows int64
+	cpu := startCPU(b)
 	for b.Loop() {
 		rows = 0
 		err := s.ScanSome(context.Background(), nil, skip, func(bt *Batch) error { rows += bt.Record.NumRows(); return nil })
@@ -423,6 +438,7 @@ func BenchmarkParquetRefSome(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+	reportCPU(b, cpu)
 	reportRates(b, rows)
 }
 

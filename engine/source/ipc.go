@@ -137,7 +137,7 @@ func (s *Set) scanArrow(ctx context.Context, i int, sc *scan, first int64) (int6
 			for k, c := range sc.proj {
 				stored[k] = rec.Column(in.pos[c])
 			}
-			err = s.deliver(in, i, sc, stored, n, first+rows)
+			err = s.deliver(in, i, sc, stored, nil, n, first+rows)
 		}
 		rec.Release()
 		if err != nil {

@@ -174,6 +174,7 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 			"cannot decode the Parquet data after row %d: %v (the file is damaged; copy it again)", rows, err)}
 	}
 	stored := make([]arrow.Array, len(sc.proj))
+	codes := make([]*array.Dictionary, len(sc.proj))
 	var rows int64
 	for rows < total {
 		if err := ctx.Err(); err != nil {
@@ -196,9 +197,9 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 				stored[k] = rec.Column(j)
 			}
 		}
-		err := s.readFlat(flat, stored, int(n))
+		err := s.readFlat(flat, stored, codes, int(n))
 		if err == nil {
-			err = s.deliver(in, i, sc, stored, n, first+rows)
+			err = s.deliver(in, i, sc, stored, codes, n, first+rows)
 		} else {
 			err = decodeErr(rows, err)
 		}
@@ -206,6 +207,10 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 			if fc != nil && stored[k] != nil {
 				stored[k].Release()
 				stored[k] = nil
+			}
+			if codes[k] != nil {
+				codes[k].Release()
+				codes[k] = nil
 			}
 		}
 		if err != nil {
@@ -225,17 +230,18 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 	return rows, nil
 }
 
-// readFlat reads the next n rows of the flat columns into stored.
-func (s *Set) readFlat(flat []*flatColumn, stored []arrow.Array, n int) error {
+// readFlat reads the next n rows of the flat columns into stored, and
+// their dictionary codes, when the reader has them, into codes.
+func (s *Set) readFlat(flat []*flatColumn, stored []arrow.Array, codes []*array.Dictionary, n int) error {
 	for k, fc := range flat {
 		if fc == nil {
 			continue
 		}
-		a, err := fc.read(n)
+		a, c, err := fc.read(n)
 		if err != nil {
 			return err
 		}
-		stored[k] = a
+		stored[k], codes[k] = a, c
 	}
 	return nil
 }
@@ -256,10 +262,13 @@ func guard[T any](step func() (T, error)) (v T, err error) {
 
 // deliver converts columns as stored, stored[k] holding column k of the
 // batches (ignored when skipped), into a Batch of rows rows and hands it to
-// sc.fn.
-func (s *Set) deliver(in *input, i int, sc *scan, stored []arrow.Array, rows int64, firstRow int64) error {
+// sc.fn. codes, when not nil, holds the dictionary codes of stored columns
+// where the reader had them; the batch carries those of the columns it
+// passes on unconverted.
+func (s *Set) deliver(in *input, i int, sc *scan, stored []arrow.Array, codes []*array.Dictionary, rows int64, firstRow int64) error {
 	cols := make([]arrow.Array, len(sc.proj))
 	var invalid map[int][]InvalidCell
+	var kept []*array.Dictionary
 	for k, c := range sc.proj {
 		if sc.skipped(k) {
 			cols[k] = sc.nulls.get(sc.schema.Field(k).Type, int(rows))
@@ -270,6 +279,13 @@ func (s *Set) deliver(in *input, i int, sc *scan, stored []arrow.Array, rows int
 		if conv == nil {
 			a.Retain()
 			cols[k] = a
+			if codes != nil && codes[k] != nil {
+				if kept == nil {
+					kept = make([]*array.Dictionary, len(sc.proj))
+				}
+				codes[k].Retain()
+				kept[k] = codes[k]
+			}
 			continue
 		}
 		var bad []InvalidCell
@@ -281,7 +297,7 @@ func (s *Set) deliver(in *input, i int, sc *scan, stored []arrow.Array, rows int
 			invalid[k] = bad
 		}
 	}
-	b := &Batch{Record: array.NewRecordBatch(sc.schema, cols, rows), Source: i, FirstRow: firstRow, Invalid: invalid}
+	b := &Batch{Record: array.NewRecordBatch(sc.schema, cols, rows), Source: i, FirstRow: firstRow, Invalid: invalid, Codes: kept}
 	for _, c := range cols {
 		c.Release()
 	}

@@ -36,6 +36,7 @@ type flatColumn struct {
 
 	group int                    // next row group to open
 	cr    file.ColumnChunkReader // of the current row group; nil before the first
+	pages *textPages             // of the current row group instead of cr, see textPages
 	left  int64                  // rows of the current row group not read yet
 
 	defs  []int16             // definition levels of a batch, reused
@@ -78,6 +79,10 @@ func (fc *flatColumn) close() {
 		_ = fc.cr.Close()
 		fc.cr = nil
 	}
+	if fc.pages != nil {
+		fc.pages.close()
+		fc.pages = nil
+	}
 }
 
 // errShort is a column chunk with fewer values than its row group has rows.
@@ -92,22 +97,38 @@ func (fc *flatColumn) advance() error {
 			return errShort
 		}
 		rg := fc.r.RowGroup(fc.group)
-		cr, err := guard(func() (file.ColumnChunkReader, error) { return rg.Column(fc.leaf) })
-		if err != nil {
-			return err
-		}
-		fc.cr, fc.left = cr, rg.NumRows()
+		fc.left = rg.NumRows()
 		fc.group++
 		if fc.left < 0 {
 			return fmt.Errorf("row group %d claims %d rows", fc.group, fc.left)
 		}
+		md, err := rg.MetaData().ColumnChunk(fc.leaf)
+		if err != nil {
+			return err
+		}
+		if fc.typ.ID() == arrow.STRING || fc.typ.ID() == arrow.BINARY {
+			if readsPages(md, fc.opt) {
+				pr, err := guard(func() (file.PageReader, error) { return rg.GetColumnPageReader(fc.leaf) })
+				if err != nil {
+					return err
+				}
+				fc.pages = &textPages{pr: pr, opt: fc.opt}
+				continue
+			}
+		}
+		cr, err := guard(func() (file.ColumnChunkReader, error) { return rg.Column(fc.leaf) })
+		if err != nil {
+			return err
+		}
+		fc.cr = cr
 	}
 	return nil
 }
 
-// read returns the next n values of the column as an array of fc.typ; the
-// caller owns it.
-func (fc *flatColumn) read(n int) (arrow.Array, error) {
+// read returns the next n values of the column as an array of fc.typ and,
+// when readTexts gives them, the same values as dictionary codes (see
+// Batch.Codes); the caller owns both.
+func (fc *flatColumn) read(n int) (arrow.Array, *array.Dictionary, error) {
 	var valid *memory.Buffer
 	var bits []byte
 	if fc.opt {
@@ -119,6 +140,8 @@ func (fc *flatColumn) read(n int) (arrow.Array, error) {
 	}
 	var buffers []*memory.Buffer
 	var nulls int
+	var codes *memory.Buffer
+	var dict *array.String
 	var err error
 	switch fc.typ.ID() {
 	case arrow.INT32, arrow.DATE32:
@@ -140,13 +163,13 @@ func (fc *flatColumn) read(n int) (arrow.Array, error) {
 	case arrow.BOOL:
 		buffers, nulls, err = fc.readBools(n, bits)
 	default:
-		buffers, nulls, err = fc.readTexts(n, bits)
+		buffers, nulls, codes, dict, err = fc.readTexts(n, bits)
 	}
 	if err != nil {
 		if valid != nil {
 			valid.Release()
 		}
-		return nil, err
+		return nil, nil, err
 	}
 	if nulls == 0 && valid != nil {
 		valid.Release()
@@ -156,13 +179,25 @@ func (fc *flatColumn) read(n int) (arrow.Array, error) {
 	data := array.NewData(fc.typ, n, buffers, nil, nulls, 0)
 	arr := array.MakeFromData(data)
 	data.Release()
+	var dicts *array.Dictionary
+	if codes != nil {
+		idata := array.NewData(arrow.PrimitiveTypes.Int32, n, []*memory.Buffer{valid, codes}, nil, nulls, 0)
+		idx := array.NewInt32Data(idata)
+		idata.Release()
+		dicts = array.NewDictionaryArray(codesType, idx, dict)
+		idx.Release()
+		codes.Release()
+	}
 	for _, b := range buffers {
 		if b != nil {
 			b.Release()
 		}
 	}
-	return arr, nil
+	return arr, dicts, nil
 }
+
+// codesType is the type of the codes of a string column (Batch.Codes).
+var codesType = &arrow.DictionaryType{IndexType: arrow.PrimitiveTypes.Int32, ValueType: arrow.BinaryTypes.String}
 
 // fixed are the Go types of fixed-width Parquet values.
 type fixed interface {
@@ -285,77 +320,110 @@ func (fc *flatColumn) readBools(n int, bits []byte) ([]*memory.Buffer, int, erro
 	return []*memory.Buffer{buf}, nulls, nil
 }
 
-// readTexts reads n byte arrays into int32 offsets and one data buffer,
-// one page at a time: a page's values point into the page, so they are
-// copied out before the next read. The data buffer starts at the previous
-// batch's size.
-func (fc *flatColumn) readTexts(n int, bits []byte) ([]*memory.Buffer, int, error) {
-	offBuf := memory.NewResizableBuffer(fc.mem)
-	offBuf.Resize((n + 1) * 4)
-	offs := arrow.Int32Traits.CastFromBytes(offBuf.Bytes())
-	offs[0] = 0
-	data := memory.NewResizableBuffer(fc.mem)
-	data.Reserve(max(fc.dlen+fc.dlen/8, 4096))
-	dbuf, dlen := data.Buf(), 0
-	fail := func(err error) ([]*memory.Buffer, int, error) {
+// readTexts reads n byte arrays into int32 offsets and one data buffer. The
+// data buffer starts at the previous batch's size. When the batch's rows
+// all come from one column chunk read by textPages, and only from its pages
+// of dictionary indices, and the column is a string column, it returns as
+// well their indices (codes, int32 by row, 0 at nulls) and the chunk's
+// dictionary; else codes and dict are nil.
+func (fc *flatColumn) readTexts(n int, bits []byte) (buffers []*memory.Buffer, nulls int, codes *memory.Buffer, dict *array.String, err error) {
+	offBuf := sized(fc.mem, (n+1)*4)
+	o := textOut{offs: arrow.Int32Traits.CastFromBytes(offBuf.Bytes()), data: memory.NewResizableBuffer(fc.mem), bits: bits}
+	o.offs[0] = 0
+	o.data.Reserve(max(fc.dlen+fc.dlen/8, 4096))
+	o.dbuf = o.data.Buf()
+	fail := func(err error) ([]*memory.Buffer, int, *memory.Buffer, *array.String, error) {
 		offBuf.Release()
-		data.Release()
-		return nil, 0, err
+		o.data.Release()
+		if codes != nil {
+			codes.Release()
+		}
+		return nil, 0, nil, nil, err
 	}
-	nulls := 0
 	for row := 0; row < n; {
 		if err := fc.advance(); err != nil {
 			return fail(err)
 		}
 		want := min(int64(n-row), fc.left)
-		if int64(cap(fc.texts)) < want {
-			fc.texts = make([]parquet.ByteArray, want)
+		if fc.pages == nil {
+			rows, err := fc.readPage(&o, row, want)
+			if err != nil {
+				return fail(err)
+			}
+			row += int(rows)
+			fc.left -= rows
+			continue
 		}
-		vals := fc.texts[:want]
-		var defs []int16
-		if fc.opt {
-			defs = fc.defs[:want]
+		if row == 0 && want == int64(n) && fc.typ.ID() == arrow.STRING {
+			codes = sized(fc.mem, n*4)
+			o.codes = arrow.Int32Traits.CastFromBytes(codes.Bytes())
 		}
-		rows, got, err := guardRead(func() (int64, int, error) {
-			return fc.cr.(*file.ByteArrayColumnChunkReader).ReadBatchInPage(want, vals, defs, nil)
-		})
-		if err == nil && rows == 0 {
-			err = errShort
-		}
-		if err != nil {
+		if err := fc.pages.read(&o, row, int(want)); err != nil {
 			return fail(err)
 		}
-		k := 0 // next dense value
-		for i := range int(rows) {
-			if fc.opt && defs[i] != 1 {
-				offs[row+i+1] = int32(dlen)
-				nulls++
-				continue
-			}
-			v := vals[k]
-			k++
-			end := dlen + len(v)
-			if end > math.MaxInt32 {
-				return fail(fmt.Errorf("the text of a column exceeds 2 GiB in %d rows", n))
-			}
-			if end > len(dbuf) {
-				data.Reserve(max(end, 2*len(dbuf)))
-				dbuf = data.Buf()
-			}
-			copy(dbuf[dlen:], v)
-			dlen = end
-			offs[row+i+1] = int32(end)
-			if fc.opt {
-				bitutil.SetBit(bits, row+i)
-			}
-		}
-		if k != got {
-			return fail(fmt.Errorf("%d values for %d defined rows", got, k))
-		}
-		row += int(rows)
-		fc.left -= rows
+		row += int(want)
+		fc.left -= want
+		dict = fc.pages.dict
 	}
-	data.ResizeNoShrink(dlen)
+	if codes != nil && o.plain {
+		codes.Release()
+		codes = nil
+	}
+	if codes == nil {
+		dict = nil
+	}
+	dlen := int(o.offs[n])
+	o.data.ResizeNoShrink(dlen)
 	fc.dlen = dlen
-	return []*memory.Buffer{offBuf, data}, nulls, nil
+	return []*memory.Buffer{offBuf, o.data}, o.nulls, codes, dict, nil
+}
+
+// readPage reads at most want byte arrays of the current column chunk
+// reader into o from row on, from one page at most: a page's values point
+// into the page, so they are copied out before the next read. It returns
+// the number of rows read.
+func (fc *flatColumn) readPage(o *textOut, row int, want int64) (int64, error) {
+	if int64(cap(fc.texts)) < want {
+		fc.texts = make([]parquet.ByteArray, want)
+	}
+	vals := fc.texts[:want]
+	var defs []int16
+	if fc.opt {
+		defs = fc.defs[:want]
+	}
+	rows, got, err := guardRead(func() (int64, int, error) {
+		return fc.cr.(*file.ByteArrayColumnChunkReader).ReadBatchInPage(want, vals, defs, nil)
+	})
+	if err == nil && rows == 0 {
+		err = errShort
+	}
+	if err != nil {
+		return 0, err
+	}
+	dlen := int(o.offs[row])
+	k := 0 // next dense value
+	for i := range int(rows) {
+		if fc.opt && defs[i] != 1 {
+			o.offs[row+i+1] = int32(dlen)
+			o.nulls++
+			continue
+		}
+		v := vals[k]
+		k++
+		end := dlen + len(v)
+		if end > math.MaxInt32 {
+			return 0, errTextSize
+		}
+		o.reserve(end)
+		copy(o.dbuf[dlen:], v)
+		dlen = end
+		o.offs[row+i+1] = int32(end)
+		if fc.opt {
+			bitutil.SetBit(o.bits, row+i)
+		}
+	}
+	if k != got {
+		return 0, fmt.Errorf("%d values for %d defined rows", got, k)
+	}
+	return rows, nil
 }

@@ -1,11 +1,13 @@
 package source
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"math/rand/v2"
 	"path/filepath"
 	"slices"
+	"strings"
 	"testing"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -135,7 +137,7 @@ func checkFlat(t *testing.T, path string, want arrow.RecordBatch, batch int) {
 		}
 		for lo := 0; lo < int(want.NumRows()); lo += batch {
 			n := min(batch, int(want.NumRows())-lo)
-			got, err := fc.read(n)
+			got, codes, err := fc.read(n)
 			if err != nil {
 				t.Fatalf("column %s, rows %d-%d: %v", field.Field.Name, lo, lo+n, err)
 			}
@@ -143,13 +145,226 @@ func checkFlat(t *testing.T, path string, want arrow.RecordBatch, batch int) {
 			if !array.Equal(got, exp) || got.NullN() != exp.NullN() {
 				t.Errorf("column %s, rows %d-%d:\n got %v\nwant %v", field.Field.Name, lo, lo+n, got, exp)
 			}
+			if s, ok := got.(*array.String); ok {
+				checkText(t, fmt.Sprintf("column %s, rows %d-%d", field.Field.Name, lo, lo+n), s, exp.(*array.String), codes)
+			} else if codes != nil {
+				t.Errorf("column %s (%s) has codes", field.Field.Name, typ)
+			}
 			got.Release()
 			exp.Release()
+			if codes != nil {
+				codes.Release()
+			}
 		}
-		if _, err := fc.read(1); err == nil {
+		if _, _, err := fc.read(1); err == nil {
 			t.Errorf("column %s: a read past the last row succeeded", field.Field.Name)
 		}
 		fc.close()
+	}
+}
+
+// checkText checks that got holds the texts of want byte for byte (the
+// same offsets from the first, the same bytes, the same validity), and
+// that codes, unless nil, has got's nulls and decodes to got's values.
+func checkText(t *testing.T, what string, got, want *array.String, codes *array.Dictionary) {
+	t.Helper()
+	n := got.Len()
+	goff, woff := got.ValueOffsets(), want.ValueOffsets()
+	for i := range n + 1 {
+		if goff[i]-goff[0] != woff[i]-woff[0] {
+			t.Fatalf("%s: offset %d is %d; want %d", what, i, goff[i]-goff[0], woff[i]-woff[0])
+		}
+	}
+	if !bytes.Equal(got.ValueBytes(), want.ValueBytes()) {
+		t.Fatalf("%s: the text bytes differ", what)
+	}
+	for i := range n {
+		if got.IsNull(i) != want.IsNull(i) {
+			t.Fatalf("%s: row %d null %v; want %v", what, i, got.IsNull(i), want.IsNull(i))
+		}
+	}
+	if codes == nil {
+		return
+	}
+	if codes.Len() != n || codes.NullN() != got.NullN() {
+		t.Fatalf("%s: %d codes with %d nulls for %d rows with %d", what, codes.Len(), codes.NullN(), n, got.NullN())
+	}
+	idx := codes.Indices().(*array.Int32)
+	dict := codes.Dictionary().(*array.String)
+	for i := range n {
+		if codes.IsNull(i) != got.IsNull(i) {
+			t.Fatalf("%s: code %d null %v; the row %v", what, i, codes.IsNull(i), got.IsNull(i))
+		}
+		if !got.IsNull(i) && dict.Value(int(idx.Value(i))) != got.Value(i) {
+			t.Fatalf("%s: code %d is %q; the row %q", what, i, dict.Value(int(idx.Value(i))), got.Value(i))
+		}
+	}
+}
+
+// textFixture is a table of string columns for the codes of dictionary
+// pages: req (required, 37 values of 0 to 40 bytes), opt (optional, a
+// quarter null, short values), uniq (required, a value a row, to outgrow a
+// dictionary, so that the writer falls back to plain pages: at once, in
+// one page, or after pages of indices when pages are small) and bin (binary, which gets no codes).
+func textFixture(n int) fixture {
+	return fixture{
+		fields: []arrow.Field{
+			{Name: "req", Type: arrow.BinaryTypes.String},
+			{Name: "opt", Type: arrow.BinaryTypes.String, Nullable: true},
+			{Name: "uniq", Type: arrow.BinaryTypes.String},
+			{Name: "bin", Type: arrow.BinaryTypes.Binary, Nullable: true},
+		},
+		rows: func(b *array.RecordBuilder) {
+			rng := rand.New(rand.NewPCG(7, 11))
+			words := make([]string, 37)
+			for i := range words {
+				words[i] = strings.Repeat(string(rune('a'+i%26)), (i*7)%41)
+			}
+			for i := range n {
+				b.Field(0).(*array.StringBuilder).Append(words[rng.IntN(len(words))])
+				if rng.IntN(4) == 0 {
+					b.Field(1).AppendNull()
+				} else {
+					b.Field(1).(*array.StringBuilder).Append([]string{"x", "yy", "site-7", ""}[rng.IntN(4)])
+				}
+				b.Field(2).(*array.StringBuilder).Append(fmt.Sprintf("value %d", i))
+				if rng.IntN(3) == 0 {
+					b.Field(3).AppendNull()
+				} else {
+					b.Field(3).(*array.BinaryBuilder).Append([]byte{byte(rng.IntN(5)), 0})
+				}
+			}
+		},
+	}
+}
+
+// TestFlatTextCodes reads the string columns of files written with and
+// without dictionaries, with nulls, with a dictionary that overflows into
+// plain pages and with row groups that batches cross, and checks that every
+// batch's texts are those written, byte for byte, and that its codes, where
+// it has them, decode to them: a batch has codes exactly when its column is
+// a dictionary-encoded string column and its rows lie in one row group
+// (and, where the writer fell back to plain pages, only in that group's
+// dictionary pages, so that file must give some batches codes and some
+// none).
+func TestFlatTextCodes(t *testing.T) {
+	const rows = 5000
+	rec := textFixture(rows).record(t)
+	defer rec.Release()
+	tests := []struct {
+		name  string
+		props []parquet.WriterProperty
+		group int    // rows per row group
+		batch int    // rows per batch
+		codes string // which batches of req and opt get codes: "all", "in groups" or "some"
+	}{
+		{"dictionary, one group", nil, rows, 1024, "all"},
+		{"dictionary, batch of one", nil, rows, 1, "all"},
+		{"dictionary, groups crossed", nil, 777, 500, "in groups"},
+		{"dictionary, groups and batches equal", nil, 1000, 1000, "all"},
+		{"dictionary, small pages", []parquet.WriterProperty{parquet.WithDataPageSize(300)}, 2000, 333, "in groups"},
+		{"dictionary, page v2", []parquet.WriterProperty{parquet.WithDataPageVersion(parquet.DataPageV2), parquet.WithDataPageSize(1000)}, 1200, 700, "in groups"},
+		{"plain", []parquet.WriterProperty{parquet.WithDictionaryDefault(false)}, 1500, 1024, "none"},
+		{"dictionary falls back to plain", []parquet.WriterProperty{parquet.WithDictionaryPageSizeLimit(2000), parquet.WithDataPageSize(500)}, rows, 256, "some"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			props := append([]parquet.WriterProperty{parquet.WithMaxRowGroupLength(int64(tc.group))}, tc.props...)
+			path := filepath.Join(t.TempDir(), "text.parquet")
+			writeRecord(t, path, rec, parquet.NewWriterProperties(props...), pqarrow.DefaultWriterProps())
+			mem := checkedMem(t)
+			r, err := file.OpenParquetFile(path, false)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer r.Close()
+			for c := range int(rec.NumCols()) {
+				name := rec.Schema().Field(c).Name
+				fc := newFlatColumn(r, c, rec.Schema().Field(c).Type, mem)
+				with, without := 0, 0
+				for lo := 0; lo < rows; lo += tc.batch {
+					n := min(tc.batch, rows-lo)
+					got, codes, err := fc.read(n)
+					if err != nil {
+						t.Fatalf("column %s, rows %d-%d: %v", name, lo, lo+n, err)
+					}
+					exp := array.NewSlice(rec.Column(c), int64(lo), int64(lo+n))
+					what := fmt.Sprintf("column %s, rows %d-%d", name, lo, lo+n)
+					if s, ok := got.(*array.String); ok {
+						checkText(t, what, s, exp.(*array.String), codes)
+					} else if !array.Equal(got, exp) {
+						t.Errorf("%s:\n got %v\nwant %v", what, got, exp)
+					}
+					inGroup := lo/tc.group == (lo+n-1)/tc.group
+					want := false
+					switch {
+					case name == "bin" || tc.codes == "none":
+					case name == "uniq": // the writer falls back to plain pages, all or some
+						want = codes != nil && inGroup
+					case tc.codes == "all", tc.codes == "in groups", tc.codes == "some":
+						want = inGroup
+					}
+					if (codes != nil) != want {
+						t.Errorf("%s: codes %v; want them %v", what, codes != nil, want)
+					}
+					if codes != nil {
+						with++
+						codes.Release()
+					} else {
+						without++
+					}
+					got.Release()
+					exp.Release()
+				}
+				fc.close()
+				if tc.codes == "some" && name == "uniq" && (with == 0 || without == 0) {
+					t.Errorf("column uniq: %d batches with codes and %d without; want some of each", with, without)
+				}
+			}
+		})
+	}
+}
+
+// TestFlatCodesShareDictionary checks that the batches of one column chunk
+// give their codes one dictionary, the same object, which lives as long as
+// a batch's codes hold it.
+func TestFlatCodesShareDictionary(t *testing.T) {
+	rec := textFixture(3000).record(t)
+	defer rec.Release()
+	path := filepath.Join(t.TempDir(), "text.parquet")
+	writeRecord(t, path, rec, parquet.NewWriterProperties(parquet.WithMaxRowGroupLength(2000)), pqarrow.DefaultWriterProps())
+	mem := checkedMem(t)
+	r, err := file.OpenParquetFile(path, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	fc := newFlatColumn(r, 0, arrow.BinaryTypes.String, mem)
+	defer fc.close()
+	type part struct {
+		got   arrow.Array
+		codes *array.Dictionary
+	}
+	var parts []part
+	for range 3 { // rows 0-1999 of the first group in two batches, then 2000-2999
+		got, codes, err := fc.read(1000)
+		if err != nil || codes == nil {
+			t.Fatalf("read: codes %v, error %v; want codes", codes, err)
+		}
+		parts = append(parts, part{got, codes})
+	}
+	d := func(i int) arrow.ArrayData { return parts[i].codes.Dictionary().Data() }
+	if d(0) != d(1) || d(1) == d(2) {
+		t.Errorf("dictionaries %p %p %p; want the first two the same, the third another", d(0), d(1), d(2))
+	}
+	fc.close()
+	// The chunks are closed; the codes must still decode.
+	for i, p := range parts {
+		exp := array.NewSlice(rec.Column(0), int64(i*1000), int64(i*1000+1000))
+		checkText(t, fmt.Sprintf("batch %d", i), p.got.(*array.String), exp.(*array.String), p.codes)
+		exp.Release()
+		p.got.Release()
+		p.codes.Release()
 	}
 }
 
