@@ -334,7 +334,7 @@ func TestTallyGrid(t *testing.T) {
 			}
 			var gridded int64
 			for _, c := range ta.grid.counts {
-				gridded += c
+				gridded += int64(c)
 			}
 			if tc.grid != 0 && gridded < int64(len(all)/100) {
 				t.Errorf("the grid counts %d of %d values", gridded, len(all))
@@ -364,4 +364,81 @@ func TestTallyGrid(t *testing.T) {
 			}
 		})
 	}
+}
+
+// TestTallyPastUint32: the grid's 32-bit counts give way to the table
+// before a tally holds more than math.MaxUint32 values, by adding or by
+// merging, and no count wraps. The counts of such tallies are set by
+// hand, with their numbers of values, as four billion values would take
+// too long to add.
+func TestTallyPastUint32(t *testing.T) {
+	const big = math.MaxUint32 - 4 // with the 4 other values, one short of the limit
+	// planted returns a tally of 0.25 (on the grid) counted big times,
+	// 7.5 twice and -0 (in the table) once.
+	planted := func(t *testing.T) *Tally[float64] {
+		t.Helper()
+		var ta Tally[float64]
+		ta.Add([]float64{0.25, 7.5, 7.5}) // the first part makes the grid
+		ta.Add([]float64{math.Copysign(0, -1)})
+		j, ok := ta.grid.index(0.25)
+		if !ok || ta.grid.counts[j] != 1 {
+			t.Fatalf("0.25 is not counted once in the grid (%v, %d)", ok, ta.grid.counts[j])
+		}
+		ta.grid.counts[j] = big
+		ta.n += big - 1
+		return &ta
+	}
+	cases := []struct {
+		name string
+		more func(t *testing.T, ta *Tally[float64])
+		want map[float64]int64 // by value; -0 is checked apart
+	}{
+		{"adding to the limit keeps the grid", func(t *testing.T, ta *Tally[float64]) {
+			ta.Add([]float64{0.25})
+		}, map[float64]int64{0.25: big + 1, 7.5: 2}},
+		{"adding past the limit", func(t *testing.T, ta *Tally[float64]) {
+			ta.Add([]float64{0.25, 0.25, 0.25, 1.5, 0.25, 0.25, 0.25})
+		}, map[float64]int64{0.25: big + 6, 7.5: 2, 1.5: 1}},
+		{"merging past the limit", func(t *testing.T, ta *Tally[float64]) {
+			o := planted(t)
+			o.Add([]float64{1.5})
+			ta.Add([]float64{1.5})
+			ta.Merge(o)
+		}, map[float64]int64{0.25: 2 * big, 7.5: 4, 1.5: 2}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			ta := planted(t)
+			tc.more(t, ta)
+			got := map[float64]int64{}
+			var negZero, n int64
+			for x, c := range ta.All() {
+				if math.Signbit(x) && x == 0 {
+					negZero += c
+				} else {
+					got[x] += c
+				}
+				n += c
+			}
+			if !maps.Equal(got, tc.want) || negZero != (n-sum(tc.want)) || n != ta.Len() {
+				t.Errorf("counts %v and -0 %d of %d values, want %v and -0 the rest", got, negZero, ta.Len(), tc.want)
+			}
+			if hasGrid := ta.grid.counts != nil; hasGrid != (ta.Len() <= math.MaxUint32) {
+				t.Errorf("with %d values the tally has a grid: %v", ta.Len(), hasGrid)
+			}
+			// 0.25 holds every rank but the last few: -0 below it, the rest above.
+			if q := ta.Quantiles7(0, 0.5, 1); q[0] != 0 || q[1] != 0.25 || q[2] != 7.5 {
+				t.Errorf("min, median, max %v, want 0, 0.25, 7.5", q)
+			}
+		})
+	}
+}
+
+// sum is the sum of the counts of m.
+func sum(m map[float64]int64) int64 {
+	var n int64
+	for _, c := range m {
+		n += c
+	}
+	return n
 }
