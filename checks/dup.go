@@ -53,10 +53,12 @@ type dupCheck struct {
 	// words is set when the rule has one column of integers, numbers or
 	// times: a row holding a value is then hashed by word.
 	words bool
-	// hash hashes a row's bytes, word a value's 64 bits; a test may put
+	// hash hashes a row's bytes; a value's 64 bits x are hashed by
+	// mix13(x ^ wordSeed), or by word when it is set. A test may put
 	// poorer ones in their place.
-	hash func([]byte) uint64
-	word func(uint64) uint64
+	hash     func([]byte) uint64
+	wordSeed uint64
+	word     func(uint64) uint64
 }
 
 func newDupCheck(r *rules.Rule, env *Env, key bool) (*dupCheck, error) {
@@ -82,8 +84,7 @@ func newDupCheck(r *rules.Rule, env *Env, key bool) (*dupCheck, error) {
 	}
 	seed := maphash.MakeSeed()
 	c.hash = func(b []byte) uint64 { return maphash.Bytes(seed, b) }
-	wordSeed := rand.Uint64()
-	c.word = func(x uint64) uint64 { return mix13(x ^ wordSeed) }
+	c.wordSeed = rand.Uint64()
 	return c, nil
 }
 
@@ -197,8 +198,15 @@ func (c *dupCheck) appendHashes(dst []uint64, r *batchRows, s *hashScratch) []ui
 			}
 		}
 	}
-	for j := start; j < len(dst); j++ {
-		dst[j] = c.word(dst[j])
+	if c.word != nil {
+		for j := start; j < len(dst); j++ {
+			dst[j] = c.word(dst[j])
+		}
+	} else {
+		seed := c.wordSeed
+		for j := start; j < len(dst); j++ {
+			dst[j] = mix13(dst[j] ^ seed)
+		}
 	}
 	// A key counts the rows without a value too (one per row, so row i is
 	// at start+i); they are hashed by their bytes.
@@ -583,10 +591,16 @@ func newSuspectSet(sorted []uint64) suspectSet {
 	return s
 }
 
+// seenBit is h's bit of seen, 1 when h may be in the set, 0 when it is
+// not. Small enough to be inlined in a loop over a batch's hashes.
+func (s *suspectSet) seenBit(h uint64) int {
+	u := h >> (s.shift - seenBits)
+	return int(s.seen[u/64] >> (u % 64) & 1)
+}
+
 // has reports whether h is in the set.
 func (s *suspectSet) has(h uint64) bool {
-	u := h >> (s.shift - seenBits)
-	if s.seen[u/64]&(1<<(u%64)) == 0 {
+	if s.seenBit(h) == 0 {
 		return false
 	}
 	t := h >> s.shift
@@ -620,6 +634,7 @@ type DuplicateAccumulator struct {
 	groups   map[string]*dupGroup
 	scratch  hashScratch
 	hashes   []uint64 // the hashes of one batch
+	hits     []int    // the places in hashes of one batch's suspects
 }
 
 // dupGroup is the rows sharing one value's bytes.
@@ -660,16 +675,32 @@ func (a *DuplicateAccumulator) eachSuspect(b *source.Batch, f func(i int, key []
 		return err
 	}
 	a.hashes = a.check.appendHashes(slices.Grow(a.hashes[:0], r.count()), &r, &a.scratch)
-	j := 0
-	for i := range r.n {
-		if !r.counted.at(i) {
-			continue
+	// Most rows are not suspects: their bit of seen is clear. The places
+	// of the others are listed without a branch per row, then asked has.
+	s := a.suspects
+	hits := slices.Grow(a.hits[:0], len(a.hashes))[:len(a.hashes)]
+	m := 0
+	for j, h := range a.hashes {
+		hits[m] = j
+		m += s.seenBit(h)
+	}
+	hits = slices.DeleteFunc(hits[:m], func(j int) bool { return !s.has(a.hashes[j]) })
+	a.hits = hits
+	// Hash j belongs to the j-th row that counts (from 0): row j when
+	// every row counts.
+	i, j := -1, -1 // row i is the j-th that counts
+	for _, hit := range hits {
+		if r.counted.bits == nil {
+			i = hit
 		}
-		if a.suspects.has(a.hashes[j]) {
-			a.scratch.buf = r.key(a.scratch.buf, i)
-			f(i, a.scratch.buf)
+		for j < hit && r.counted.bits != nil {
+			i++
+			if r.counted.at(i) {
+				j++
+			}
 		}
-		j++
+		a.scratch.buf = r.key(a.scratch.buf, i)
+		f(i, a.scratch.buf)
 	}
 	return nil
 }

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math/rand/v2"
 	"testing"
+
+	"github.com/assay-project/assay/rules"
 )
 
 // BenchmarkFindRuns is the analysis of a unique or key rule's first pass
@@ -42,6 +44,40 @@ func BenchmarkFindRuns(b *testing.B) {
 				}
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*n), "ns/hash")
+		})
+	}
+}
+
+// BenchmarkDuplicateSecondPass is the second pass of a key rule alone over
+// dupBenchRows rows (one id in a thousand repeated): every row hashed
+// again and asked whether it is a suspect, the suspects grouped by their
+// bytes. Reports wall and CPU time per row (the machine is shared).
+func BenchmarkDuplicateSecondPass(b *testing.B) {
+	bs := dupBenchBatches(b)
+	for _, unique := range []bool{false, true} {
+		var spec rules.Spec = rules.KeySpec{}
+		if unique {
+			spec = rules.UniqueSpec{}
+		}
+		c, err := Compile(newRule(spec, atMost(0), "id"), envOf(bs[0], 20))
+		if err != nil {
+			b.Fatal(err)
+		}
+		first := c.NewAccumulator()
+		for _, x := range bs {
+			if err := first.Observe(x); err != nil {
+				b.Fatal(err)
+			}
+		}
+		b.Run(string(spec.Kind()), func(b *testing.B) {
+			perRow(b, dupBenchRows, func() {
+				a := first.(Rescanner).SecondPass()
+				for _, x := range bs {
+					if err := a.Observe(x); err != nil {
+						b.Fatal(err)
+					}
+				}
+			})
 		})
 	}
 }

@@ -6,6 +6,8 @@ import (
 	"math/rand/v2"
 	"slices"
 	"testing"
+
+	"github.com/assay-project/assay/rules"
 )
 
 // TestFindRunsCases checks findRuns on hand-made hashes: the hash 0 (the
@@ -92,6 +94,69 @@ func TestHashTable(t *testing.T) {
 			}
 			if len(tab.slots) < 2*n {
 				t.Errorf("%s: %d slots for %d hashes, want at least %d", s.name, len(tab.slots), n, 2*n)
+			}
+		}
+	}
+}
+
+// TestEachSuspectRows checks which rows eachSuspect hands on, and their
+// bytes, for unique and key rules over columns with nulls in several
+// places (the rows that count are then not the batch's rows), with the
+// seeded hash (the duplicated values' rows) and a constant one (every row
+// that counts).
+func TestEachSuspectRows(t *testing.T) {
+	mem := checkedMem(t)
+	patterns := []struct {
+		name string
+		vals []any
+	}{
+		{"no nulls", []any{1, 2, 3, 2, 5, 1, 7}},
+		{"nulls between", []any{1, nil, 2, nil, nil, 2, 3, nil, 1}},
+		{"leading nulls", []any{nil, nil, nil, 4, 4, 5}},
+		{"trailing nulls", []any{6, 7, 6, nil, nil}},
+		{"two values", []any{nil, 8, nil, nil, 8, nil}},
+		{"all null", []any{nil, nil, nil}},
+	}
+	for _, p := range patterns {
+		b := newBatch(t, mem, 1, col{"n", tInt, p.vals})
+		release(t, b)
+		for _, key := range []bool{false, true} {
+			for _, constant := range []bool{false, true} {
+				var spec rules.Spec = rules.UniqueSpec{}
+				if key {
+					spec = rules.KeySpec{}
+				}
+				c := compile(t, newRule(spec, atMost(0), "n"), envOf(b, 100))
+				if constant {
+					hashes(t, c, func([]byte) uint64 { return 1 })
+				}
+				counts := map[any]int{}
+				for _, v := range p.vals {
+					counts[v]++
+				}
+				var want []int
+				for i, v := range p.vals {
+					if (v != nil || key) && (constant || counts[v] > 1) {
+						want = append(want, i)
+					}
+				}
+				first := c.NewAccumulator().(*HashAccumulator)
+				observe(t, first, b)
+				var got []int
+				if second, ok := first.SecondPass().(*DuplicateAccumulator); ok {
+					err := second.eachSuspect(b, func(i int, bytes []byte) {
+						got = append(got, i)
+						if v := c.(*dupCheck).decode(string(bytes))["n"]; v != nil && v != int64(p.vals[i].(int)) || v == nil && p.vals[i] != nil {
+							t.Errorf("%s, key %v: row %d decodes to %v, holds %v", p.name, key, i, v, p.vals[i])
+						}
+					})
+					if err != nil {
+						t.Fatal(err)
+					}
+				}
+				if !slices.Equal(got, want) {
+					t.Errorf("%s, key %v, constant hash %v: rows %v, want %v", p.name, key, constant, got, want)
+				}
 			}
 		}
 	}
