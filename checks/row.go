@@ -110,17 +110,27 @@ type RowAccumulator struct {
 }
 
 // Observe evaluates the expression on every row of the batch and lists
-// the false ones.
+// the false ones. With the batch's dictionary codes, what the expression
+// says of a string column alone is computed once per dictionary entry
+// (rowexpr.Evaluator.EvalCodes).
 func (a *RowAccumulator) Observe(b *source.Batch) error {
 	if a.eval == nil {
 		a.eval = a.check.prog.NewEvaluator()
 	}
 	n := int(b.Record.NumRows())
+	measured := a.check.prog.Measured() // else every false row scores 1
 	if cap(a.truth) < n {
-		a.truth, a.gap = make([]rowexpr.Truth, n), make([]float64, n)
+		a.truth = make([]rowexpr.Truth, n)
+		if measured {
+			a.gap = make([]float64, n)
+		}
 	}
-	truth, gap := a.truth[:n], a.gap[:n]
-	if err := a.eval.Eval(b.Record, truth, gap); err != nil {
+	truth, gap := a.truth[:n], []float64(nil)
+	if measured {
+		gap = a.gap[:n]
+	}
+	if err := a.eval.EvalCodes(b.Record, b.Codes, truth, gap); err != nil {
+		a.eval.Release()
 		return err
 	}
 	a.Rows += int64(n)
@@ -131,7 +141,11 @@ func (a *RowAccumulator) Observe(b *source.Batch) error {
 		a.Evaluated++
 		if t == rowexpr.False {
 			a.False++
-			a.listing.Add(gap[i], b.Row(i), func() report.Row { return RowAt(a.check.env, b, i, a.check.cols) })
+			score := 1.0
+			if measured {
+				score = gap[i]
+			}
+			a.listing.Add(score, b.Row(i), func() report.Row { return RowAt(a.check.env, b, i, a.check.cols) })
 		}
 	}
 	return nil
@@ -147,11 +161,18 @@ func (a *RowAccumulator) Merge(other Accumulator) error {
 	a.Evaluated += o.Evaluated
 	a.False += o.False
 	a.listing.Merge(&o.listing)
+	if o.eval != nil {
+		o.eval.Release()
+	}
 	return nil
 }
 
-// Finish judges the share of rows on which the expression is false.
+// Finish judges the share of rows on which the expression is false. It
+// drops the dictionaries the accumulator's evaluator holds.
 func (a *RowAccumulator) Finish() report.Result {
+	if a.eval != nil {
+		a.eval.Release()
+	}
 	res := NewResult(a.check.rule, share(a.False, a.Rows))
 	res.Message = countOf(a.False, a.Rows, "rows") + " break the rule"
 	if skipped := a.Rows - a.Evaluated; skipped > 0 {

@@ -77,6 +77,8 @@ type Program struct {
 	fallbacks []string
 	env       map[string]any // every readable column, with a zero value of its Go type
 	gap       bool           // root is a comparison whose operands measure a distance
+	lifts     []lift         // computed per dictionary entry with codes (EvalCodes)
+	raw       []bool         // per column: read outside the lifts
 }
 
 // column is a column the expression reads.
@@ -165,6 +167,7 @@ func Compile(src string, columns map[string]arrow.DataType) (prog *Program, err 
 	}
 	p.gap = root.op == opCompare && root.cmp != opNe &&
 		(root.args[0].kind.numeric() || root.args[0].kind == kindTime)
+	p.lifts, p.raw = findLifts(root, p.cols, p.gap)
 	return p, nil
 }
 

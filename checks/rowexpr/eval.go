@@ -59,6 +59,9 @@ type Evaluator struct {
 	machine vm.VM
 	gapX    *vec // operands of a root comparison, for Eval's gap
 	gapY    *vec
+	off     int          // the current chunk's first row in the batch
+	dicts   []*dictCodes // per column: its dictionary, for the lifts that read it; else nil
+	lifted  []*liftState // per Program.lifts
 }
 
 // NewEvaluator makes an Evaluator of p.
@@ -73,6 +76,7 @@ func (p *Program) NewEvaluator() *Evaluator {
 	for k, c := range p.cols {
 		e.colBufs[k] = newBuffers(c.kind, chunkRows)
 	}
+	e.newLifts()
 	e.root = e.inst(p.root)
 	return e
 }
@@ -85,6 +89,11 @@ func (p *Program) NewEvaluator() *Evaluator {
 // when rec lacks a column the expression reads or holds it in another type
 // than the one compiled for.
 func (e *Evaluator) Eval(rec arrow.RecordBatch, out []Truth, gap []float64) error {
+	return e.eval(rec, nil, out, gap)
+}
+
+// eval is Eval and EvalCodes.
+func (e *Evaluator) eval(rec arrow.RecordBatch, codes []*array.Dictionary, out []Truth, gap []float64) error {
 	n := int(rec.NumRows())
 	if len(out) < n || (gap != nil && len(gap) < n) {
 		return fmt.Errorf("result buffers hold %d and %d rows, the batch has %d", len(out), len(gap), n)
@@ -102,9 +111,20 @@ func (e *Evaluator) Eval(rec arrow.RecordBatch, out []Truth, gap []float64) erro
 		e.arrs[k] = arr
 	}
 	defer e.clear()
+	for k, d := range e.dicts {
+		if d != nil && codes != nil {
+			if idx := fieldIndex(schema, e.p.cols[k].name); idx < len(codes) {
+				d.active = e.useCodes(k, codes[idx], n)
+			}
+		}
+	}
 	for off := 0; off < n; off += chunkRows {
 		m := min(chunkRows, n-off)
+		e.off = off
 		for k := range e.cols {
+			if d := e.dicts[k]; d != nil && d.active && !e.p.raw[k] {
+				continue // read only by lifts, from the codes
+			}
 			e.load(k, off, m)
 		}
 		v := e.root(m)
@@ -141,6 +161,11 @@ func (e *Evaluator) clear() {
 		e.env[name] = e.p.env[name]
 	}
 	e.gapX, e.gapY = nil, nil
+	for _, d := range e.dicts {
+		if d != nil {
+			d.active, d.rows = false, nil // rows may be the batch's codes
+		}
+	}
 }
 
 func (e *Evaluator) gaps(truth []Truth, gap []float64) {
@@ -252,8 +277,20 @@ func floorDiv(x, d int64) (int64, int64) {
 	return q, r
 }
 
-// inst turns a plan into a closure with its own buffers.
+// inst turns a plan into a closure with its own buffers; a lift's reads
+// its values per dictionary entry when the batch has codes.
 func (e *Evaluator) inst(p *plan) evalFn {
+	for _, l := range e.lifted {
+		if l.node == p {
+			l.inner = e.build(p)
+			return e.liftFn(l)
+		}
+	}
+	return e.build(p)
+}
+
+// build is inst without the lifts at p itself.
+func (e *Evaluator) build(p *plan) evalFn {
 	args := make([]evalFn, len(p.args))
 	for i, a := range p.args {
 		args[i] = e.inst(a)

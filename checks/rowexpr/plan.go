@@ -108,6 +108,7 @@ type vmPlan struct {
 	// handed to it with nil values; otherwise such rows are unknown without
 	// running it.
 	nullAware bool
+	impure    bool // asks the time (now())
 	text      string
 }
 
@@ -367,7 +368,7 @@ func (pl *planner) fallback(n ast.Node, k kind) *plan {
 		return nil
 	}
 	s := pl.reads(n)
-	return &plan{op: opVM, kind: k, vm: &vmPlan{prog: prog, cols: s.cols, nullAware: s.nullAware, text: n.String()}}
+	return &plan{op: opVM, kind: k, vm: &vmPlan{prog: prog, cols: s.cols, nullAware: s.nullAware, impure: s.impure, text: n.String()}}
 }
 
 // kindOfType is the vector kind holding values of Go type t, or kindNone.
