@@ -2,6 +2,7 @@ package bottomk
 
 import (
 	"fmt"
+	"math"
 	"testing"
 )
 
@@ -73,5 +74,33 @@ func BenchmarkMerge(b *testing.B) {
 				ss[0].trim()
 			}
 		})
+	}
+}
+
+// BenchmarkKeepRun times the two loops that take a run of rows into the
+// buffer, without and with a branch per row (keepRun, keepRareRun), on
+// 64k rows at thresholds that keep a share of 1/2 to 1/1024 of them: where
+// the second overtakes the first sets rareLimit.
+func BenchmarkKeepRun(b *testing.B) {
+	const per = 1 << 16
+	s, _ := New(1, 1, 1)
+	vals := make([]float64, per)
+	keys, vs := make([]uint64, per), make([]float64, per)
+	for _, share := range []int{2, 4, 8, 16, 32, 64, 1024} {
+		limit := uint64(math.MaxUint64) / uint64(share)
+		for _, loop := range []struct {
+			name string
+			run  func(int64, []float64, uint64, []uint64, []float64) (int, int)
+		}{{"branch-free", s.keepRun}, {"branchy", s.keepRareRun}} {
+			b.Run(fmt.Sprintf("1 in %d/%s", share, loop.name), func(b *testing.B) {
+				b.SetBytes(per * 8)
+				row := int64(0)
+				for b.Loop() {
+					loop.run(row, vals, limit, keys, vs)
+					row += per
+				}
+				b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*per), "ns/row")
+			})
+		}
 	}
 }

@@ -211,6 +211,16 @@ func (s *Sample) offer(row int64, vals []float64) {
 // (row first+i holds vals[i*P : (i+1)*P]). The buffer is grown for
 // reserveStep rows at a time, so the loop over the rows only computes keys
 // and appends.
+//
+// With one value a row the rows are taken in two stages, a chunk of up to
+// reserveStep rows at a time: the first computes the keys and writes the
+// rows of key at most the threshold to the buffer (keepRun, or
+// keepRareRun when the threshold keeps few rows), the second counts the
+// rows just written into the histograms (countRun). Counting only the
+// kept rows, a few in ten once the threshold has fallen, costs less than
+// counting every row with a weight of 0 or 1 in the loop that writes
+// them; the buffer, the histograms and the threshold are the same after
+// each chunk whichever loop took it.
 func (s *Sample) OfferRun(first int64, vals []float64) {
 	s.consolidate()
 	n := len(vals) / s.p
@@ -244,25 +254,16 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 			vs = append(vs, vals[i*s.p:(i+m)*s.p]...)
 			i += m
 		case s.p == 1:
-			// Without branches, as in drop: each row is written at place m,
-			// which advances past the kept ones only.
-			kk, vv, m := keys[:cap(keys)], vs[:cap(keys)], len(keys)
-			for ; i < n && m < len(kk); i, row = i+1, row+1 {
-				k := s.key(row)
-				keep := 0
-				if k <= limit {
-					keep = 1
-				}
-				kk[m], vv[m] = k, vals[i]
-				if hist != nil {
-					hist[min(k>>shift, 1<<histBits-1)] += int32(keep)
-				}
-				if pub != nil {
-					pub[k>>sharedShift] += int32(keep)
-				}
-				m += keep
+			from := len(keys)
+			var taken, m int
+			if limit < rareLimit {
+				taken, m = s.keepRareRun(row, vals[i:n], limit, keys[from:cap(keys)], vs[from:cap(keys)])
+			} else {
+				taken, m = s.keepRun(row, vals[i:n], limit, keys[from:cap(keys)], vs[from:cap(keys)])
 			}
-			keys, vs = kk[:m], vv[:m]
+			keys, vs = keys[:from+m], vs[:from+m]
+			countRun(keys[from:], hist, shift, pub)
+			i += taken
 		default:
 			for ; i < n && len(keys) < cap(keys); i, row = i+1, row+1 {
 				if k := s.key(row); k <= limit {
@@ -279,6 +280,70 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 		s.keys, s.vals = keys, vs
 		if len(s.keys) >= s.fill {
 			s.reduce()
+		}
+	}
+}
+
+// rareLimit is the threshold below which OfferRun takes a chunk with a
+// branch per row (keepRareRun): it keeps a row in 16 or fewer, so the
+// branch is mispredicted about that often. Above it every row is written
+// without a branch (keepRun), as a kept row at random would mispredict a
+// branch too often. Own choice by measurement (BenchmarkOfferRunSettled).
+const rareLimit = 1 << 60
+
+// keepRun writes the rows row, row+1, ... of values vals whose key is at
+// most limit to keys and vs from place 0 on, in order, until it has
+// taken every row or filled keys (vs is as long), and returns how many
+// rows it took and how many it wrote. Without branches: every row is
+// written at place m, which advances past the kept ones only.
+func (s *Sample) keepRun(row int64, vals []float64, limit uint64, keys []uint64, vs []float64) (taken, kept int) {
+	vs = vs[:len(keys)]
+	z, m, i := s.base+uint64(row)*gamma, 0, 0
+	for ; i < len(vals) && m < len(keys); i++ {
+		k := mix(z)
+		z += gamma
+		keep := 0
+		if k <= limit {
+			keep = 1
+		}
+		keys[m], vs[m] = k, vals[i]
+		m += keep
+	}
+	return i, m
+}
+
+// keepRareRun is keepRun with a branch per row, for a limit that keeps
+// few rows.
+func (s *Sample) keepRareRun(row int64, vals []float64, limit uint64, keys []uint64, vs []float64) (taken, kept int) {
+	vs = vs[:len(keys)]
+	z, m, i := s.base+uint64(row)*gamma, 0, 0
+	for ; i < len(vals) && m < len(keys); i++ {
+		if k := mix(z); k <= limit {
+			keys[m], vs[m] = k, vals[i]
+			m++
+		}
+		z += gamma
+	}
+	return i, m
+}
+
+// countRun counts the keys of rows just kept into the histogram of the
+// buffer (when hist is not nil: no selection has run yet) and of the
+// rows to publish to a shared bound (when pub is not nil).
+func countRun(keys []uint64, hist []int32, shift uint, pub []int32) {
+	switch {
+	case hist != nil && pub != nil:
+		for _, k := range keys {
+			hist[k>>shift]++
+			pub[k>>sharedShift]++
+		}
+	case hist != nil:
+		for _, k := range keys {
+			hist[k>>shift]++
+		}
+	case pub != nil:
+		for _, k := range keys {
+			pub[k>>sharedShift]++
 		}
 	}
 }
