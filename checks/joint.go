@@ -265,12 +265,30 @@ func (j *jointRows) values(i int, dst []float64) []float64 {
 }
 
 // gather returns the judged rows' values one row after the other (p per
-// row), as a bottomk.Sample takes them.
+// row), as a bottomk.Sample takes them. Three columns (the bench policy's
+// joint rule) are written a row at a time, into one stream of stores;
+// others a column at a time.
 func (j *jointRows) gather() []float64 {
 	p := len(j.cols)
 	flat := slices.Grow(j.flat[:0], p*j.Judged)[:p*j.Judged]
 	j.flat = flat
 	if j.Judged == 0 {
+		return flat
+	}
+	if p == 3 {
+		x0, x1, x2 := j.cols[0], j.cols[1], j.cols[2]
+		if j.All {
+			x0, x1, x2 = x0[:j.Judged], x1[:j.Judged], x2[:j.Judged]
+			for t := range x0 {
+				row := flat[3*t : 3*t+3 : 3*t+3]
+				row[0], row[1], row[2] = x0[t], x1[t], x2[t]
+			}
+			return flat
+		}
+		for t, i := range j.Rows {
+			row := flat[3*t : 3*t+3 : 3*t+3]
+			row[0], row[1], row[2] = x0[i], x1[i], x2[i]
+		}
 		return flat
 	}
 	for c, v := range j.cols {
@@ -285,7 +303,6 @@ func (j *jointRows) gather() []float64 {
 			dst[t*p] = v[i]
 		}
 	}
-	j.flat = flat
 	return flat
 }
 
