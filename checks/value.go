@@ -115,9 +115,11 @@ func (m *verdicts) judge(s string, judge func(string) verdict) verdict {
 // The verdicts are those of the rule's text function, so results do not
 // change.
 type codedVerdicts struct {
-	dict  *array.String
-	state []uint8 // per entry: unjudged, meets or breaks
-	score []float64
+	dict     *array.String
+	state    []uint8 // per entry: unjudged, meets or breaks
+	score    []float64
+	left     int // entries not judged yet
+	breaking int // entries judged to break the rule
 }
 
 // The states of a dictionary entry in codedVerdicts.
@@ -145,7 +147,9 @@ func codesOf(b *source.Batch, k int, arr arrow.Array) (*array.Int32, arrow.Array
 // scan calls hit for every non-null value of str, whose dictionary codes
 // into dict are codes, that breaks the rule judge gives verdicts of. A code
 // out of the dictionary's range (a reader's fault) is judged by the row's
-// own value.
+// own value. Once every entry is judged, a row costs a look at its entry's
+// state, and a batch nothing, after a check of the codes' range, when no
+// entry breaks the rule.
 func (c *codedVerdicts) scan(str *array.String, codes *array.Int32, dict arrow.ArrayData, judge func(string) verdict, hit func(int, float64)) {
 	if c.dict == nil || c.dict.Data() != dict {
 		c.release()
@@ -153,9 +157,20 @@ func (c *codedVerdicts) scan(str *array.String, codes *array.Int32, dict arrow.A
 		n := c.dict.Len()
 		c.state, c.score = slices.Grow(c.state[:0], n)[:n], slices.Grow(c.score[:0], n)[:n]
 		clear(c.state)
+		c.left, c.breaking = n, 0
 	}
-	v := validOf(str)
-	state, score := c.state, c.score
+	v, state, score := validOf(str), c.state, c.score
+	if c.left == 0 && inRange(codes.Int32Values(), len(state)) {
+		if c.breaking == 0 {
+			return
+		}
+		for i, p := range codes.Int32Values() {
+			if state[p] == entryBreaks && v.at(i) {
+				hit(i, score[p])
+			}
+		}
+		return
+	}
 	for i, p := range codes.Int32Values() {
 		if !v.at(i) {
 			continue
@@ -167,8 +182,10 @@ func (c *codedVerdicts) scan(str *array.String, codes *array.Int32, dict arrow.A
 			continue
 		}
 		if state[p] == entryUnjudged {
+			c.left--
 			state[p] = entryMeets
 			if r := judge(c.dict.Value(int(p))); r.breaks {
+				c.breaking++
 				state[p], score[p] = entryBreaks, r.score
 			}
 		}
@@ -176,6 +193,15 @@ func (c *codedVerdicts) scan(str *array.String, codes *array.Int32, dict arrow.A
 			hit(i, score[p])
 		}
 	}
+}
+
+// inRange reports whether every code is at least 0 and below n.
+func inRange(codes []int32, n int) bool {
+	var hi uint32
+	for _, p := range codes {
+		hi = max(hi, uint32(p))
+	}
+	return len(codes) == 0 || uint64(hi) < uint64(n)
 }
 
 // release drops the reference to the dictionary and its verdicts.
