@@ -324,37 +324,53 @@ func (a *DistributionAccumulator) Observe(b *source.Batch) error {
 	return nil
 }
 
-// observeInside counts the values of xs up to the first that is null or
-// outside some candidate's support (a.check.within, which holds finite
-// values only), tracks their least and greatest, and returns how many
-// it took: len(xs) when they are every value. It takes none when xs has
-// nulls. The support is tested inline, one interval for all the
-// candidates: a value inside it is inside each.
+// observeInside counts the values of xs and tracks their least and
+// greatest when none is null and every one is inside every candidate's
+// support (a.check.within, which holds finite values only), and returns
+// how many it took: len(xs) then, else 0. The support is tested once for
+// the batch, on its least and greatest value (NaN, which min and max
+// carry through, fails the test), and value by value only for whole
+// numbers.
 func observeInside[T int64 | float64](a *DistributionAccumulator, v valid, xs []T) int {
 	if v.bits != nil || len(xs) == 0 {
 		return 0
 	}
+	least, most := boundsOf(xs)
 	in := a.check.within
-	lo, hi := in.Lo, in.Hi
-	least, most := a.Min, a.Max
-	n := len(xs)
-	for i, x := range xs {
-		f := float64(x)
-		if !(f >= lo && f <= hi) || in.Whole && f != math.Trunc(f) {
-			n = i
-			break
-		}
-		// min and max give −0 below +0; the branches are rarely taken.
-		if f <= least {
-			least = min(least, f)
-		}
-		if f >= most {
-			most = max(most, f)
+	if !(least >= in.Lo && most <= in.Hi) {
+		return 0
+	}
+	if in.Whole {
+		for _, x := range xs {
+			if f := float64(x); f != math.Trunc(f) {
+				return 0
+			}
 		}
 	}
-	a.N += int64(n)
-	a.Min, a.Max = least, most
-	return n
+	a.N += int64(len(xs))
+	a.Min, a.Max = min(a.Min, least), max(a.Max, most)
+	return len(xs)
+}
+
+// boundsOf returns the least and the greatest of xs (not empty) as
+// float64, by min and max: NaN when xs holds one, −0 below +0. The min
+// of a sequence is the same in any grouping, so four running minima and
+// maxima (which the processor keeps apart, where one would wait for the
+// last) give the same as one.
+func boundsOf[T int64 | float64](xs []T) (least, most float64) {
+	f := float64(xs[0])
+	l0, l1, l2, l3 := f, f, f, f
+	m0, m1, m2, m3 := f, f, f, f
+	i := 0
+	for ; i+4 <= len(xs); i += 4 {
+		x0, x1, x2, x3 := float64(xs[i]), float64(xs[i+1]), float64(xs[i+2]), float64(xs[i+3])
+		l0, l1, l2, l3 = min(l0, x0), min(l1, x1), min(l2, x2), min(l3, x3)
+		m0, m1, m2, m3 = max(m0, x0), max(m1, x1), max(m2, x2), max(m3, x3)
+	}
+	for ; i < len(xs); i++ {
+		l0, m0 = min(l0, float64(xs[i])), max(m0, float64(xs[i]))
+	}
+	return min(l0, l1, l2, l3), max(m0, m1, m2, m3)
 }
 
 // observeValues observes the values of xs from place from on, those

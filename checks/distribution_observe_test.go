@@ -194,3 +194,38 @@ func checkObserved(t *testing.T, a *DistributionAccumulator, want observedRef) {
 
 // sameFloat reports whether x and y have the same bits.
 func sameFloat(x, y float64) bool { return math.Float64bits(x) == math.Float64bits(y) }
+
+// TestBoundsOf: the least and greatest value by four running minima and
+// maxima are, to the bit (any NaN for a NaN), those of one running min and
+// max, whatever the length and wherever a NaN, an infinity or a zero of
+// either sign lies.
+func TestBoundsOf(t *testing.T) {
+	negZero := math.Copysign(0, -1)
+	specials := []float64{math.NaN(), math.Inf(1), math.Inf(-1), negZero, 0, -3, 7}
+	for n := 1; n <= 9; n++ {
+		for at := range n {
+			for _, sp := range specials {
+				for _, fill := range []float64{1.5, 0, negZero} {
+					xs := make([]float64, n)
+					for i := range xs {
+						xs[i] = fill + float64(i%3)*float64(min(1, int(fill*2)))
+					}
+					xs[at] = sp
+					least, most := xs[0], xs[0]
+					for _, x := range xs {
+						least, most = min(least, x), max(most, x)
+					}
+					gotL, gotM := boundsOf(xs)
+					same := func(x, y float64) bool { return sameFloat(x, y) || math.IsNaN(x) && math.IsNaN(y) }
+					if !same(gotL, least) || !same(gotM, most) {
+						t.Errorf("boundsOf(%v) = %v, %v, want %v, %v", xs, gotL, gotM, least, most)
+					}
+				}
+			}
+		}
+	}
+	ints := []int64{4, -9, 1 << 53, 3, -(1 << 60), 0, 12}
+	if l, m := boundsOf(ints); l != -(1<<60) || m != 1<<53 {
+		t.Errorf("boundsOf(%v) = %v, %v, want %v, %v", ints, l, m, float64(-(1 << 60)), float64(1<<53))
+	}
+}
