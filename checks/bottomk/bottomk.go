@@ -210,7 +210,8 @@ func (s *Sample) offer(row int64, vals []float64) {
 // OfferRun offers the rows first, first+1, ..., P values each from vals
 // (row first+i holds vals[i*P : (i+1)*P]). The buffer is grown for
 // reserveStep rows at a time, so the loop over the rows only computes keys
-// and appends.
+// and appends; for a shared sample that keeps every row (before its
+// first selection), for the whole run at once.
 //
 // With one value a row the rows are taken in two stages, a chunk of up to
 // reserveStep rows at a time: the first computes the keys and writes the
@@ -237,7 +238,11 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 		defer s.published(n)
 	}
 	for i := 0; i < n; {
-		s.reserve(min(n-i, reserveStep))
+		if s.keyed || s.shared == nil {
+			s.reserve(min(n-i, reserveStep))
+		} else {
+			s.reserve(n - i) // every row is kept: see reserve
+		}
 		keys, vs, hist := s.keys, s.vals, s.hist
 		limit, shift := s.limit, s.shift
 		pub := s.pub
@@ -395,6 +400,13 @@ const reserveStep = 4096
 // spent 1.1 s of CPU in those copies (whole-run profile), 0.18 s growing
 // eightfold. The price: a lane that keeps more than 262,144 rows holds a
 // buffer of its fill (the bound unless shared).
+//
+// A shared sample that keeps every row asks for a whole run, so that a
+// lane of the engine (runs of 65,536 rows) holds 65,536 rows, then
+// 524,288: as many as its fill of twice its rows when the stream passes
+// Size, with four lanes of a sample of 10⁶, so it is not grown again
+// then. BenchmarkLanes (shared): 76 -> 55 MB allocated and 63 -> 45
+// allocations a run, about 10% less CPU.
 func (s *Sample) reserve(n int) {
 	if cap(s.keys)-len(s.keys) >= n || cap(s.keys) >= s.fill {
 		return
