@@ -508,16 +508,17 @@ func (s *Sample) drop(k uint64) {
 	if p == 1 {
 		// Without branches: every row is written at place n, which
 		// advances only past the kept ones (a fifth of the rows, at random,
-		// are dropped: a branch would be mispredicted that often).
+		// are dropped: a branch would be mispredicted that often); the
+		// kept ones are counted after, as in OfferRun.
 		for i, key := range keys {
 			keep := 0
 			if key <= k {
 				keep = 1
 			}
 			keys[n], vals[n] = key, vals[i]
-			hist[min(key>>shift, 1<<histBits-1)] += int32(keep)
 			n += keep
 		}
+		countRun(keys[:n], hist, shift, nil)
 	} else {
 		for i, key := range keys {
 			if key > k {
