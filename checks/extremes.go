@@ -178,11 +178,25 @@ type ExtremesAccumulator struct {
 	found   *extFinding
 }
 
-// Observe adds the batch's values: counted, and kept or summarised.
+// Observe adds the batch's values: counted, and kept or summarised. The
+// values of a batch without nulls, all finite as most batches' are, go to
+// the moments or the tally as they are, after one loop that finds their
+// extent; the others are sorted value by value.
 func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 	arr, err := a.check.col.in(b)
 	if err != nil {
 		return err
+	}
+	xs := numbers(arr, &a.scratch)
+	if arr.NullN() == 0 && !a.check.keepsRows() {
+		if lo, hi, ok := finiteExtent(xs); ok {
+			a.Min, a.Max = min(a.Min, lo), max(a.Max, hi)
+			if folded, err := a.fold(xs); folded || err != nil {
+				return err
+			}
+			a.Values.Add(slices.Clone(xs)) // kept: a part of its own
+			return nil
+		}
 	}
 	var (
 		finite = a.vals[:0]
@@ -197,7 +211,7 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 	}
 	v := validOf(arr)
 	lo, hi := a.Min, a.Max
-	for i, x := range numbers(arr, &a.scratch) {
+	for i, x := range xs {
 		switch {
 		case !v.at(i):
 			continue
@@ -218,18 +232,48 @@ func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 		}
 	}
 	a.Min, a.Max = lo, hi
-	switch {
-	case a.Moments != nil:
+	if folded, err := a.fold(finite); folded || err != nil {
 		a.vals = finite
-		return a.Moments.AddColumns([][]float64{finite})
-	case a.check.tallies():
-		a.vals = finite
-		a.Tally.Add(finite)
-		return nil
+		return err
 	}
 	a.Values.Add(finite)
 	a.Rows.Add(rows) // the same length and capacity: kept or copied alike
 	return nil
+}
+
+// fold adds finite values, which the caller keeps, to the moments
+// (zscore) or the tally (tukey and robust-z); false when the method keeps
+// the values themselves.
+func (a *ExtremesAccumulator) fold(xs []float64) (bool, error) {
+	switch {
+	case a.Moments != nil:
+		return true, a.Moments.AddColumns([][]float64{xs})
+	case a.check.tallies():
+		a.Tally.Add(xs)
+		return true, nil
+	}
+	return false, nil
+}
+
+// finiteExtent returns the least and greatest of xs (+Inf and -Inf when
+// there are none), as min and max find them (-0 below 0); false if some
+// value is NaN or infinite (x − x is then NaN, where it is 0 for every
+// finite x). min and max are taken only when x may move the extent, so
+// that, on data past its first values, the loop waits for neither.
+func finiteExtent(xs []float64) (lo, hi float64, ok bool) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, x := range xs {
+		if x-x != 0 {
+			return 0, 0, false
+		}
+		if x <= lo {
+			lo = min(lo, x)
+		}
+		if x >= hi {
+			hi = max(hi, x)
+		}
+	}
+	return lo, hi, true
 }
 
 // numbers returns the values of an integer or float array as float64
