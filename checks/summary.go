@@ -235,8 +235,13 @@ func (a *SummaryAccumulator) Observe(b *source.Batch) error {
 // observeFloats adds the values of xs that v says are valid; nulls of
 // them are not. Only what the statistic is computed from is updated
 // (summaryCheck.needs): each of the moments, the sum and the kept values
-// is a chain of work per value that the others need not wait for.
+// is a chain of work per value that the others need not wait for. A
+// batch without nulls and NaN, as most are, takes observeNumbers.
 func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
+	if v.bits == nil && a.Distinct == nil && !hasNaN(xs) {
+		a.observeNumbers(xs)
+		return
+	}
 	var (
 		w          welford
 		n, nan     int64
@@ -278,6 +283,51 @@ func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
 	a.pool(w, lo, hi)
 	a.Count += n + nan
 	a.NaN += nan
+}
+
+// observeNumbers adds xs, none of them NaN, to what the statistic needs,
+// as observeFloats does, in one loop per part of the state without a
+// test per value; the tally counts xs where they are.
+func (a *SummaryAccumulator) observeNumbers(xs []float64) {
+	var (
+		w      welford
+		lo, hi = math.Inf(1), math.Inf(-1)
+		need   = a.check.needs()
+	)
+	if need.moments {
+		for _, x := range xs {
+			w.add(x)
+		}
+	}
+	if need.extent {
+		for _, x := range xs {
+			lo, hi = min(lo, x), max(hi, x)
+		}
+	}
+	if need.sum {
+		sum := a.FloatSum
+		for _, x := range xs {
+			sum.Add(x)
+		}
+		a.FloatSum = sum
+	}
+	if need.values {
+		a.Floats.Add(xs)
+	}
+	n := int64(len(xs))
+	w.n = n
+	a.pool(w, lo, hi)
+	a.Count += n
+}
+
+// hasNaN reports whether some value of xs is NaN.
+func hasNaN(xs []float64) bool {
+	for _, x := range xs {
+		if x != x {
+			return true
+		}
+	}
+	return false
 }
 
 // observeInts adds the values of xs that v says are valid; nulls of them
