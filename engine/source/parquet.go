@@ -147,7 +147,7 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 		j := in.pos[sc.proj[k]]
 		field := &fr.Manifest.Fields[j]
 		if field.IsLeaf() {
-			flat[k] = newFlatColumn(r, field.ColIndex, in.types[j], s.opts.Allocator)
+			flat[k] = newFlatColumn(r, field.ColIndex, in.types[j], s.pool, s.opts.Allocator)
 		}
 		if flat[k] == nil {
 			cols = leaves(cols, field)

@@ -29,10 +29,15 @@ import (
 // arrays.
 type flatColumn struct {
 	r    *file.Reader
-	leaf int            // the column's leaf index in the file
-	typ  arrow.DataType // as pqarrow maps it
-	mem  memory.Allocator
-	opt  bool // optional: values come with definition levels
+	leaf int              // the column's leaf index in the file
+	typ  arrow.DataType   // as pqarrow maps it
+	mem  memory.Allocator // for the buffers of a batch but text bytes
+	// textMem allocates the bytes of a text column: the strings of an
+	// array point into them, and a check may keep such a string (a Go
+	// map even stores the key of every assignment), so they are never
+	// given a recycler.
+	textMem memory.Allocator
+	opt     bool // optional: values come with definition levels
 
 	group int                    // next row group to open
 	cr    file.ColumnChunkReader // of the current row group; nil before the first
@@ -47,7 +52,7 @@ type flatColumn struct {
 
 // newFlatColumn returns the reader of leaf column leaf of r, read as typ,
 // or nil when the column is not flat.
-func newFlatColumn(r *file.Reader, leaf int, typ arrow.DataType, mem memory.Allocator) *flatColumn {
+func newFlatColumn(r *file.Reader, leaf int, typ arrow.DataType, mem, textMem memory.Allocator) *flatColumn {
 	descr := r.MetaData().Schema.Column(leaf)
 	if descr.MaxRepetitionLevel() != 0 || descr.MaxDefinitionLevel() > 1 {
 		return nil
@@ -70,7 +75,7 @@ func newFlatColumn(r *file.Reader, leaf int, typ arrow.DataType, mem memory.Allo
 	if !ok {
 		return nil
 	}
-	return &flatColumn{r: r, leaf: leaf, typ: typ, mem: mem, opt: descr.MaxDefinitionLevel() == 1}
+	return &flatColumn{r: r, leaf: leaf, typ: typ, mem: mem, textMem: textMem, opt: descr.MaxDefinitionLevel() == 1}
 }
 
 // close lets go of the current row group's column chunk.
@@ -328,7 +333,7 @@ func (fc *flatColumn) readBools(n int, bits []byte) ([]*memory.Buffer, int, erro
 // dictionary; else codes and dict are nil.
 func (fc *flatColumn) readTexts(n int, bits []byte) (buffers []*memory.Buffer, nulls int, codes *memory.Buffer, dict *array.String, err error) {
 	offBuf := sized(fc.mem, (n+1)*4)
-	o := textOut{offs: arrow.Int32Traits.CastFromBytes(offBuf.Bytes()), data: memory.NewResizableBuffer(fc.mem), bits: bits}
+	o := textOut{offs: arrow.Int32Traits.CastFromBytes(offBuf.Bytes()), data: memory.NewResizableBuffer(fc.textMem), bits: bits}
 	o.offs[0] = 0
 	o.data.Reserve(max(fc.dlen+fc.dlen/8, 4096))
 	o.dbuf = o.data.Buf()

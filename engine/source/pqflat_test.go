@@ -128,7 +128,7 @@ func checkFlat(t *testing.T, path string, want arrow.RecordBatch, batch int) {
 	}
 	for c, field := range fr.Manifest.Fields {
 		typ := want.Schema().Field(c).Type
-		fc := newFlatColumn(r, field.ColIndex, field.Field.Type, mem)
+		fc := newFlatColumn(r, field.ColIndex, field.Field.Type, mem, mem)
 		if fc == nil {
 			t.Fatalf("column %s (%s) is not read as flat", field.Field.Name, typ)
 		}
@@ -280,7 +280,7 @@ func TestFlatTextCodes(t *testing.T) {
 			defer r.Close()
 			for c := range int(rec.NumCols()) {
 				name := rec.Schema().Field(c).Name
-				fc := newFlatColumn(r, c, rec.Schema().Field(c).Type, mem)
+				fc := newFlatColumn(r, c, rec.Schema().Field(c).Type, mem, mem)
 				with, without := 0, 0
 				for lo := 0; lo < rows; lo += tc.batch {
 					n := min(tc.batch, rows-lo)
@@ -339,7 +339,7 @@ func TestFlatCodesShareDictionary(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer r.Close()
-	fc := newFlatColumn(r, 0, arrow.BinaryTypes.String, mem)
+	fc := newFlatColumn(r, 0, arrow.BinaryTypes.String, mem, mem)
 	defer fc.close()
 	type part struct {
 		got   arrow.Array

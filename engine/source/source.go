@@ -78,8 +78,9 @@ type Set struct {
 	nulls  *nullSet
 	inputs []*input
 	schema *arrow.Schema
-	spool  string // the copy of standard input, removed by Close
-	text   bool   // the scan under way keeps CSV cell texts (ScanText)
+	spool  string    // the copy of standard input, removed by Close
+	text   bool      // the scan under way keeps CSV cell texts (ScanText)
+	pool   *recycler // the memory of the flat Parquet columns' batches
 }
 
 // input is one file of a Set and how to read it.
@@ -115,7 +116,7 @@ func Open(paths []string, opts Options) (*Set, error) {
 	if err != nil {
 		return nil, err
 	}
-	s := &Set{opts: o, nulls: newNullSet(o.Nulls)}
+	s := &Set{opts: o, nulls: newNullSet(o.Nulls), pool: newRecycler(o.Allocator)}
 	if err := s.init(paths); err != nil {
 		_ = s.Close()
 		return nil, err
@@ -275,8 +276,10 @@ func (s *Set) spoolStdin() error {
 	return nil
 }
 
-// Close removes the temporary copy of standard input, if any.
+// Close removes the temporary copy of standard input, if any, and gives
+// the memory kept for reuse back to the allocator of Options.
 func (s *Set) Close() error {
+	s.pool.close()
 	if s.spool == "" {
 		return nil
 	}
