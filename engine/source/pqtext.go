@@ -394,6 +394,9 @@ func (h *hybrid) read(out []int32) error {
 			continue
 		}
 		n := min(h.end-h.at, len(out))
+		if n == 0 {
+			continue // an empty run
+		}
 		if err := unpack(out[:n], h.packed, h.at, h.width); err != nil {
 			return err
 		}
@@ -418,6 +421,9 @@ func (h *hybrid) run() error {
 		var v uint32
 		for i := range bytes {
 			v |= uint32(h.buf[i]) << (8 * i)
+		}
+		if h.width < 32 && v>>h.width != 0 {
+			return fmt.Errorf("a repeated value %d wider than %d bits", v, h.width)
 		}
 		h.repeat, h.value = int(hdr>>1), int32(v)
 		h.buf = h.buf[bytes:]
