@@ -36,7 +36,7 @@ func TestFindRunsCases(t *testing.T) {
 		{"zero twice", [][]uint64{{0}, {5, 0}}, 2, 1, []uint64{0}},
 		{"zero once", [][]uint64{{0, 5}, {5}}, 2, 1, []uint64{5}},
 		{"runs of two and three", [][]uint64{{0, 5, 9}, {5, 0, 5}, {math.MaxUint64, math.MaxUint64}}, 7, 3, []uint64{0, 5, math.MaxUint64}},
-		{"empty and lone ranges", crowded(3<<62|1, 2<<62|4, 2<<62|4), n - 1 + 2, n/2 + 1, append(seq(1, n/2), 2<<62|4)},
+		{"empty and lone ranges", crowded(3<<62|1, 2<<62|4, 2<<62|4), n - 1 + 2, n/2 + 1, append(seq[uint64](1, n/2), 2<<62|4)},
 	}
 	for _, tc := range cases {
 		got := findRuns(tc.chunks)
@@ -48,8 +48,8 @@ func TestFindRunsCases(t *testing.T) {
 }
 
 // seq returns lo, lo+1, ..., hi.
-func seq(lo, hi uint64) []uint64 {
-	var out []uint64
+func seq[T int | uint64](lo, hi T) []T {
+	var out []T
 	for x := lo; x <= hi; x++ {
 		out = append(out, x)
 	}

@@ -163,39 +163,73 @@ type jointRows struct {
 
 // read reads the batch's columns and finds the judged rows.
 func (j *jointRows) read(c *jointCheck, b *source.Batch) error {
+	nulls, err := j.load(c, b)
+	if err != nil {
+		return err
+	}
+	j.judge(nulls, nil)
+	return nil
+}
+
+// load reads the batch's columns as float64 and their validity, and
+// reports whether any holds a null.
+func (j *jointRows) load(c *jointCheck, b *source.Batch) (nulls bool, err error) {
 	p := len(c.cols)
 	if j.cols == nil {
 		j.scratch, j.cols, j.judged = make([]scratch, p), make([][]float64, p), make([][]float64, p)
 	}
 	n := int(b.Record.NumRows())
-	nulls := false
 	j.valid = j.valid[:0]
 	for k, col := range c.cols {
 		arr, err := col.in(b)
 		if err != nil {
-			return err
+			return false, err
 		}
 		j.cols[k] = asFloats(col, arr, &j.scratch[k])[:n]
 		j.valid = append(j.valid, validOf(arr))
 		nulls = nulls || arr.NullN() > 0
 	}
 	j.N = n
-	if !nulls && columnsFinite(j.cols...) {
+	return nulls, nil
+}
+
+// judge finds the judged rows of the loaded batch; nulls says whether a
+// column holds a null. d2, when not nil, holds a squared distance per row
+// of the batch (null slots' included) from a Scatter whose distances show
+// non-finite values (outlier.Scatter.ShowsNonFinite): a row with a finite
+// distance is then known to hold finite values, and only the rows with a
+// non-finite one are checked value by value; without it every column is.
+func (j *jointRows) judge(nulls bool, d2 []float64) {
+	n := j.N
+	if !nulls && (d2 != nil && columnsFinite(d2) || d2 == nil && columnsFinite(j.cols...)) {
 		j.All, j.Rows, j.Judged = true, nil, n
-		return nil
+		return
 	}
-	// Column by column, mark the rows with a null or a non-finite value
-	// (bad[i] = 1), then list the others, without a branch per row.
+	// Mark the rows with a null or a non-finite value (bad[i] = 1),
+	// then list the others, without a branch per row.
 	bad := slices.Grow(j.bad[:0], n)[:n]
 	clear(bad)
-	for k, v := range j.cols {
-		if vk := j.valid[k]; vk.bits != nil {
+	for _, vk := range j.valid {
+		if vk.bits != nil {
 			markNulls(bad, vk)
 		}
-		if !columnsFinite(v) {
-			for i, x := range v {
-				if !isFinite(x) {
+	}
+	switch {
+	case d2 != nil:
+		if !columnsFinite(d2) {
+			for i, d := range d2 {
+				if !isFinite(d) && !j.finiteAt(i) {
 					bad[i] = 1
+				}
+			}
+		}
+	default:
+		for _, v := range j.cols {
+			if !columnsFinite(v) {
+				for i, x := range v {
+					if !isFinite(x) {
+						bad[i] = 1
+					}
 				}
 			}
 		}
@@ -210,7 +244,16 @@ func (j *jointRows) read(c *jointCheck, b *source.Batch) error {
 	rows = rows[:m]
 	j.rows = rows
 	j.All, j.Rows, j.Judged = false, rows, len(rows)
-	return nil
+}
+
+// finiteAt reports whether every column's value at place i is finite.
+func (j *jointRows) finiteAt(i int) bool {
+	for _, v := range j.cols {
+		if !isFinite(v[i]) {
+			return false
+		}
+	}
+	return true
 }
 
 // columnsFinite reports whether every value of cols is finite: whether
@@ -341,13 +384,36 @@ func offerRows(s *bottomk.Sample, b *source.Batch, j *jointRows, vals []float64)
 	}
 	rows := j.Rows
 	for lo := 0; lo < len(rows); {
-		hi := lo + 1
-		for hi < len(rows) && rows[hi] == rows[hi-1]+1 {
-			hi++
-		}
+		hi := runEnd(rows, lo)
 		s.OfferRun(b.FirstRow+int64(rows[lo]), vals[lo*p:hi*p])
 		lo = hi
 	}
+}
+
+// runEnd returns the end of the run of consecutive places that starts at
+// rows[lo]: the least hi > lo with rows[hi] != rows[hi-1]+1, or
+// len(rows). The places increase strictly, so rows[lo+d] = rows[lo]+d
+// exactly when rows[lo], ..., rows[lo+d] are consecutive; a galloping
+// search (Bentley & Yao 1976, "An almost optimal algorithm for unbounded
+// searching", Inf. Proc. Letters 5) finds the end in O(log(hi-lo)) steps
+// instead of hi-lo.
+func runEnd(rows []int, lo int) int {
+	// rows[lo : lo+in+1] are consecutive; at lo+out the run has ended
+	// (or rows have).
+	in, step := 0, 1
+	for lo+step < len(rows) && rows[lo+step] == rows[lo]+step {
+		in, step = step, 2*step
+	}
+	out := min(step, len(rows)-lo)
+	for out-in > 1 {
+		mid := in + (out-in)/2
+		if rows[lo+mid] == rows[lo]+mid {
+			in = mid
+		} else {
+			out = mid
+		}
+	}
+	return lo + out
 }
 
 // Observe adds the batch's judged rows to the moments or the sample.
@@ -548,31 +614,36 @@ type jointJudge struct {
 	rows    jointRows
 	plot    *bottomk.Sample
 	d2      []float64 // the batch's judged rows' squared distances
+	all     []float64 // every row's of the batch (see jointRows.judge)
 }
 
 // Observe judges the batch's rows.
 func (l *jointJudge) Observe(b *source.Batch) error {
 	c := l.check
-	if err := l.rows.read(c, b); err != nil {
+	nulls, err := l.rows.load(c, b)
+	if err != nil {
 		return err
 	}
 	if l.plot == nil {
-		var err error
 		if l.plot, err = bottomk.New(maxQQSample, 1, c.spec.Seed^plotSeed); err != nil {
 			return err
 		}
 	}
+	s := l.found.scatter
+	var all []float64
+	if s.ShowsNonFinite() {
+		// Every row's distance, in one loop without row indices, tells
+		// most rows' values finite on the way (jointRows.judge).
+		l.all = s.DistancesAt(l.rows.cols, nil, l.all)
+		all = l.all
+	}
+	l.rows.judge(nulls, all)
 	if l.rows.Judged == 0 {
 		return nil
 	}
-	s := l.found.scatter
-	var rows []int
-	if !l.rows.All {
-		rows = l.rows.Rows
-	}
-	l.d2 = s.DistancesAt(l.rows.cols, rows, l.d2)
-	offerRows(l.plot, b, &l.rows, l.d2)
-	for k, d2 := range l.d2 {
+	d2 := l.distances(s, all)
+	offerRows(l.plot, b, &l.rows, d2)
+	for k, d2 := range d2 {
 		if !(d2 > c.cutoff) {
 			continue
 		}
@@ -588,6 +659,25 @@ func (l *jointJudge) Observe(b *source.Batch) error {
 		})
 	}
 	return nil
+}
+
+// distances returns the judged rows' squared distances, in judged-row
+// order: taken from all (every row's) when set, else computed.
+func (l *jointJudge) distances(s *outlier.Scatter, all []float64) []float64 {
+	switch {
+	case all != nil && l.rows.All:
+		return all
+	case all != nil:
+		l.d2 = slices.Grow(l.d2[:0], l.rows.Judged)[:l.rows.Judged]
+		for k, i := range l.rows.Rows {
+			l.d2[k] = all[i]
+		}
+	case l.rows.All:
+		l.d2 = s.DistancesAt(l.rows.cols, nil, l.d2)
+	default:
+		l.d2 = s.DistancesAt(l.rows.cols, l.rows.Rows, l.d2)
+	}
+	return l.d2
 }
 
 // contributions names and ranks a row's contributions to its distance.

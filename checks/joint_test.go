@@ -378,13 +378,6 @@ func TestJointRowsRead(t *testing.T) {
 		}
 		return out
 	}
-	with := func(vals []any, at map[int]any) []any {
-		out := slices.Clone(vals)
-		for i, v := range at {
-			out[i] = v
-		}
-		return out
-	}
 	ints, every := make([]any, n), make([]int, n)
 	for i := range ints {
 		ints[i], every[i] = i-7, i
@@ -396,9 +389,9 @@ func TestJointRowsRead(t *testing.T) {
 		integerCol bool
 	}{
 		{"all judged", clean(0), clean(1), clean(2), nil, false},
-		{"nulls", with(clean(0), map[int]any{3: nil, 17: nil}), clean(1), with(clean(2), map[int]any{17: nil, 30: nil}), []int{3, 17, 30}, false},
-		{"non-finite", with(clean(0), map[int]any{0: nan}), with(clean(1), map[int]any{9: inf, 39: -inf}), clean(2), []int{0, 9, 39}, false},
-		{"integers", with(clean(0), map[int]any{8: nil}), clean(1), with(ints, map[int]any{5: nil}), []int{5, 8}, true},
+		{"nulls", withValues(clean(0), map[int]any{3: nil, 17: nil}), clean(1), withValues(clean(2), map[int]any{17: nil, 30: nil}), []int{3, 17, 30}, false},
+		{"non-finite", withValues(clean(0), map[int]any{0: nan}), withValues(clean(1), map[int]any{9: inf, 39: -inf}), clean(2), []int{0, 9, 39}, false},
+		{"integers", withValues(clean(0), map[int]any{8: nil}), clean(1), withValues(ints, map[int]any{5: nil}), []int{5, 8}, true},
 		{"none judged", clean(0), slices.Repeat([]any{nil}, n), clean(2), every, false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -216,6 +216,25 @@ func sqDistances3(cols [][]float64, center, linv []float64, rows []int, dst []fl
 	}
 }
 
+// ShowsNonFinite reports whether every row holding a NaN or an infinite
+// value gets a non-finite squared distance, so that a finite distance
+// proves a row's values finite: true when every diagonal entry of L⁻¹ is
+// > 0 (a NaN is not). Proof: let u_j be the last non-finite entry of
+// u = x − center (the center is finite); z_j = Σ_{i<=j} (L⁻¹)_ji u_i holds
+// (L⁻¹)_jj u_j, ±Inf or NaN, and finite terms, ±Inf or NaN terms with it
+// cannot sum to a finite number; d² = Σ z_k² then adds +Inf or NaN to
+// terms that are >= 0 or NaN. (A finite row may still get +Inf by
+// overflow.) NewScatter makes every diagonal entry > 0 when it can.
+func (s Scatter) ShowsNonFinite() bool {
+	p := len(s.Center)
+	for k := range p {
+		if !(s.linv[k*p+k] > 0) {
+			return false
+		}
+	}
+	return p > 0
+}
+
 // RowExtreme is a row flagged by its squared distance.
 type RowExtreme struct {
 	Index   int       // row, 0-based
