@@ -277,8 +277,8 @@ func floorDiv(x, d int64) (int64, int64) {
 	return q, r
 }
 
-// inst turns a plan into a closure with its own buffers; a lift's reads
-// its values per dictionary entry when the batch has codes.
+// inst turns a plan into a closure with its own buffers; the closure of
+// a lift takes its values per dictionary entry when the batch has codes.
 func (e *Evaluator) inst(p *plan) evalFn {
 	for _, l := range e.lifted {
 		if l.node == p {
