@@ -36,7 +36,8 @@ import (
 // passes and in every batch.
 //
 // The first pass keeps the hashes themselves, 8 bytes a row (HashCounts),
-// and sorts them to find those that occur more than once (findRuns). The
+// and finds those that occur more than once, range by range of their top
+// bits in a hash table (findRuns). The
 // second pass looks again at the rows whose hash occurred more than once,
 // groups them by their actual bytes, so a hash collision cannot make a
 // false duplicate, and counts exactly (DuplicateState), keeping per
