@@ -223,16 +223,35 @@ func (s *Sample) offer(row int64, vals []float64) {
 // them; the buffer, the histograms and the threshold are the same after
 // each chunk whichever loop took it.
 func (s *Sample) OfferRun(first int64, vals []float64) {
+	s.offerRows(first, nil, vals)
+}
+
+// OfferAt offers the rows first+at[i], P values each from vals (row
+// first+at[i] holds vals[i*P : (i+1)*P]); at must be increasing. It takes
+// them as OfferRun does (keepAtRun).
+func (s *Sample) OfferAt(first int64, at []int, vals []float64) {
+	s.offerRows(first, at, vals[:len(at)*s.p])
+}
+
+// offerRows offers the rows of a run: first+at[i], or first+i when at is
+// nil, P values each from vals.
+func (s *Sample) offerRows(first int64, at []int, vals []float64) {
 	s.consolidate()
 	n := len(vals) / s.p
 	if n == 0 {
 		return
 	}
+	rowOf := func(i int) int64 {
+		if at == nil {
+			return first + int64(i)
+		}
+		return first + int64(at[i])
+	}
 	s.seen += int64(n)
-	if len(s.keys) > 0 && first <= s.last {
+	if len(s.keys) > 0 && rowOf(0) <= s.last {
 		s.sorted = false
 	}
-	s.last = first + int64(n) - 1
+	s.last = rowOf(n - 1)
 	if s.shared != nil {
 		s.joinShared(n)
 		defer s.published(n)
@@ -249,29 +268,38 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 		if s.shared != nil {
 			limit = min(limit, s.shared.t.Load())
 		}
-		row := first + int64(i)
 		switch {
 		case !s.keyed: // every row is kept, by its number
 			m := min(n-i, cap(keys)-len(keys))
-			for t := range m {
-				keys = append(keys, uint64(row+int64(t)))
+			if at == nil {
+				for t := range m {
+					keys = append(keys, uint64(first+int64(i+t)))
+				}
+			} else {
+				for _, a := range at[i : i+m] {
+					keys = append(keys, uint64(first+int64(a)))
+				}
 			}
 			vs = append(vs, vals[i*s.p:(i+m)*s.p]...)
 			i += m
 		case s.p == 1:
 			from := len(keys)
 			var taken, m int
-			if limit < rareLimit {
-				taken, m = s.keepRareRun(row, vals[i:n], limit, keys[from:cap(keys)], vs[from:cap(keys)])
-			} else {
-				taken, m = s.keepRun(row, vals[i:n], limit, keys[from:cap(keys)], vs[from:cap(keys)])
+			room, vroom := keys[from:cap(keys)], vs[from:cap(keys)]
+			switch {
+			case at != nil:
+				taken, m = s.keepAtRun(first, at[i:n], vals[i:n], limit, room, vroom)
+			case limit < rareLimit:
+				taken, m = s.keepRareRun(rowOf(i), vals[i:n], limit, room, vroom)
+			default:
+				taken, m = s.keepRun(rowOf(i), vals[i:n], limit, room, vroom)
 			}
 			keys, vs = keys[:from+m], vs[:from+m]
 			countRun(keys[from:], hist, shift, pub)
 			i += taken
 		default:
-			for ; i < n && len(keys) < cap(keys); i, row = i+1, row+1 {
-				if k := s.key(row); k <= limit {
+			for ; i < n && len(keys) < cap(keys); i++ {
+				if k := s.key(rowOf(i)); k <= limit {
 					keys, vs = append(keys, k), append(vs, vals[i*s.p:(i+1)*s.p]...)
 					if hist != nil {
 						hist[k>>shift]++
@@ -293,7 +321,7 @@ func (s *Sample) OfferRun(first int64, vals []float64) {
 // branch per row (keepRareRun): it keeps a row in 16 or fewer, so the
 // branch is mispredicted about that often. Above it every row is written
 // without a branch (keepRun), as a kept row at random would mispredict a
-// branch too often. Own choice by measurement (BenchmarkOfferRunSettled).
+// branch too often. Own choice by measurement (BenchmarkKeepRun).
 const rareLimit = 1 << 60
 
 // keepRun writes the rows row, row+1, ... of values vals whose key is at
@@ -332,6 +360,24 @@ func (s *Sample) keepRareRun(row int64, vals []float64, limit uint64, keys []uin
 	return i, m
 }
 
+// keepAtRun is keepRun for the rows first+at[0], first+at[1], ...: every
+// row is written, without a branch, and its key computed from its number.
+func (s *Sample) keepAtRun(first int64, at []int, vals []float64, limit uint64, keys []uint64, vs []float64) (taken, kept int) {
+	vs = vs[:len(keys)]
+	vals = vals[:len(at)]
+	m, i := 0, 0
+	for ; i < len(at) && m < len(keys); i++ {
+		k := s.key(first + int64(at[i]))
+		keep := 0
+		if k <= limit {
+			keep = 1
+		}
+		keys[m], vs[m] = k, vals[i]
+		m += keep
+	}
+	return i, m
+}
+
 // countRun counts the keys of rows just kept into the histogram of the
 // buffer (when hist is not nil: no selection has run yet) and of the
 // rows to publish to a shared bound (when pub is not nil).
@@ -350,15 +396,6 @@ func countRun(keys []uint64, hist []int32, shift uint, pub []int32) {
 		for _, k := range keys {
 			pub[k>>sharedShift]++
 		}
-	}
-}
-
-// OfferAt offers the rows first+at[i], P values each from vals (row
-// first+at[i] holds vals[i*P : (i+1)*P]).
-func (s *Sample) OfferAt(first int64, at []int, vals []float64) {
-	s.seen += int64(len(at))
-	for i, a := range at {
-		s.offer(first+int64(a), vals[i*s.p:(i+1)*s.p])
 	}
 }
 
