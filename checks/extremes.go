@@ -178,23 +178,29 @@ type ExtremesAccumulator struct {
 	found   *extFinding
 }
 
-// Observe adds the batch's values: counted, and kept or summarised. The
-// values of a batch without nulls, all finite as most batches' are, go to
-// the moments or the tally as they are, after one loop that finds their
-// extent; the others are sorted value by value.
+// Observe adds the batch's values: counted, and kept or summarised. When
+// the batch's values are all finite, as most batches' are, they go to the
+// moments or the tally as they are (with nulls, gathered first), after
+// one loop that finds their extent; the values of other batches, and of
+// methods that keep rows, are sorted one by one.
 func (a *ExtremesAccumulator) Observe(b *source.Batch) error {
 	arr, err := a.check.col.in(b)
 	if err != nil {
 		return err
 	}
 	xs := numbers(arr, &a.scratch)
-	if arr.NullN() == 0 && !a.check.keepsRows() {
-		if lo, hi, ok := finiteExtent(xs); ok {
+	if !a.check.keepsRows() {
+		vals := xs
+		if arr.NullN() > 0 {
+			vals = appendValid(a.vals[:0], xs, validOf(arr))
+			a.vals = vals
+		}
+		if lo, hi, ok := finiteExtent(vals); ok {
 			a.Min, a.Max = min(a.Min, lo), max(a.Max, hi)
-			if folded, err := a.fold(xs); folded || err != nil {
+			if folded, err := a.fold(vals); folded || err != nil {
 				return err
 			}
-			a.Values.Add(slices.Clone(xs)) // kept: a part of its own
+			a.Values.Add(slices.Clone(vals)) // kept: a part of its own
 			return nil
 		}
 	}
@@ -253,6 +259,40 @@ func (a *ExtremesAccumulator) fold(xs []float64) (bool, error) {
 		return true, nil
 	}
 	return false, nil
+}
+
+// appendValid appends the values of xs that v says are valid to dst, in
+// order; eight values whose validity bits fill a byte of the bitmap are
+// appended at once.
+func appendValid(dst, xs []float64, v valid) []float64 {
+	if v.bits == nil {
+		return append(dst, xs...)
+	}
+	i := 0
+	for ; i < len(xs) && (v.offset+i)%8 != 0; i++ {
+		if v.at(i) {
+			dst = append(dst, xs[i])
+		}
+	}
+	for ; i+8 <= len(xs); i += 8 {
+		switch bits := v.bits[(v.offset+i)/8]; bits {
+		case 0xff:
+			dst = append(dst, xs[i:i+8]...)
+		case 0:
+		default:
+			for k, x := range xs[i : i+8] {
+				if bits>>k&1 != 0 {
+					dst = append(dst, x)
+				}
+			}
+		}
+	}
+	for ; i < len(xs); i++ {
+		if v.at(i) {
+			dst = append(dst, xs[i])
+		}
+	}
+	return dst
 }
 
 // finiteExtent returns the least and greatest of xs (+Inf and -Inf when

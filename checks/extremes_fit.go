@@ -543,9 +543,9 @@ type extremesLister struct {
 }
 
 // Observe lists the batch's extreme values. Values between calmLo and
-// calmHi are only binned. A batch without nulls and bins, the common case
-// of the methods that count in the first pass, takes a loop of one pair
-// of comparisons per value.
+// calmHi are only binned. Without bins, the case of the methods that
+// count in the first pass, the loop is one pair of comparisons per value,
+// whose validity is looked up only when it lies outside them.
 func (l *extremesLister) Observe(b *source.Batch) error {
 	arr, err := l.check.col.in(b)
 	if err != nil {
@@ -554,9 +554,9 @@ func (l *extremesLister) Observe(b *source.Batch) error {
 	v := validOf(arr)
 	calmLo, calmHi := l.found.calmLo, l.found.calmHi
 	xs := numbers(arr, &l.scratch)
-	if v.bits == nil && l.bins == nil {
+	if l.bins == nil {
 		for i, x := range xs {
-			if !(x >= calmLo && x <= calmHi) {
+			if !(x >= calmLo && x <= calmHi) && v.at(i) {
 				l.judge(b, i, x)
 			}
 		}

@@ -5,7 +5,10 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
+
+	"github.com/apache/arrow-go/v18/arrow/array"
 
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -92,11 +95,13 @@ func pathBatches(t *testing.T, xs []float64, ints, nulls bool) []*source.Batch {
 }
 
 // TestNumberPathsAgree: the summary and extremes rules give the same
-// result over batches with and without missing values (which take the
-// value-by-value loops and the loops of whole batches), and over the
+// result over batches with and without missing values (whose values are
+// gathered first, or read in place; batches with NaN or infinities, and
+// esd and grubbs, take the value-by-value loops), and over the
 // interleaved batches of four workers merged: the same JSON, but for the
 // streamed moments, sums and means merged in another order, which may
-// differ in their last bits.
+// differ in their last bits. TestAppendValid checks the gathering on
+// bitmaps of every alignment.
 func TestNumberPathsAgree(t *testing.T) {
 	type rule struct {
 		name  string
@@ -190,5 +195,49 @@ func TestFiniteExtent(t *testing.T) {
 		if ok != tc.ok || math.Float64bits(lo) != math.Float64bits(tc.lo) || math.Float64bits(hi) != math.Float64bits(tc.hi) {
 			t.Errorf("%s: finiteExtent(%v) = %v, %v, %v; want %v, %v, %v", tc.name, tc.xs, lo, hi, ok, tc.lo, tc.hi, tc.ok)
 		}
+	}
+}
+
+// TestAppendValid: the valid values of arrays of many lengths, sliced at
+// many offsets (so that bitmap bytes straddle the slice's start), with
+// no nulls, only nulls, and nulls here and there, in order after what
+// dst holds.
+func TestAppendValid(t *testing.T) {
+	mem := checkedMem(t)
+	rng := rand.New(rand.NewPCG(23, 24))
+	patterns := map[string]func(i int) bool{
+		"none missing":    func(int) bool { return true },
+		"all missing":     func(int) bool { return false },
+		"every third":     func(i int) bool { return i%3 != 0 },
+		"runs of 9":       func(i int) bool { return (i/9)%2 == 0 },
+		"one in 20 drawn": func(int) bool { return rng.IntN(20) != 0 },
+	}
+	for name, valid := range patterns {
+		bld := array.NewFloat64Builder(mem)
+		for i := range 90 {
+			if valid(i) {
+				bld.Append(float64(i) + 0.5)
+			} else {
+				bld.AppendNull()
+			}
+		}
+		whole := bld.NewFloat64Array()
+		bld.Release()
+		for off := range 10 {
+			for n := 0; off+n <= whole.Len(); n += 1 + n/8 {
+				arr := array.NewSlice(whole, int64(off), int64(off+n)).(*array.Float64)
+				want := []float64{-1}
+				for i := range arr.Len() {
+					if arr.IsValid(i) {
+						want = append(want, arr.Value(i))
+					}
+				}
+				if got := appendValid([]float64{-1}, arr.Float64Values(), validOf(arr)); !slices.Equal(got, want) {
+					t.Errorf("%s, rows %d-%d: %v, want %v", name, off, off+n, got, want)
+				}
+				arr.Release()
+			}
+		}
+		whole.Release()
 	}
 }

@@ -236,11 +236,20 @@ func (a *SummaryAccumulator) Observe(b *source.Batch) error {
 // them are not. Only what the statistic is computed from is updated
 // (summaryCheck.needs): each of the moments, the sum and the kept values
 // is a chain of work per value that the others need not wait for. A
-// batch without nulls and NaN, as most are, takes observeNumbers.
+// batch without NaN, as most are, takes observeNumbers: as it is when it
+// has no nulls, else with its values gathered first when they are kept
+// (the loop below, which skips nulls, would copy them too).
 func (a *SummaryAccumulator) observeFloats(xs []float64, v valid) {
-	if v.bits == nil && a.Distinct == nil && !hasNaN(xs) {
-		a.observeNumbers(xs)
-		return
+	if a.Distinct == nil && (v.bits == nil || a.check.needs().values) {
+		vals := xs
+		if v.bits != nil {
+			vals = appendValid(a.keptFloats[:0], xs, v)
+			a.keptFloats = vals
+		}
+		if !hasNaN(vals) {
+			a.observeNumbers(vals)
+			return
+		}
 	}
 	var (
 		w          welford
