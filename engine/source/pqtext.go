@@ -36,6 +36,7 @@ type textPages struct {
 	dict  *array.String // the chunk's dictionary; nil before its page
 	doffs []int32       // offsets of the dictionary's values in ddata
 	ddata []byte        // the dictionary's values end to end, then wordPad bytes
+	words []dictWord    // the values, when none is longer than 8 bytes
 
 	left    int    // levels (rows) of the current data page not read yet
 	indexed bool   // the current page holds dictionary indices, not plain values
@@ -45,6 +46,13 @@ type textPages struct {
 
 	lv    []int32 // definition levels of a part, reused
 	dense []int32 // indices of a part when o keeps no codes, reused
+}
+
+// dictWord is a dictionary value of at most 8 bytes: its bytes as a
+// little-endian word, zero-padded, and its length.
+type dictWord struct {
+	bytes uint64
+	size  int
 }
 
 // wordPad is the slack kept after the bytes of a dictionary and of a batch's
@@ -195,6 +203,9 @@ func (tp *textPages) gather(o *textOut, row, k int, lv []int32, defined int) err
 	nd := uint32(len(doffs) - 1)
 	offs := o.offs[row+1 : row+1+k]
 	end := int(o.offs[row])
+	if tp.words != nil && end+8*k <= math.MaxInt32 {
+		return gatherWords(o, end, offs, idx, lv, tp.words)
+	}
 	for i, j := range idx {
 		if lv == nil || lv[i] == 1 {
 			if uint32(j) >= nd {
@@ -219,6 +230,37 @@ func (tp *textPages) gather(o *textOut, row, k int, lv []int32, defined int) err
 	}
 	return nil
 }
+
+// gatherWords is gather for a dictionary of values of at most 8 bytes, in
+// one loop: each row's value is written as one word at the end of the
+// text so far (the next value overwrites the word's padding), room for a
+// word a row being made for each block of wordBlock rows first. end is
+// the text's length before the rows, offs their offsets to fill.
+func gatherWords(o *textOut, end int, offs, idx, lv []int32, words []dictWord) error {
+	nd := uint32(len(words))
+	for lo := 0; lo < len(idx); lo += wordBlock {
+		hi := min(lo+wordBlock, len(idx))
+		o.reserve(end + 8*(hi-lo))
+		dst := o.dbuf
+		for i := lo; i < hi; i++ {
+			if lv == nil || lv[i] == 1 {
+				j := idx[i]
+				if uint32(j) >= nd {
+					return fmt.Errorf("dictionary index %d of a dictionary of %d values", j, nd)
+				}
+				w := words[j]
+				binary.LittleEndian.PutUint64(dst[end:end+8], w.bytes)
+				end += w.size
+			}
+			offs[i] = int32(end)
+		}
+	}
+	return nil
+}
+
+// wordBlock is how many rows gatherWords makes room for at once: the text
+// buffer grows by at most 8 bytes a row of the block beyond what it holds.
+const wordBlock = 1024
 
 // copyPlain copies the plain values of k rows (lv gives the levels of an
 // optional column, nil for a required one) into o from row on. A plain
@@ -351,7 +393,19 @@ func (tp *textPages) readDict(p *file.DictionaryPage) error {
 	}
 	size := len(ddata)
 	ddata = append(ddata, make([]byte, wordPad)...)
-	tp.doffs, tp.ddata = doffs, ddata
+	tp.doffs, tp.ddata, tp.words = doffs, ddata, nil
+	short := true
+	for i := range n {
+		short = short && doffs[i+1]-doffs[i] <= 8
+	}
+	if short {
+		tp.words = make([]dictWord, n)
+		for i := range n {
+			var b [8]byte
+			copy(b[:], ddata[doffs[i]:doffs[i+1]])
+			tp.words[i] = dictWord{binary.LittleEndian.Uint64(b[:]), int(doffs[i+1] - doffs[i])}
+		}
+	}
 	data := array.NewData(arrow.BinaryTypes.String, n, []*memory.Buffer{nil,
 		memory.NewBufferBytes(arrow.Int32Traits.CastToBytes(doffs)), memory.NewBufferBytes(ddata[:size])}, nil, 0, 0)
 	tp.dict = array.NewStringData(data)
@@ -443,7 +497,10 @@ func (h *hybrid) run() error {
 
 // unpack decodes len(out) values of width bits from packed, from value
 // first on: value i occupies bits [i*width, (i+1)*width) of packed, bit b
-// being bit b%8 of byte b/8.
+// being bit b%8 of byte b/8. Whole groups of 8 values (width bytes,
+// starting on a byte) of width up to 16 are read in one or two 8-byte
+// words; other values in one word each, or byte by byte at the end of
+// packed.
 func unpack(out []int32, packed []byte, first int, width uint) error {
 	if width == 0 {
 		clear(out)
@@ -454,20 +511,54 @@ func unpack(out []int32, packed []byte, first int, width uint) error {
 		return errors.New("a bit-packed run ends before its values")
 	}
 	mask := uint64(1)<<width - 1
-	bit := first * int(width)
+	w := int(width)
+	bit := first * w
 	i := 0
-	// Whole 8-byte loads while they stay within packed.
-	for ; i < len(out) && bit/8+8 <= len(packed); i++ {
-		out[i] = int32(binary.LittleEndian.Uint64(packed[bit/8:]) >> (bit % 8) & mask)
-		bit += int(width)
+	one := func() {
+		if bit/8+8 <= len(packed) {
+			out[i] = int32(binary.LittleEndian.Uint64(packed[bit/8:]) >> (bit % 8) & mask)
+		} else {
+			var v uint64
+			for b, j := bit/8, 0; b < len(packed) && j < 8; b, j = b+1, j+1 {
+				v |= uint64(packed[b]) << (8 * j)
+			}
+			out[i] = int32(v >> (bit % 8) & mask)
+		}
+		bit += w
+	}
+	for ; i < len(out) && (first+i)%8 != 0; i++ {
+		one()
+	}
+	switch {
+	case w <= 8:
+		for ; i+8 <= len(out) && bit/8+8 <= len(packed); i += 8 {
+			v := binary.LittleEndian.Uint64(packed[bit/8:])
+			o := out[i : i+8 : i+8]
+			for k := range o {
+				o[k] = int32(v & mask)
+				v >>= width
+			}
+			bit += 8 * w
+		}
+	case w <= 16:
+		// Values 4 to 7 start at bit 4w of the group: byte w/2, bit 4 when
+		// w is odd; 4w+4 bits fit a word.
+		half, shift := 4*w/8, uint(4*w%8)
+		for ; i+8 <= len(out) && bit/8+half+8 <= len(packed); i += 8 {
+			lo := binary.LittleEndian.Uint64(packed[bit/8:])
+			hi := binary.LittleEndian.Uint64(packed[bit/8+half:]) >> shift
+			o := out[i : i+8 : i+8]
+			for k := range 4 {
+				o[k] = int32(lo & mask)
+				o[k+4] = int32(hi & mask)
+				lo >>= width
+				hi >>= width
+			}
+			bit += 8 * w
+		}
 	}
 	for ; i < len(out); i++ {
-		var w uint64
-		for b, j := bit/8, 0; b < len(packed) && j < 8; b, j = b+1, j+1 {
-			w |= uint64(packed[b]) << (8 * j)
-		}
-		out[i] = int32(w >> (bit % 8) & mask)
-		bit += int(width)
+		one()
 	}
 	return nil
 }

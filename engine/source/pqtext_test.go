@@ -2,6 +2,7 @@ package source
 
 import (
 	"encoding/binary"
+	"math"
 	"slices"
 	"testing"
 )
@@ -69,6 +70,9 @@ func TestHybrid(t *testing.T) {
 		{"packed, width 1", 1, []hybridRun{{packed: seq(16, 1, 1)}}},
 		{"mixed, width 3", 3, []hybridRun{{packed: seq(8, 3, 3)}, {repeat: 300, value: 7}, {packed: seq(24, 5, 3)}}},
 		{"mixed, width 14", 14, []hybridRun{{repeat: 2, value: 10000}, {packed: seq(64, 977, 14)}, {repeat: 9, value: 16383}}},
+		{"packed, width 11 (odd: groups split inside a byte)", 11, []hybridRun{{packed: seq(40, 37, 11)}, {repeat: 3, value: 2047}, {packed: seq(16, 5, 11)}}},
+		{"packed, width 16", 16, []hybridRun{{packed: seq(32, 4099, 16)}}},
+		{"packed, width 7", 7, []hybridRun{{packed: seq(48, 29, 7)}}},
 		{"width 0", 0, []hybridRun{{repeat: 4}, {packed: make([]uint32, 8)}}},
 		{"width 32", 32, []hybridRun{{packed: seq(8, 0x7fffffff, 32)}, {repeat: 3, value: 1 << 31}}},
 		{"empty runs", 5, []hybridRun{{repeat: 0, value: 3}, {packed: []uint32{}}, {repeat: 2, value: 31}}},
@@ -132,22 +136,76 @@ func TestHybridDamaged(t *testing.T) {
 	}
 }
 
-// FuzzHybrid decodes arbitrary bytes at every width: never a panic, and
-// every value decoded fits the width.
-func FuzzHybrid(f *testing.F) {
-	f.Add(encodeHybrid([]hybridRun{{packed: seq(8, 3, 3)}, {repeat: 300, value: 7}}, 3), uint8(3), uint16(50))
-	f.Add(encodeHybrid([]hybridRun{{repeat: 2, value: 10000}, {packed: seq(64, 977, 14)}}, 14), uint8(14), uint16(66))
-	f.Fuzz(func(t *testing.T, data []byte, width uint8, n uint16) {
-		w := uint(width % 33)
-		h := hybrid{buf: data, width: w}
-		out := make([]int32, n)
-		if err := h.read(out); err != nil {
-			return
+// slowHybrid decodes n values of the hybrid encoding one bit at a time,
+// as the reference of FuzzHybrid; ok is false when the data end first,
+// or hold a repeated value wider than width, or a run longer than hybrid
+// takes (2^31-1 values repeated, 2^31-8 packed).
+func slowHybrid(data []byte, width, n int) (vals []int32, ok bool) {
+	for len(vals) < n {
+		hdr, k := binary.Uvarint(data)
+		if k <= 0 || hdr&1 == 0 && hdr>>1 > math.MaxInt32 || hdr&1 == 1 && hdr>>1 > math.MaxInt32/8 {
+			return nil, false
 		}
-		for i, v := range out {
-			if w < 32 && uint32(v)>>w != 0 {
-				t.Fatalf("value %d is %d, wider than %d bits", i, v, w)
+		data = data[k:]
+		if hdr&1 == 0 {
+			nb := (width + 7) / 8
+			if len(data) < nb {
+				return nil, false
 			}
+			var v uint64
+			for i := range nb {
+				v |= uint64(data[i]) << (8 * i)
+			}
+			if width < 32 && v>>width != 0 {
+				return nil, false
+			}
+			data = data[nb:]
+			for range min(int(hdr>>1), n-len(vals)) {
+				vals = append(vals, int32(v))
+			}
+			continue
+		}
+		count := int(hdr>>1) * 8
+		for i := 0; i < count && len(vals) < n; i++ {
+			var v uint32
+			for b := range width {
+				bit := i*width + b
+				if bit/8 >= len(data) {
+					return nil, false
+				}
+				v |= uint32(data[bit/8]>>(bit%8)&1) << b
+			}
+			vals = append(vals, int32(v))
+		}
+		data = data[min(len(data), int(hdr>>1)*width):]
+	}
+	return vals, true
+}
+
+// FuzzHybrid decodes arbitrary bytes at every width, in pieces of a
+// fuzzed size, and compares the values with slowHybrid's: never a panic,
+// an error exactly when slowHybrid fails, the same values otherwise.
+func FuzzHybrid(f *testing.F) {
+	f.Add(encodeHybrid([]hybridRun{{packed: seq(8, 3, 3)}, {repeat: 300, value: 7}}, 3), uint8(3), uint16(50), uint8(7))
+	f.Add(encodeHybrid([]hybridRun{{repeat: 2, value: 10000}, {packed: seq(64, 977, 14)}}, 14), uint8(14), uint16(66), uint8(5))
+	f.Add(encodeHybrid([]hybridRun{{packed: seq(40, 37, 11)}}, 11), uint8(11), uint16(40), uint8(3))
+	f.Fuzz(func(t *testing.T, data []byte, width uint8, n uint16, piece uint8) {
+		w := int(width % 33)
+		want, ok := slowHybrid(data, w, int(n))
+		h := hybrid{buf: data, width: uint(w)}
+		got := make([]int32, 0, n)
+		var err error
+		for len(got) < int(n) && err == nil {
+			out := make([]int32, min(int(piece)+1, int(n)-len(got)))
+			if err = h.read(out); err == nil {
+				got = append(got, out...)
+			}
+		}
+		if (err == nil) != ok {
+			t.Fatalf("error %v; the reference decodes: %v", err, ok)
+		}
+		if ok && !slices.Equal(got, want) {
+			t.Fatalf("got %v\nwant %v", got, want)
 		}
 	})
 }
