@@ -385,7 +385,8 @@ func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batc
 	for _, x := range xs[:from] {
 		finite = append(finite, float64(x))
 	}
-	all := true
+	all, within := true, a.check.within
+	least, most := a.Min, a.Max
 	for i := from; i < len(xs); i++ {
 		if !v.at(i) {
 			if all { // the first value left out: the places so far are 0..i-1
@@ -394,24 +395,35 @@ func observeValues[T int64 | float64](a *DistributionAccumulator, b *source.Batc
 			continue
 		}
 		a.N++
+		// A value inside the intersection of the supports is inside
+		// each, and finite.
 		f := float64(xs[i])
-		for k, in := range a.check.inside {
-			if !in.Contains(f) {
-				a.Outside[k].add(f, b.Row(i))
+		if !within.Contains(f) {
+			for k, in := range a.check.inside {
+				if !in.Contains(f) {
+					a.Outside[k].add(f, b.Row(i))
+				}
+			}
+			if math.IsNaN(f) || math.IsInf(f, 0) {
+				if all {
+					at, all = appendPlaces(at, i), false
+				}
+				continue
 			}
 		}
-		if math.IsNaN(f) || math.IsInf(f, 0) {
-			if all {
-				at, all = appendPlaces(at, i), false
-			}
-			continue
+		// min and max give −0 below +0; the branches are rarely taken.
+		if f <= least {
+			least = min(least, f)
 		}
-		a.Min, a.Max = min(a.Min, f), max(a.Max, f)
+		if f >= most {
+			most = max(most, f)
+		}
 		finite = append(finite, f)
 		if !all {
 			at = append(at, i)
 		}
 	}
+	a.Min, a.Max = least, most
 	a.vals, a.at = finite, at
 	return finite, all
 }

@@ -131,6 +131,8 @@ func TestDistributionObserveInPlace(t *testing.T) {
 		{"-Inf last", []string{"exponential"}, false, with(pos, 39, distCell{x: -inf})},
 		{"signed zeros", []string{"normal", "exponential"}, false,
 			with(with(with(pos, 3, distCell{x: 0}), 11, distCell{x: negZero}), 30, distCell{x: 0})},
+		{"signed zeros and a null", []string{"normal", "exponential"}, false,
+			with(with(with(pos, 3, distCell{x: 0}), 11, distCell{x: negZero}), 5, distCell{null: true})},
 		{"fraction, counts", []string{"poisson"}, false, with(counts, 21, distCell{x: 2.5})},
 		{"counts inside", []string{"poisson", "geometric"}, false, counts},
 		{"beta at 1", []string{"beta"}, false,
