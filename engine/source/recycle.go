@@ -26,7 +26,8 @@ import (
 // columns never come from a recycler (checks keep strings, and a Go map
 // stores the key of every assignment, not only of the first). Built with
 // the tag assay_poison, freed buffers are overwritten with poisonByte and
-// never reused, so that tests find any reader of released memory.
+// never reused, and new ones are filled with fillByte, so that tests find
+// any reader of released memory and any that counts on zeroed memory.
 type recycler struct {
 	parent memory.Allocator
 
@@ -46,8 +47,8 @@ const (
 	// numClasses counts the class of sizes up to 64 bytes and four in each
 	// power of two from 64 up to 1<<maxClassBits.
 	numClasses = 1 + 4*(maxClassBits-6)
-	// poisonByte fills freed buffers in poison mode.
-	poisonByte = 0xA5
+	// poisonByte fills freed buffers in poison mode, fillByte new ones.
+	poisonByte, fillByte = 0xA5, 0x5A
 )
 
 // newRecycler returns a recycler over parent.
@@ -70,8 +71,16 @@ func sizeClass(n int) (class, size int) {
 }
 
 // Allocate returns size bytes, a freed buffer of the class when there is
-// one.
+// one. In poison mode the bytes are fillByte, never zero as a fresh
+// buffer's are, so that tests find readers that count on zeroes.
 func (r *recycler) Allocate(size int) []byte {
+	if poisonFreed {
+		b := r.parent.Allocate(size)
+		for i := range b {
+			b[i] = fillByte
+		}
+		return b
+	}
 	class, cs := sizeClass(size)
 	if class >= numClasses {
 		return r.parent.Allocate(size)
