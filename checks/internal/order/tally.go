@@ -8,9 +8,9 @@ import (
 )
 
 // TallyLimit is the most distinct values a Tally counts before it keeps
-// the values themselves. Counting them takes at most 2.25 MiB (a table of
-// 2^17 slots of 16 bytes, at most half full, and a grid of 2^16 counts of
-// 4 bytes);
+// the values themselves. Counting them takes about 2.1 MiB at most (a
+// table of 2^17 slots of 16 bytes, at most half full, and a grid of 2^16
+// counts of 2 bytes, with the few that overflow);
 // beyond it a column is taken to hold values of fine resolution, for
 // which counting saves little.
 const TallyLimit = 1 << 16
@@ -63,18 +63,21 @@ type slot struct {
 // theirs around their middle, from gridMin to gridMax counts, and centred
 // on their median when gridMax counts do not reach that far (values in
 // far apart clusters). Counting
-// there takes a multiplication, a division and one count in 256 KiB at
+// there takes a multiplication, a division and one count in 128 KiB at
 // most, and values close together, as most of a column's are, share
 // cache lines; the table would spend a cache miss on most values. The
-// counts are 32-bit, half the memory of the table's (fewer of them fall
-// out of the caches): a tally keeps its grid while it holds at most
-// math.MaxUint32 values, which bound every count, and moves the grid's
-// counts into the table before it holds more (dropGrid).
+// counts keep their low 16 bits (a quarter of the memory of 64-bit counts,
+// so that fewer of them fall out of the caches; ten million values of
+// 3 decimals in four lanes put a few hundred in a count) and, in wraps,
+// how many times a count went past 2^16 − 1, for the few that did.
 type grid struct {
 	tried  bool    // the first part has been seen
 	scale  float64 // a power of ten, at most 10^gridDigits
 	lo     int64
-	counts []uint32 // nil: no grid
+	counts []uint16 // nil: no grid; the low 16 bits of each count
+	// wraps holds, for the counts that went past 2^16 − 1, how many
+	// times they did; nil while none has.
+	wraps map[int]int64
 	// lof and size are lo and len(counts) as float64.
 	lof, size float64
 }
@@ -113,7 +116,7 @@ func newGrid(xs []float64) grid {
 		if size == gridMax && 4*(hi-lo+1) > gridMax {
 			mid = ks[len(ks)/2]
 		}
-		g := grid{tried: true, scale: scale, lo: mid - size/2, counts: make([]uint32, size)}
+		g := grid{tried: true, scale: scale, lo: mid - size/2, counts: make([]uint16, size)}
 		g.lof, g.size = float64(g.lo), float64(size)
 		return g
 	}
@@ -130,6 +133,26 @@ func (g *grid) index(x float64) (int, bool) {
 	}
 	j := int(f)
 	return j, math.Float64bits(g.value(j)) == math.Float64bits(x)
+}
+
+// count is the count of j.
+func (g *grid) count(j int) int64 {
+	c := int64(g.counts[j])
+	if g.wraps != nil {
+		c += g.wraps[j] << 16
+	}
+	return c
+}
+
+// set makes c the count of j.
+func (g *grid) set(j int, c int64) {
+	g.counts[j] = uint16(c)
+	if w := c >> 16; w != g.wraps[j] {
+		if g.wraps == nil {
+			g.wraps = map[int]int64{}
+		}
+		g.wraps[j] = w
+	}
 }
 
 // value is the value counted by counts[j].
@@ -149,9 +172,6 @@ func (t *Tally[T]) Add(part []T) {
 	}
 	if !t.grid.tried && len(part) > 0 {
 		t.startGrid(part)
-	}
-	if t.n > math.MaxUint32 {
-		t.dropGrid()
 	}
 	if t.grid.counts != nil {
 		if part = t.addGridded(part); t.spilled {
@@ -190,11 +210,15 @@ func (t *Tally[T]) addGridded(part []T) []T {
 		if f := math.RoundToEven(float64(x)*scale) - lof; f >= 0 && f < size {
 			j := int(f)
 			if math.Float64bits(float64(lo+int64(j))/scale) == math.Float64bits(float64(x)) {
-				c := counts[j]
-				if c == 0 {
+				c := counts[j] + 1
+				counts[j] = c
+				switch {
+				case c > 1:
+				case c == 1 && t.grid.wraps == nil: // a new value, no count having wrapped
 					fresh++
+				default: // the count was 0 or a multiple of 2^16, or it wrapped
+					fresh += t.grid.carry(j, c)
 				}
-				counts[j] = c + 1
 				continue
 			}
 		}
@@ -209,19 +233,18 @@ func (t *Tally[T]) addGridded(part []T) []T {
 	return miss
 }
 
-// dropGrid moves the grid's counts into the table, which then counts
-// every value: the grid's 32-bit counts could not hold more than
-// math.MaxUint32 values. The table has room, as the number of distinct
-// values does not change.
-func (t *Tally[T]) dropGrid() {
-	g := t.grid
-	t.grid.counts = nil
-	for j, c := range g.counts {
-		if c != 0 {
-			t.distinct-- // count adds it back
-			t.count(bitsOf(T(g.value(j))), int64(c))
-		}
+// carry completes the count of j, whose low 16 bits an addition by one
+// has just made c, 0 or 1: it records a wrap past 2^16 − 1, and returns
+// 1 when the value is new to the grid.
+func (g *grid) carry(j int, c uint16) int {
+	if c == 0 {
+		g.set(j, g.count(j)+1<<16)
+		return 0
 	}
+	if g.wraps[j] == 0 {
+		return 1
+	}
+	return 0
 }
 
 // addHashed adds the values of part to the table.
@@ -304,13 +327,14 @@ func (t *Tally[T]) addEach(part []T) {
 func (t *Tally[T]) countValue(x T, c int64) bool {
 	if t.grid.counts != nil {
 		if j, ok := t.grid.index(float64(x)); ok {
-			if t.grid.counts[j] == 0 {
+			had := t.grid.count(j)
+			if had == 0 {
 				if t.distinct >= TallyLimit {
 					return false
 				}
 				t.distinct++
 			}
-			t.grid.counts[j] += uint32(c) // it fits: Merge drops a grid that could not hold the sum
+			t.grid.set(j, had+c)
 			return true
 		}
 	}
@@ -396,7 +420,7 @@ func (t *Tally[T]) spill() {
 	}
 	t.spilled = true
 	t.slots, t.used, t.distinct = nil, 0, 0
-	t.grid.counts, t.miss = nil, nil
+	t.grid.counts, t.grid.wraps, t.miss = nil, nil, nil
 }
 
 // Merge adds o's values to t and leaves o empty. When o's counts do not
@@ -415,9 +439,6 @@ func (t *Tally[T]) Merge(o *Tally[T]) {
 		t.raw.Splice(&o.raw)
 		t.n += o.n
 	default:
-		if t.n+o.n > math.MaxUint32 {
-			t.dropGrid()
-		}
 		var rest []T // o's values t had no room for
 		for x, c := range o.counted() {
 			if rest == nil && t.countValue(x, c) {
@@ -460,8 +481,8 @@ func (t *Tally[T]) All() iter.Seq2[T, int64] {
 // with its count.
 func (t *Tally[T]) counted() iter.Seq2[T, int64] {
 	return func(yield func(T, int64) bool) {
-		for j, c := range t.grid.counts {
-			if c != 0 && !yield(T(t.grid.value(j)), int64(c)) {
+		for j := range t.grid.counts {
+			if c := t.grid.count(j); c != 0 && !yield(T(t.grid.value(j)), c) {
 				return
 			}
 		}

@@ -366,69 +366,81 @@ func TestTallyGrid(t *testing.T) {
 	}
 }
 
-// TestTallyPastUint32: the grid's 32-bit counts give way to the table
-// before a tally holds more than math.MaxUint32 values, by adding or by
-// merging, and no count wraps. The counts of such tallies are set by
-// hand, with their numbers of values, as four billion values would take
-// too long to add.
-func TestTallyPastUint32(t *testing.T) {
-	const big = math.MaxUint32 - 4 // with the 4 other values, one short of the limit
-	// planted returns a tally of 0.25 (on the grid) counted big times,
-	// 7.5 twice and -0 (in the table) once.
-	planted := func(t *testing.T) *Tally[float64] {
-		t.Helper()
+// TestTallyWraps: counts of the grid past 2^16 − 1, by adding and by
+// merging, keep every value, and a value seen again after its count
+// wrapped is not counted as a new one.
+func TestTallyWraps(t *testing.T) {
+	const wrap = 1 << 16
+	negZero := math.Copysign(0, -1)
+	// start returns a tally of 7.5 twice, 0.25 n times, and -0 (in the
+	// table) once, 0.25 added in parts of 10,000.
+	start := func(n int) *Tally[float64] {
 		var ta Tally[float64]
 		ta.Add([]float64{0.25, 7.5, 7.5}) // the first part makes the grid
-		ta.Add([]float64{math.Copysign(0, -1)})
-		j, ok := ta.grid.index(0.25)
-		if !ok || ta.grid.counts[j] != 1 {
-			t.Fatalf("0.25 is not counted once in the grid (%v, %d)", ok, ta.grid.counts[j])
+		ta.Add([]float64{negZero})
+		quarters := slices.Repeat([]float64{0.25}, n-1)
+		for i := 0; i < len(quarters); i += 10_000 {
+			ta.Add(quarters[i:min(len(quarters), i+10_000)])
 		}
-		ta.grid.counts[j] = big
-		ta.n += big - 1
 		return &ta
 	}
 	cases := []struct {
-		name string
-		more func(t *testing.T, ta *Tally[float64])
-		want map[float64]int64 // by value; -0 is checked apart
+		name  string
+		tally func() *Tally[float64]
+		want  map[float64]int64 // by value; -0 is counted once apart
 	}{
-		{"adding to the limit keeps the grid", func(t *testing.T, ta *Tally[float64]) {
-			ta.Add([]float64{0.25})
-		}, map[float64]int64{0.25: big + 1, 7.5: 2}},
-		{"adding past the limit", func(t *testing.T, ta *Tally[float64]) {
-			ta.Add([]float64{0.25, 0.25, 0.25, 1.5, 0.25, 0.25, 0.25})
-		}, map[float64]int64{0.25: big + 6, 7.5: 2, 1.5: 1}},
-		{"merging past the limit", func(t *testing.T, ta *Tally[float64]) {
-			o := planted(t)
+		{"one short of a wrap", func() *Tally[float64] { return start(wrap - 1) }, map[float64]int64{0.25: wrap - 1, 7.5: 2}},
+		{"a wrap", func() *Tally[float64] { return start(wrap) }, map[float64]int64{0.25: wrap, 7.5: 2}},
+		{"after a wrap", func() *Tally[float64] {
+			ta := start(wrap)
+			ta.Add([]float64{0.25, 1.5})
+			return ta
+		}, map[float64]int64{0.25: wrap + 1, 7.5: 2, 1.5: 1}},
+		{"wraps within a part", func() *Tally[float64] {
+			ta := start(10)
+			ta.Add(slices.Repeat([]float64{0.25, 7.5}, 3*wrap))
+			return ta
+		}, map[float64]int64{0.25: 3*wrap + 10, 7.5: 3*wrap + 2}},
+		{"merged past a wrap", func() *Tally[float64] {
+			ta, o := start(wrap-3), start(wrap+5)
 			o.Add([]float64{1.5})
-			ta.Add([]float64{1.5})
 			ta.Merge(o)
-		}, map[float64]int64{0.25: 2 * big, 7.5: 4, 1.5: 2}},
+			return ta
+		}, map[float64]int64{0.25: 2*wrap + 2, 7.5: 4, 1.5: 1}},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
-			ta := planted(t)
-			tc.more(t, ta)
+			ta := tc.tally()
 			got := map[float64]int64{}
-			var negZero, n int64
+			var negZeros, n int64
 			for x, c := range ta.All() {
-				if math.Signbit(x) && x == 0 {
-					negZero += c
+				if x == 0 && math.Signbit(x) {
+					negZeros += c
 				} else {
 					got[x] += c
 				}
 				n += c
 			}
-			if !maps.Equal(got, tc.want) || negZero != (n-sum(tc.want)) || n != ta.Len() {
-				t.Errorf("counts %v and -0 %d of %d values, want %v and -0 the rest", got, negZero, ta.Len(), tc.want)
+			want := sum(tc.want) + negZeros
+			if !maps.Equal(got, tc.want) || negZeros == 0 || n != ta.Len() || n != want {
+				t.Errorf("counts %v and -0 %d times, %d values in all; want %v, -0 and %d values", got, negZeros, ta.Len(), tc.want,
+					want)
 			}
-			if hasGrid := ta.grid.counts != nil; hasGrid != (ta.Len() <= math.MaxUint32) {
-				t.Errorf("with %d values the tally has a grid: %v", ta.Len(), hasGrid)
+			if ta.distinct != len(tc.want)+1 {
+				t.Errorf("%d distinct values, want %d", ta.distinct, len(tc.want)+1)
 			}
-			// 0.25 holds every rank but the last few: -0 below it, the rest above.
-			if q := ta.Quantiles7(0, 0.5, 1); q[0] != 0 || q[1] != 0.25 || q[2] != 7.5 {
-				t.Errorf("min, median, max %v, want 0, 0.25, 7.5", q)
+			ps := []float64{0, 0.5, 1}
+			sorted := []float64{negZero}
+			for _, x := range slices.Sorted(maps.Keys(tc.want)) {
+				sorted = append(sorted, slices.Repeat([]float64{x}, int(tc.want[x]))...)
+			}
+			if negZeros > 1 {
+				sorted = append(slices.Repeat([]float64{negZero}, int(negZeros-1)), sorted...)
+			}
+			for k, q := range ta.Quantiles7(ps...) {
+				if w := Quantile7(sorted, ps[k]); math.Float64bits(q) != math.Float64bits(w) {
+					t.Errorf("p=%v: %v, want %v", ps[k], q, w)
+				}
 			}
 		})
 	}
