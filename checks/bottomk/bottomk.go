@@ -333,16 +333,22 @@ func (s *Sample) keepRun(row int64, vals []float64, limit uint64, keys []uint64,
 	vs = vs[:len(keys)]
 	z, m, i := s.base+uint64(row)*gamma, 0, 0
 	for ; i < len(vals) && m < len(keys); i++ {
-		k := mix(z)
+		m = put(keys, vs, m, mix(z), vals[i], limit)
 		z += gamma
-		keep := 0
-		if k <= limit {
-			keep = 1
-		}
-		keys[m], vs[m] = k, vals[i]
-		m += keep
 	}
 	return i, m
+}
+
+// put writes the row of key k and value v at place m, without a branch,
+// and returns the next place: m+1 when k is at most limit (the row is
+// kept), else m (the next row overwrites it).
+func put(keys []uint64, vs []float64, m int, k uint64, v float64, limit uint64) int {
+	keep := 0
+	if k <= limit {
+		keep = 1
+	}
+	keys[m], vs[m] = k, v
+	return m + keep
 }
 
 // keepRareRun is keepRun with a branch per row, for a limit that keeps
@@ -367,19 +373,13 @@ func (s *Sample) keepAtRun(first int64, at []int, vals []float64, limit uint64, 
 	vals = vals[:len(at)]
 	m, i := 0, 0
 	for ; i < len(at) && m < len(keys); i++ {
-		k := s.key(first + int64(at[i]))
-		keep := 0
-		if k <= limit {
-			keep = 1
-		}
-		keys[m], vs[m] = k, vals[i]
-		m += keep
+		m = put(keys, vs, m, s.key(first+int64(at[i])), vals[i], limit)
 	}
 	return i, m
 }
 
 // countRun counts the keys of rows just kept into the histogram of the
-// buffer (when hist is not nil: no selection has run yet) and of the
+// buffer (when hist is not nil: once a selection has run) and of the
 // rows to publish to a shared bound (when pub is not nil).
 func countRun(keys []uint64, hist []int32, shift uint, pub []int32) {
 	switch {
