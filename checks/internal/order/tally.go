@@ -529,18 +529,32 @@ func (t *Tally[T]) Quantiles7(ps ...float64) []float64 {
 		x T
 		c int64
 	}
+	// The grid's values come in ascending order (they grow with their
+	// count's place); only the table's are sorted, then merged with them.
 	entries := make([]entry, 0, t.distinct)
-	for x, c := range t.counted() {
-		entries = append(entries, entry{x, c})
+	for j := range t.grid.counts {
+		if c := t.grid.count(j); c != 0 {
+			entries = append(entries, entry{T(t.grid.value(j)), c})
+		}
+	}
+	gridded := len(entries)
+	for _, s := range t.slots {
+		if s.count != 0 {
+			entries = append(entries, entry{valueOf[T](s.key), s.count})
+		}
 	}
 	// -0 and 0, counted apart, sort -0 first, so that which of them a rank
 	// holds does not depend on where the table put them.
-	slices.SortFunc(entries, func(a, b entry) int {
+	ascending := func(a, b entry) int {
 		if c := cmp.Compare(a.x, b.x); c != 0 {
 			return c
 		}
 		return cmp.Compare(bitsOf(b.x), bitsOf(a.x))
-	})
+	}
+	slices.SortFunc(entries[gridded:], ascending)
+	if gridded > 0 && gridded < len(entries) {
+		entries = merged(entries[:gridded], entries[gridded:], ascending)
+	}
 	// at returns the value of 0-based rank r.
 	at := func(r int64) T {
 		i, _ := slices.BinarySearchFunc(entries, r, func(e entry, r int64) int {
@@ -573,6 +587,20 @@ func (t *Tally[T]) Quantiles7(ps ...float64) []float64 {
 		out[k] = (1-g)*float64(lo) + g*float64(hi)
 	}
 	return out
+}
+
+// merged returns the elements of a and b, each sorted by cmp, in one
+// slice sorted by cmp.
+func merged[E any](a, b []E, cmp func(E, E) int) []E {
+	out := make([]E, 0, len(a)+len(b))
+	for len(a) > 0 && len(b) > 0 {
+		if cmp(b[0], a[0]) < 0 {
+			out, b = append(out, b[0]), b[1:]
+		} else {
+			out, a = append(out, a[0]), a[1:]
+		}
+	}
+	return append(append(out, a...), b...)
 }
 
 // bitsOf and valueOf convert a value to the bits the table keys it by and
