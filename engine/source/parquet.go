@@ -21,7 +21,10 @@ const parquetReadBuffer = 1 << 20
 // whole: a Parquet file ends with its footer, the footer's length and
 // "PAR1". Column chunks are read through a buffer of parquetReadBuffer
 // bytes rather than whole, so that the memory of a row group being read
-// does not grow with its length.
+// does not grow with its length. The pages' buffers come from the Set's
+// recycler: a column chunk's reader frees them when it closes, and the
+// next row group's reuse them (no array points into them: values are
+// copied out of pages).
 func (s *Set) openParquet(in *input, f *os.File, size int64) (*file.Reader, error) {
 	tail := make([]byte, 8) // footer length, "PAR1"
 	if size >= 12 {
@@ -32,7 +35,7 @@ func (s *Set) openParquet(in *input, f *os.File, size int64) (*file.Reader, erro
 	if !bytes.Equal(tail[4:], parquetMagic) || int64(binary.LittleEndian.Uint32(tail))+12 > size {
 		return nil, errorf(in.name, "the Parquet file is truncated: it does not end with its footer and \"PAR1\" (it was cut short; copy it again)")
 	}
-	props := parquet.NewReaderProperties(s.opts.Allocator)
+	props := parquet.NewReaderProperties(s.pool)
 	props.BufferedStreamEnabled, props.BufferSize = true, parquetReadBuffer
 	r, err := guard(func() (*file.Reader, error) { return file.NewParquetReader(f, file.WithReadProps(props)) })
 	if err != nil {
