@@ -19,8 +19,8 @@ import (
 // chunk of a flat column itself, instead of through arrow-go's column
 // chunk reader, so that a page of dictionary indices (RLE_DICTIONARY or
 // PLAIN_DICTIONARY) yields the indices: the texts of its rows are gathered
-// from the dictionary in two loops (their offsets, then their bytes, copied
-// a word at a time), and the indices become the batch's codes. Pages the
+// from the dictionary (see gather) and the indices become the batch's
+// codes. Pages the
 // writer fell back to PLAIN for are copied value by value. The layouts
 // read are those of the Parquet format specification (Apache Parquet,
 // parquet-format, Encodings.md: "Plain", "Dictionary Encoding", "Run
@@ -171,11 +171,12 @@ func grow(s *[]int32, n int) []int32 {
 
 // gather reads the dictionary indices of k rows, defined of them defined
 // (lv gives the levels of an optional column, nil for a required one), and
-// writes the rows' texts into o from row on: first every offset, in one
-// loop over the indices, then the bytes, each value copied as whole 8-byte
-// words (the copies of later values overwrite what a word wrote past a
-// value's end, and the buffers keep wordPad bytes of slack). Null rows get
-// index 0.
+// writes the rows' texts into o from row on. When no dictionary value is
+// longer than 8 bytes, gatherWords does it in one loop; else first every
+// offset, in one loop over the indices, then the bytes, each value copied
+// as whole 8-byte words (the copies of later values overwrite what a word
+// wrote past a value's end, and the buffers keep wordPad bytes of slack).
+// Null rows get index 0.
 func (tp *textPages) gather(o *textOut, row, k int, lv []int32, defined int) error {
 	var idx []int32
 	if o.codes != nil {
