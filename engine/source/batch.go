@@ -42,8 +42,12 @@ type Batch struct {
 	// dictionary-encoded Parquet column chunk. Codes[k].Indices() are int32
 	// places in Codes[k].Dictionary(), an *array.String, and the codes'
 	// nulls are Record.Column(k)'s, so a check may judge each distinct
-	// value once instead of once a row. Nil, or nil at k, when there are
-	// none; Record always holds the column itself.
+	// value once instead of once a row. Every batch of one column chunk
+	// shares the dictionary's *arrow.ArrayData (Codes[k].Data().Dictionary();
+	// Dictionary() makes a new array each call), so a check may keep
+	// per-entry verdicts across batches keyed on it, retaining it while it
+	// does. Nil, or nil at k, when there are none; Record always holds the
+	// column itself.
 	Codes []*array.Dictionary
 	// Offset is how many bytes of the batch's file the reader had consumed
 	// when it made the batch, as stored (compressed bytes for gzip), for
