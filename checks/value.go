@@ -160,7 +160,7 @@ func (c *codedVerdicts) scan(str *array.String, codes *array.Int32, dict arrow.A
 		c.left, c.breaking = n, 0
 	}
 	v, state, score := validOf(str), c.state, c.score
-	if c.left == 0 && inRange(codes.Int32Values(), len(state)) {
+	if c.left == 0 && codesBelow(codes.Int32Values(), len(state)) {
 		if c.breaking == 0 {
 			return
 		}
@@ -195,8 +195,8 @@ func (c *codedVerdicts) scan(str *array.String, codes *array.Int32, dict arrow.A
 	}
 }
 
-// inRange reports whether every code is at least 0 and below n.
-func inRange(codes []int32, n int) bool {
+// codesBelow reports whether every code is at least 0 and below n, the dictionary's length.
+func codesBelow(codes []int32, n int) bool {
 	var hi uint32
 	for _, p := range codes {
 		hi = max(hi, uint32(p))

@@ -33,7 +33,7 @@ func findLifts(root *plan, cols []column, measured bool) ([]lift, []bool) {
 		readsOf(p, read, &impure)
 		if len(read) == 1 && !impure && !(top && measured) {
 			for k := range read {
-				if c := cols[k]; c.kind == kindString && c.dtype.ID() == arrow.STRING && p.kind != kindString && p.kind != kindNone {
+				if c := cols[k]; c.kind == kindString && c.typ.ID() == arrow.STRING && p.kind != kindString && p.kind != kindNone {
 					lifts = append(lifts, lift{node: p, col: k})
 					return
 				}

@@ -83,9 +83,9 @@ type Program struct {
 
 // column is a column the expression reads.
 type column struct {
-	name  string
-	kind  kind
-	dtype arrow.DataType
+	name string
+	kind kind
+	typ  arrow.DataType
 }
 
 // Columns lists the columns the expression reads, in order of first

@@ -105,8 +105,8 @@ func (e *Evaluator) eval(rec arrow.RecordBatch, codes []*array.Dictionary, out [
 			return fmt.Errorf("column %q is not in the data", c.name)
 		}
 		arr := rec.Column(idx)
-		if !arrow.TypeEqual(arr.DataType(), c.dtype) {
-			return fmt.Errorf("column %q is %s in the data, the expression was compiled for %s", c.name, arr.DataType(), c.dtype)
+		if !arrow.TypeEqual(arr.DataType(), c.typ) {
+			return fmt.Errorf("column %q is %s in the data, the expression was compiled for %s", c.name, arr.DataType(), c.typ)
 		}
 		e.arrs[k] = arr
 	}

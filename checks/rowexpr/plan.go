@@ -257,7 +257,7 @@ func (s *scan) add(name string) {
 	if !ok {
 		i = len(s.pl.cols)
 		s.pl.index[name] = i
-		s.pl.cols = append(s.pl.cols, column{name: name, kind: s.pl.kinds[name], dtype: s.pl.types[name]})
+		s.pl.cols = append(s.pl.cols, column{name: name, kind: s.pl.kinds[name], typ: s.pl.types[name]})
 	}
 	if !s.seen[i] {
 		s.seen[i] = true
