@@ -175,6 +175,9 @@ type DriftSide struct {
 	Sample             *bottomk.Sample
 	Cats               map[string]int64
 	Other              int64 // values past driftCategories distinct ones
+	// keys holds every key of Cats under itself: values are counted under
+	// the copy Cats keeps, never under the batch's text (see observe).
+	keys map[string]string
 }
 
 func newDriftSide(numeric bool) DriftSide {
@@ -182,7 +185,7 @@ func newDriftSide(numeric bool) DriftSide {
 		s, _ := bottomk.New(driftSample, 1, rules.DefaultSeed) // the sizes are valid
 		return DriftSide{Sample: s}
 	}
-	return DriftSide{Cats: map[string]int64{}}
+	return DriftSide{Cats: map[string]int64{}, keys: map[string]string{}}
 }
 
 // observe adds the values of arr, the drift column of batch b.
@@ -195,9 +198,16 @@ func (s *DriftSide) observe(b *source.Batch, arr arrow.Array) {
 		}
 		if s.Sample == nil {
 			s.Count++
+			// v points into the batch: a Go map assignment stores its
+			// string key anew, so counting under v would keep the text
+			// of the last batch each category came from alive.
 			v := baseline.Text(arr, i)
-			if _, ok := s.Cats[v]; ok || len(s.Cats) < driftCategories {
-				s.Cats[v]++
+			if k, ok := s.keys[v]; ok {
+				s.Cats[k]++
+			} else if len(s.Cats) < driftCategories {
+				k := strings.Clone(v)
+				s.keys[k] = k
+				s.Cats[k] = 1
 			} else {
 				s.Other++
 			}
@@ -256,8 +266,11 @@ func (a *DriftAccumulator) Merge(other Accumulator) error {
 		return a.Sample.Merge(o.Sample)
 	}
 	for k, v := range o.Cats {
-		if _, ok := a.Cats[k]; ok || len(a.Cats) < driftCategories {
-			a.Cats[k] += v
+		if kept, ok := a.keys[k]; ok {
+			a.Cats[kept] += v
+		} else if len(a.Cats) < driftCategories {
+			a.keys[k] = k
+			a.Cats[k] = v
 		} else {
 			a.Other += v
 		}

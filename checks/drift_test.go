@@ -2,12 +2,15 @@ package checks
 
 import (
 	"context"
+	"maps"
 	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/memory"
 	"github.com/assay-project/assay/checks/baseline"
 	"github.com/assay-project/assay/engine/report"
 	"github.com/assay-project/assay/engine/source"
@@ -224,4 +227,41 @@ func sameHistogram(a, b report.DriftHistogram) bool {
 	}
 	return same(a.Edges, b.Edges) && same(a.BaseShares, b.BaseShares) && same(a.Shares, b.Shares) &&
 		same([]report.Number{a.Below, a.Above}, []report.Number{b.Below, b.Above})
+}
+
+// TestDriftCategoriesKeepNoBatchText counts a string column, then
+// overwrites the batch's text bytes, as a recycled buffer would be: the
+// category counts, of one side and of two merged, must still name the
+// values counted.
+func TestDriftCategoriesKeepNoBatchText(t *testing.T) {
+	mem := memory.NewCheckedAllocator(memory.NewGoAllocator())
+	defer mem.AssertSize(t, 0)
+	batch := func(vals ...string) *array.String {
+		bld := array.NewStringBuilder(mem)
+		defer bld.Release()
+		bld.AppendValues(vals, nil)
+		return bld.NewStringArray()
+	}
+	a, b := batch("hive", "yard", "hive"), batch("yard", "shed")
+	defer a.Release()
+	defer b.Release()
+	c := &driftCheck{}
+	x := &DriftAccumulator{DriftSide: newDriftSide(false), check: c}
+	y := &DriftAccumulator{DriftSide: newDriftSide(false), check: c}
+	x.observe(&source.Batch{FirstRow: 1}, a)
+	y.observe(&source.Batch{FirstRow: 4}, b)
+	x.observe(&source.Batch{FirstRow: 4}, b)
+	if err := x.Merge(y); err != nil {
+		t.Fatal(err)
+	}
+	for _, arr := range []*array.String{a, b} {
+		data := arr.ValueBytes()
+		for i := range data {
+			data[i] = '#'
+		}
+	}
+	want := map[string]int64{"hive": 2, "yard": 3, "shed": 2}
+	if !maps.Equal(x.Cats, want) {
+		t.Fatalf("categories after the batches changed: %v, want %v", x.Cats, want)
+	}
 }

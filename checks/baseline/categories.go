@@ -3,6 +3,7 @@ package baseline
 import (
 	"cmp"
 	"slices"
+	"strings"
 )
 
 // Categories counts the values of a text column in bounded memory with the
@@ -15,29 +16,45 @@ import (
 // keeping the Cap largest, subtracting the (Cap+1)-th largest from each
 // (Agarwal et al. 2012, "Mergeable summaries", PODS, §3), with the same
 // bound for the union.
+//
+// Counts is changed only through Add and Merge, which keep its keys as
+// copies of their own (see Add).
 type Categories struct {
 	Cap    int
 	Counts map[string]int64
 	// N counts the values offered; N minus the sum of Counts is the mass
 	// the summary no longer attributes to any value.
 	N int64
+	// keys holds every key of Counts under itself.
+	keys map[string]string
 }
 
 // NewCategories returns an empty summary of at most cap counters.
 func NewCategories(cap int) *Categories {
-	return &Categories{Cap: cap, Counts: map[string]int64{}}
+	return &Categories{Cap: cap, Counts: map[string]int64{}, keys: map[string]string{}}
 }
 
-// Add counts one value.
+// Add counts one value. v may point into a batch about to be released: a
+// new value is kept as a copy, and a known one is counted under the copy
+// Counts holds, never under v, since a Go map assignment stores its
+// string key anew (Counts[v]++ would keep, for every counted value, the
+// text of the last batch it came from alive).
 func (c *Categories) Add(v string) {
 	c.N++
-	if _, ok := c.Counts[v]; ok || len(c.Counts) < c.Cap {
-		c.Counts[v]++
+	if k, ok := c.keys[v]; ok {
+		c.Counts[k]++
+		return
+	}
+	if len(c.Counts) < c.Cap {
+		k := strings.Clone(v)
+		c.keys[k] = k
+		c.Counts[k] = 1
 		return
 	}
 	for k, n := range c.Counts {
 		if n == 1 {
 			delete(c.Counts, k)
+			delete(c.keys, k)
 		} else {
 			c.Counts[k] = n - 1
 		}
@@ -56,7 +73,12 @@ func (c *Categories) Exact() bool {
 // Merge folds o into c.
 func (c *Categories) Merge(o *Categories) {
 	for k, n := range o.Counts {
-		c.Counts[k] += n
+		if kept, ok := c.keys[k]; ok {
+			c.Counts[kept] += n
+		} else {
+			c.keys[k] = k
+			c.Counts[k] = n
+		}
 	}
 	c.N += o.N
 	if len(c.Counts) <= c.Cap {
@@ -66,9 +88,10 @@ func (c *Categories) Merge(o *Categories) {
 	cut := top[c.Cap].Count
 	for _, t := range top {
 		if n := t.Count - cut; n > 0 {
-			c.Counts[t.Value] = n
+			c.Counts[c.keys[t.Value]] = n
 		} else {
 			delete(c.Counts, t.Value)
+			delete(c.keys, t.Value)
 		}
 	}
 }
