@@ -50,11 +50,12 @@
 // A batch read from a dictionary-encoded column may come with the column's
 // dictionary codes (Evaluator.EvalCodes). Then the largest subexpressions
 // that read that string column alone and give no string (`site != "lab"`,
-// `len(code) == 6`, `name matches "^[A-Z]"`, one run on the machine too,
-// unless it asks the time)
-// are computed once per dictionary entry, on first use, and each row takes
-// its entry's value; a null row takes the value computed for a null, so
-// the result is the same as row by row.
+// `len(code)`, `name matches "^[A-Z]"`, one run on the machine too, unless
+// it asks the time) are computed once per dictionary entry, on first use,
+// and each row takes its entry's value; a null row takes the value computed
+// for a null, so the result is the same as row by row. A measured root
+// comparison is never computed so, as its operands give the gaps: of
+// `len(code) < 7` only `len(code)` is.
 //
 // # Semantics
 //
