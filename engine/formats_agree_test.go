@@ -60,44 +60,34 @@ func TestParquetAgreesWithArrow(t *testing.T) {
 // check. The copies hold the values the policy's column types read from
 // the CSV data.
 func TestConformanceParquetAgreesWithArrow(t *testing.T) {
-	paths, err := filepath.Glob("../testdata/conformance/*/policy.yaml")
-	if err != nil || len(paths) == 0 {
-		t.Fatalf("no conformance cases found (%v)", err)
-	}
-	for _, path := range paths {
-		t.Run(filepath.Base(filepath.Dir(path)), func(t *testing.T) {
-			pol, err := rules.Load(path)
-			if err != nil {
-				t.Fatal(err)
+	eachConformanceCase(t, func(t *testing.T, pol *rules.Policy, path string) {
+		in := pol.Input
+		opts := source.Options{BatchRows: 7, Delimiter: in.Delimiter, Quote: in.Quote, NoQuote: in.NoQuote,
+			NoHeader: in.NoHeader, Types: map[string]arrow.DataType{}}
+		if in.NullsSet {
+			opts.Nulls = in.Nulls
+		}
+		for _, c := range pol.Columns {
+			if typ := engine.ArrowType(c.Type); typ != nil {
+				opts.Types[c.Name] = typ
 			}
-			in := pol.Input
-			opts := source.Options{BatchRows: 7, Delimiter: in.Delimiter, Quote: in.Quote, NoQuote: in.NoQuote,
-				NoHeader: in.NoHeader, Types: map[string]arrow.DataType{}}
-			if in.NullsSet {
-				opts.Nulls = in.Nulls
+		}
+		dir := t.TempDir()
+		var pqPaths, arrowPaths []string
+		for i, data := range in.Paths {
+			if !filepath.IsAbs(data) {
+				data = filepath.Join(filepath.Dir(path), data)
 			}
-			for _, c := range pol.Columns {
-				if typ := engine.ArrowType(c.Type); typ != nil {
-					opts.Types[c.Name] = typ
-				}
-			}
-			dir := t.TempDir()
-			var pqPaths, arrowPaths []string
-			for i, data := range in.Paths {
-				if !filepath.IsAbs(data) {
-					data = filepath.Join(filepath.Dir(path), data)
-				}
-				pq, arw := filepath.Join(dir, fmt.Sprint(i, ".parquet")), filepath.Join(dir, fmt.Sprint(i, ".arrow"))
-				writeParquet(t, data, pq, opts)
-				writeArrow(t, data, arw, opts)
-				pqPaths, arrowPaths = append(pqPaths, pq), append(arrowPaths, arw)
-			}
-			run := engine.Options{Workers: 3, Source: source.Options{BatchRows: 7}}
-			if want, got := resultsOf(t, pol, arrowPaths, run), resultsOf(t, pol, pqPaths, run); !bytes.Equal(want, got) {
-				t.Errorf("results differ between Arrow and Parquet:\n%s", firstDifference(want, got, "arrow", "parquet"))
-			}
-		})
-	}
+			pq, arw := filepath.Join(dir, fmt.Sprint(i, ".parquet")), filepath.Join(dir, fmt.Sprint(i, ".arrow"))
+			writeParquet(t, data, pq, opts)
+			writeArrow(t, data, arw, opts)
+			pqPaths, arrowPaths = append(pqPaths, pq), append(arrowPaths, arw)
+		}
+		run := engine.Options{Workers: 3, Source: source.Options{BatchRows: 7}}
+		if want, got := resultsOf(t, pol, arrowPaths, run), resultsOf(t, pol, pqPaths, run); !bytes.Equal(want, got) {
+			t.Errorf("results differ between Arrow and Parquet:\n%s", firstDifference(want, got, "arrow", "parquet"))
+		}
+	})
 }
 
 // resultsOf runs pol over paths and returns its results as JSON.

@@ -2,8 +2,6 @@ package engine_test
 
 import (
 	"bytes"
-	"context"
-	"encoding/json"
 	"path/filepath"
 	"testing"
 
@@ -19,6 +17,34 @@ import (
 // either way, so the results must be identical to the last digit and the
 // last sampled row.
 func TestWorkersAgree(t *testing.T) {
+	eachConformanceCase(t, func(t *testing.T, pol *rules.Policy, _ string) {
+		run := func(opts engine.Options) []byte {
+			t.Helper()
+			opts.Source = source.Options{BatchRows: 7}
+			return resultsOf(t, pol, nil, opts)
+		}
+		one := run(engine.Options{Workers: 1})
+		for _, tc := range []struct {
+			name string
+			opts engine.Options
+		}{
+			{"three", engine.Options{Workers: 3}},
+			{"three, spill", engine.ForceSpill(engine.Options{Workers: 3}, true)},
+			{"three, no spill", engine.ForceSpill(engine.Options{Workers: 3}, false)},
+			{"one, spill", engine.ForceSpill(engine.Options{Workers: 1}, true)},
+		} {
+			if got := run(tc.opts); !bytes.Equal(one, got) {
+				t.Errorf("results differ between one worker and %s:\n%s", tc.name, firstDifference(one, got, "one", tc.name))
+			}
+		}
+	})
+}
+
+// eachConformanceCase runs test as a subtest, named after the case's
+// directory, on every conformance case's policy and the path of its
+// policy file (which relative data paths are relative to).
+func eachConformanceCase(t *testing.T, test func(t *testing.T, pol *rules.Policy, path string)) {
+	t.Helper()
 	paths, err := filepath.Glob("../testdata/conformance/*/policy.yaml")
 	if err != nil || len(paths) == 0 {
 		t.Fatalf("no conformance cases found (%v)", err)
@@ -29,33 +55,7 @@ func TestWorkersAgree(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			run := func(opts engine.Options) []byte {
-				t.Helper()
-				opts.Source = source.Options{BatchRows: 7}
-				rep, err := engine.Run(context.Background(), pol, nil, opts)
-				if err != nil {
-					t.Fatal(err)
-				}
-				out, err := json.MarshalIndent(rep.Results, "", " ")
-				if err != nil {
-					t.Fatal(err)
-				}
-				return out
-			}
-			one := run(engine.Options{Workers: 1})
-			for _, tc := range []struct {
-				name string
-				opts engine.Options
-			}{
-				{"three", engine.Options{Workers: 3}},
-				{"three, spill", engine.ForceSpill(engine.Options{Workers: 3}, true)},
-				{"three, no spill", engine.ForceSpill(engine.Options{Workers: 3}, false)},
-				{"one, spill", engine.ForceSpill(engine.Options{Workers: 1}, true)},
-			} {
-				if got := run(tc.opts); !bytes.Equal(one, got) {
-					t.Errorf("results differ between one worker and %s:\n%s", tc.name, firstDifference(one, got, "one", tc.name))
-				}
-			}
+			test(t, pol, path)
 		})
 	}
 }
