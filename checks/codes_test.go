@@ -207,17 +207,23 @@ func TestCodedVerdictsHoldTheirDictionary(t *testing.T) {
 	b1 := one(1, "a", "bb", nil, "a")
 	c := compile(t, newRule(rules.LengthSpec{Bound: rules.KindMaxLength, Length: 2}, atMost(0), "s"), envOf(b1, 10))
 	a := c.NewAccumulator()
-	observe(t, a, b1, b1) // the second time every entry is known to meet the rule
+	observe(t, a, b1)
+	if cv := &a.(*ValueAccumulator).scratch.coded; cv.left != 0 || cv.breaking != 0 {
+		t.Fatalf("after the first batch %d entries unjudged and %d breaking, want 0 and 0 (so the next batch is skipped)", cv.left, cv.breaking)
+	}
+	observe(t, a, b1)
 	b1.Release()
 	if mem.CurrentAlloc() == 0 {
 		t.Fatal("the accumulator let go of the dictionary it judged")
 	}
-	b2 := one(5, "bb", "a", "cccc", "a")
+	// The new dictionary's entries 0 and 1 break and meet the rule, the old
+	// one's both met it: verdicts kept from the old would list nothing.
+	b2 := one(5, "cccc", "a", "cccc", nil)
 	observe(t, a, b2, b2)
 	b2.Release()
 	res := a.Finish()
-	if n, rows, scores := listed(res); n != 2 || fmt.Sprint(rows, scores) != "[7 7] [2 2]" {
-		t.Errorf("offending %d rows %v scores %v, want 2 [7 7] [2 2]", n, rows, scores)
+	if n, rows, scores := listed(res); n != 4 || fmt.Sprint(rows, scores) != "[5 5 7 7] [2 2 2 2]" {
+		t.Errorf("offending %d rows %v scores %v, want 4 [5 5 7 7] [2 2 2 2]", n, rows, scores)
 	}
 	if got := mem.CurrentAlloc(); got != 0 {
 		t.Errorf("%d bytes still allocated after Finish", got)
