@@ -99,6 +99,7 @@ func (e *Evaluator) eval(rec arrow.RecordBatch, codes []*array.Dictionary, out [
 		return fmt.Errorf("result buffers hold %d and %d rows, the batch has %d", len(out), len(gap), n)
 	}
 	schema := rec.Schema()
+	defer e.clear()
 	for k, c := range e.p.cols {
 		idx := fieldIndex(schema, c.name)
 		if idx < 0 {
@@ -109,13 +110,8 @@ func (e *Evaluator) eval(rec arrow.RecordBatch, codes []*array.Dictionary, out [
 			return fmt.Errorf("column %q is %s in the data, the expression was compiled for %s", c.name, arr.DataType(), c.typ)
 		}
 		e.arrs[k] = arr
-	}
-	defer e.clear()
-	for k, d := range e.dicts {
-		if d != nil && codes != nil {
-			if idx := fieldIndex(schema, e.p.cols[k].name); idx < len(codes) {
-				d.active = e.useCodes(k, codes[idx], n)
-			}
+		if d := e.dicts[k]; d != nil && idx < len(codes) {
+			d.active = e.useCodes(k, codes[idx], n)
 		}
 	}
 	for off := 0; off < n; off += chunkRows {
