@@ -296,22 +296,16 @@ func appendValid(dst, xs []float64, v valid) []float64 {
 }
 
 // finiteExtent returns the least and greatest of xs (+Inf and -Inf when
-// there are none), as min and max find them (-0 below 0); false if some
-// value is NaN or infinite (x − x is then NaN, where it is 0 for every
-// finite x). min and max are taken only when x may move the extent, so
-// that, on data past its first values, the loop waits for neither.
+// there are none), as boundsOf finds them (-0 below 0); false if some
+// value is NaN or infinite: min and max carry a NaN through, and an
+// infinity is the least or the greatest value, so the extent is finite
+// exactly when every value is.
 func finiteExtent(xs []float64) (lo, hi float64, ok bool) {
-	lo, hi = math.Inf(1), math.Inf(-1)
-	for _, x := range xs {
-		if x-x != 0 {
-			return 0, 0, false
-		}
-		if x <= lo {
-			lo = min(lo, x)
-		}
-		if x >= hi {
-			hi = max(hi, x)
-		}
+	if len(xs) == 0 {
+		return math.Inf(1), math.Inf(-1), true
+	}
+	if lo, hi = boundsOf(xs); !isFinite(lo) || !isFinite(hi) {
+		return 0, 0, false
 	}
 	return lo, hi, true
 }
