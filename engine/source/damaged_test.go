@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strings"
 	"testing"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -17,8 +18,8 @@ import (
 
 // TestDamagedParquetPages damages the data pages of a valid Parquet file
 // one byte at a time and checks that every scan either succeeds or returns
-// a located *Error: never a panic, whatever arrow-go's decoders make of the
-// damage.
+// a located *Error, naming the column when a column's decoder fails: never
+// a panic, whatever arrow-go's decoders make of the damage.
 func TestDamagedParquetPages(t *testing.T) {
 	dir := t.TempDir()
 	good := filepath.Join(dir, "good.parquet")
@@ -72,6 +73,11 @@ func TestDamagedParquetPages(t *testing.T) {
 		var located *Error
 		if !errors.As(err, &located) || located.Path == "" {
 			t.Fatalf("offset %d: error does not name the file: %v", off, err)
+		}
+		// Every column here is flat: a decoder's error names the column.
+		if msg := err.Error(); strings.Contains(msg, "cannot decode") && !strings.Contains(msg, "the data ends") &&
+			!strings.Contains(msg, "column \"") {
+			t.Errorf("offset %d: error does not name the column: %v", off, err)
 		}
 	}
 	if failed == 0 {

@@ -234,7 +234,8 @@ func (s *Set) scanParquet(ctx context.Context, i int, sc *scan, first int64) (in
 }
 
 // readFlat reads the next n rows of the flat columns into stored, and
-// their dictionary codes, when the reader has them, into codes.
+// their dictionary codes, when the reader has them, into codes. An error
+// names the column it comes from.
 func (s *Set) readFlat(flat []*flatColumn, stored []arrow.Array, codes []*array.Dictionary, n int) error {
 	for k, fc := range flat {
 		if fc == nil {
@@ -242,7 +243,7 @@ func (s *Set) readFlat(flat []*flatColumn, stored []arrow.Array, codes []*array.
 		}
 		a, c, err := fc.read(n)
 		if err != nil {
-			return err
+			return fmt.Errorf("column %q: %w", fc.r.MetaData().Schema.Column(fc.leaf).Name(), err)
 		}
 		stored[k], codes[k] = a, c
 	}
