@@ -308,10 +308,8 @@ func (a *SummaryAccumulator) observeNumbers(xs []float64) {
 			w.add(x)
 		}
 	}
-	if need.extent {
-		for _, x := range xs {
-			lo, hi = min(lo, x), max(hi, x)
-		}
+	if need.extent && len(xs) > 0 {
+		lo, hi = boundsOf(xs)
 	}
 	if need.sum {
 		sum := a.FloatSum
