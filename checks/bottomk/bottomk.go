@@ -547,17 +547,12 @@ func (s *Sample) drop(k uint64) {
 	p, n := s.p, 0
 	keys, vals, hist, shift := s.keys, s.vals, s.hist, s.shift
 	if p == 1 {
-		// Without branches: every row is written at place n, which
-		// advances only past the kept ones (a fifth of the rows, at random,
-		// are dropped: a branch would be mispredicted that often); the
-		// kept ones are counted after, as in OfferRun.
+		// Without branches, by put: every row is written at place n,
+		// which advances only past the kept ones (a fifth of the rows, at
+		// random, are dropped: a branch would be mispredicted that often);
+		// the kept ones are counted after, as in OfferRun.
 		for i, key := range keys {
-			keep := 0
-			if key <= k {
-				keep = 1
-			}
-			keys[n], vals[n] = key, vals[i]
-			n += keep
+			n = put(keys, vals, n, key, vals[i], k)
 		}
 		countRun(keys[:n], hist, shift, nil)
 	} else {
