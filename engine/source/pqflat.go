@@ -213,8 +213,7 @@ type fixed interface {
 // It returns the values buffer and the null count.
 func readFixed[T fixed](fc *flatColumn, n int, bits []byte, readBatch func(file.ColumnChunkReader, int64, []T, []int16) (int64, int, error)) ([]*memory.Buffer, int, error) {
 	var zero T
-	buf := memory.NewResizableBuffer(fc.mem)
-	buf.Resize(n * int(unsafe.Sizeof(zero)))
+	buf := sized(fc.mem, n*int(unsafe.Sizeof(zero)))
 	nulls, err := readRows(fc, arrow.GetData[T](buf.Bytes()), bits, readBatch)
 	if err != nil {
 		buf.Release()
