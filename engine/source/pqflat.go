@@ -367,14 +367,13 @@ func (fc *flatColumn) readTexts(n int, bits []byte) (buffers []*memory.Buffer, n
 		}
 		row += int(want)
 		fc.left -= want
-		dict = fc.pages.dict
 	}
 	if codes != nil && o.plain {
 		codes.Release()
 		codes = nil
 	}
-	if codes == nil {
-		dict = nil
+	if codes != nil { // the rows came in one read, from fc.pages' chunk
+		dict = fc.pages.dict
 	}
 	dlen := int(o.offs[n])
 	o.data.ResizeNoShrink(dlen)
