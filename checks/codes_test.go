@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"regexp"
+	"strings"
 	"testing"
 
 	"github.com/apache/arrow-go/v18/arrow"
@@ -227,5 +228,45 @@ func TestCodedVerdictsHoldTheirDictionary(t *testing.T) {
 	}
 	if got := mem.CurrentAlloc(); got != 0 {
 		t.Errorf("%d bytes still allocated after Finish", got)
+	}
+}
+
+// TestCodesOutOfRange: codes that are not entries of their dictionary (a
+// reader's fault) do not change a result: the rules on strings judge such
+// rows by their own values, also once every entry is judged, and a row
+// expression runs row by row.
+func TestCodesOutOfRange(t *testing.T) {
+	mem := checkedMem(t)
+	plain := newBatch(t, mem, 1, col{"s", tString, []any{"a", "zzz", "bb", "zzzz", nil}})
+	release(t, plain)
+	coded := *plain
+	coded.Record.Retain()
+	release(t, &coded)
+	db := array.NewStringBuilder(mem)
+	db.AppendValues([]string{"a", "bb"}, nil)
+	dict := db.NewArray()
+	db.Release()
+	ib := array.NewInt32Builder(mem)
+	ib.AppendValues([]int32{0, 7, 1, -1, 0}, []bool{true, true, true, true, false})
+	idx := ib.NewArray()
+	ib.Release()
+	dictType := &arrow.DictionaryType{IndexType: arrow.PrimitiveTypes.Int32, ValueType: arrow.BinaryTypes.String}
+	coded.Codes = []*array.Dictionary{array.NewDictionaryArray(dictType, idx, dict)}
+	idx.Release()
+	dict.Release()
+	env := envOf(plain, 10)
+	for _, r := range []*rules.Rule{
+		newRule(rules.LengthSpec{Bound: rules.KindMaxLength, Length: 2}, atMost(0), "s"),
+		newRule(rules.RowSpec{Expr: `s != "zzz" && len(s) < 4`}, atMost(0), "s"),
+	} {
+		c := compile(t, r, env)
+		want, _ := json.Marshal(run(t, c, plain, plain))
+		// The second time every entry of the dictionary is judged.
+		if got, _ := json.Marshal(run(t, c, &coded, &coded)); string(got) != string(want) {
+			t.Errorf("%s with codes out of range\n%s\nwithout codes\n%s", r.Kind, got, want)
+		}
+		if !strings.Contains(string(want), `"row":4`) {
+			t.Errorf("%s: row 4 does not offend, the test proves nothing: %s", r.Kind, want)
+		}
 	}
 }
