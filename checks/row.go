@@ -151,7 +151,8 @@ func (a *RowAccumulator) Observe(b *source.Batch) error {
 	return nil
 }
 
-// Merge adds other's counts and listing to a.
+// Merge adds other's counts and listing to a, and drops the dictionaries
+// other's evaluator holds (rowexpr.Evaluator.Release).
 func (a *RowAccumulator) Merge(other Accumulator) error {
 	o, ok := other.(*RowAccumulator)
 	if !ok || o.check != a.check {

@@ -308,7 +308,8 @@ func (a *ValueAccumulator) Observe(b *source.Batch) error {
 	return nil
 }
 
-// Merge adds other's counts and listing to a.
+// Merge adds other's counts and listing to a, and drops the dictionary
+// other last judged (codedVerdicts).
 func (a *ValueAccumulator) Merge(other Accumulator) error {
 	o, ok := other.(*ValueAccumulator)
 	if !ok || o.check != a.check {

@@ -113,7 +113,9 @@ type liftState struct {
 // the first time a row points at it, and each row takes its entry's value;
 // the dictionary is kept, with its values, for the next batches until one
 // brings another (the Evaluator holds a reference to it until then, or
-// until Release). The results are Eval's, value for value.
+// until Release). Codes not as described, or pointing outside their
+// dictionary (a reader's fault), make the lifts on that column run row by
+// row for the batch. The results are Eval's, value for value.
 func (e *Evaluator) EvalCodes(rec arrow.RecordBatch, codes []*array.Dictionary, out []Truth, gap []float64) error {
 	return e.eval(rec, codes, out, gap)
 }
