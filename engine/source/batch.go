@@ -11,8 +11,8 @@ import (
 //
 // Record holds the columns the plan asked for, in the types the policy
 // declared (or inferred or physical types where it declared none). The batch
-// owns one reference to Record; whoever receives a Batch calls Release when
-// done with it.
+// owns one reference to Record, Text and Codes; whoever receives a Batch
+// calls Release when done with it.
 type Batch struct {
 	Record arrow.RecordBatch
 	// Source is the index of the input file in the Set that produced it.

@@ -26,7 +26,9 @@ import (
 // date32, INT64 as int64 or a timestamp, FLOAT, DOUBLE, BOOLEAN, and
 // BYTE_ARRAY as string or binary. These are the types for which pqarrow
 // copies or references the values unchanged, so both readers give the same
-// arrays.
+// arrays. A BYTE_ARRAY column chunk that readsPages accepts is read page by
+// page by textPages instead of arrow-go's column chunk reader, which gives
+// a string column's dictionary codes as well (Batch.Codes).
 type flatColumn struct {
 	r    *file.Reader
 	leaf int              // the column's leaf index in the file

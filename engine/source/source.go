@@ -80,7 +80,7 @@ type Set struct {
 	schema *arrow.Schema
 	spool  string    // the copy of standard input, removed by Close
 	text   bool      // the scan under way keeps CSV cell texts (ScanText)
-	pool   *recycler // the memory of the flat Parquet columns' batches
+	pool   *recycler // the memory of Parquet pages and of flat columns' batches but text bytes
 }
 
 // input is one file of a Set and how to read it.
