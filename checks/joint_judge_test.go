@@ -26,6 +26,9 @@ func TestJointJudgeRows(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	if !s.ShowsNonFinite() {
+		t.Fatal("the scatter's distances do not show non-finite values: Observe would not take the path from every row's distance")
+	}
 	for _, tc := range []struct {
 		name    string
 		x, y, z []any
