@@ -118,15 +118,14 @@ func (a *RowAccumulator) Observe(b *source.Batch) error {
 		a.eval = a.check.prog.NewEvaluator()
 	}
 	n := int(b.Record.NumRows())
-	measured := a.check.prog.Measured() // else every false row scores 1
 	if cap(a.truth) < n {
 		a.truth = make([]rowexpr.Truth, n)
-		if measured {
-			a.gap = make([]float64, n)
-		}
 	}
 	truth, gap := a.truth[:n], []float64(nil)
-	if measured {
+	if a.check.prog.Measured() { // else every false row scores 1
+		if cap(a.gap) < n {
+			a.gap = make([]float64, n)
+		}
 		gap = a.gap[:n]
 	}
 	if err := a.eval.EvalCodes(b.Record, b.Codes, truth, gap); err != nil {
@@ -142,7 +141,7 @@ func (a *RowAccumulator) Observe(b *source.Batch) error {
 		if t == rowexpr.False {
 			a.False++
 			score := 1.0
-			if measured {
+			if gap != nil {
 				score = gap[i]
 			}
 			a.listing.Add(score, b.Row(i), func() report.Row { return RowAt(a.check.env, b, i, a.check.cols) })
