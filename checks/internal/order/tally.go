@@ -478,14 +478,38 @@ func (t *Tally[T]) All() iter.Seq2[T, int64] {
 }
 
 // counted yields each distinct value counted in the grid and the table,
-// with its count.
+// with its count: onGrid's, then inTable's.
 func (t *Tally[T]) counted() iter.Seq2[T, int64] {
+	return func(yield func(T, int64) bool) {
+		for x, c := range t.onGrid() {
+			if !yield(x, c) {
+				return
+			}
+		}
+		for x, c := range t.inTable() {
+			if !yield(x, c) {
+				return
+			}
+		}
+	}
+}
+
+// onGrid yields each distinct value counted in the grid, with its count,
+// in ascending order (a value grows with its count's place).
+func (t *Tally[T]) onGrid() iter.Seq2[T, int64] {
 	return func(yield func(T, int64) bool) {
 		for j := range t.grid.counts {
 			if c := t.grid.count(j); c != 0 && !yield(T(t.grid.value(j)), c) {
 				return
 			}
 		}
+	}
+}
+
+// inTable yields each distinct value counted in the table, with its
+// count, in the table's order.
+func (t *Tally[T]) inTable() iter.Seq2[T, int64] {
+	return func(yield func(T, int64) bool) {
 		for _, s := range t.slots {
 			if s.count != 0 && !yield(valueOf[T](s.key), s.count) {
 				return
@@ -529,19 +553,15 @@ func (t *Tally[T]) Quantiles7(ps ...float64) []float64 {
 		x T
 		c int64
 	}
-	// The grid's values come in ascending order (they grow with their
-	// count's place); only the table's are sorted, then merged with them.
+	// The grid's values come in ascending order (onGrid); only the
+	// table's are sorted, then merged with them.
 	entries := make([]entry, 0, t.distinct)
-	for j := range t.grid.counts {
-		if c := t.grid.count(j); c != 0 {
-			entries = append(entries, entry{T(t.grid.value(j)), c})
-		}
+	for x, c := range t.onGrid() {
+		entries = append(entries, entry{x, c})
 	}
 	gridded := len(entries)
-	for _, s := range t.slots {
-		if s.count != 0 {
-			entries = append(entries, entry{valueOf[T](s.key), s.count})
-		}
+	for x, c := range t.inTable() {
+		entries = append(entries, entry{x, c})
 	}
 	// -0 and 0, counted apart, sort -0 first, so that which of them a rank
 	// holds does not depend on where the table put them.
