@@ -131,15 +131,12 @@ func (tp *textPages) read(o *textOut, row, m int) error {
 			if err := tp.levels.read(lv); err != nil {
 				return fmt.Errorf("definition levels: %w", err)
 			}
+			// Levels of width 1 are 0 or 1: hybrid refuses wider values.
 			defined = 0
 			for i, l := range lv {
-				switch l {
-				case 1:
+				if l == 1 {
 					defined++
 					bitutil.SetBit(o.bits, row+i)
-				case 0:
-				default:
-					return fmt.Errorf("definition level %d where at most 1 is allowed", l)
 				}
 			}
 			o.nulls += k - defined
