@@ -304,7 +304,7 @@ func TestFlatTextCodes(t *testing.T) {
 					case name == "bin" || tc.codes == "none":
 					case name == "uniq" || tc.codes == "some": // the writer may fall back to plain pages
 						want = codes != nil && inGroup
-					case tc.codes == "all", tc.codes == "in groups", tc.codes == "some":
+					case tc.codes == "all", tc.codes == "in groups":
 						want = inGroup
 					}
 					if (codes != nil) != want {
