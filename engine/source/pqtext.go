@@ -20,11 +20,10 @@ import (
 // chunk reader, so that a page of dictionary indices (RLE_DICTIONARY or
 // PLAIN_DICTIONARY) yields the indices: the texts of its rows are gathered
 // from the dictionary (see gather) and the indices become the batch's
-// codes. Pages the
-// writer fell back to PLAIN for are copied value by value. The layouts
-// read are those of the Parquet format specification (Apache Parquet,
-// parquet-format, Encodings.md: "Plain", "Dictionary Encoding", "Run
-// Length Encoding / Bit-Packing Hybrid"; README.md "Data Pages").
+// codes. Pages the writer fell back to PLAIN for are copied value by value.
+// The layouts read are those of the Parquet format specification (Apache
+// Parquet, parquet-format, Encodings.md: "Plain", "Dictionary Encoding",
+// "Run Length Encoding / Bit-Packing Hybrid"; README.md "Data Pages").
 //
 // Only chunks that have a dictionary page and whose encodings are all
 // among these are read this way (see readsPages); the others go through
