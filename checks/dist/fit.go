@@ -102,22 +102,11 @@ func (f Family) Check(sample []float64) error {
 	if err := checkValues(sample, f.String(), "finite numbers", finite); err != nil {
 		return err
 	}
-	ok, need := f.support()
-	if ok == nil {
-		return nil
-	}
-	return checkValues(sample, f.String(), need, ok)
-}
-
-// support returns the family's own test of a finite value, given the
-// parameters fixed so far, and what it needs; nil when any finite value
-// will do.
-func (f Family) support() (func(float64) bool, string) {
 	in, need := f.interval()
 	if need == "" {
-		return nil, ""
+		return nil
 	}
-	return in.Contains, need
+	return checkValues(sample, f.String(), need, in.Contains)
 }
 
 // interval returns the values f can produce with the parameters fixed so
